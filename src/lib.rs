@@ -1,0 +1,15 @@
+//! coldpass: planning the cold drawing of round wire and bar.
+//!
+//! The pure computation core: flow-stress laws ([`flow`]), the mechanics of
+//! one pass through a conical die ([`pass`]), sizes and gauges ([`size`]).
+//! Nothing here prints, reads files or exits; every routine validates its
+//! inputs and returns a typed error that names the parameter, its value and
+//! what is allowed.
+
+pub mod flow;
+pub mod param;
+pub mod quad;
+
+pub use flow::{Beyond, FlowError, FlowLaw, FlowLawSpec, StrainAt};
+pub use param::ParamError;
+pub use quad::{Integral, QuadratureError};
