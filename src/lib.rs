@@ -8,8 +8,13 @@
 
 pub mod flow;
 pub mod param;
+pub mod pass;
 pub mod quad;
 
 pub use flow::{Beyond, FlowError, FlowLaw, FlowLawSpec, StrainAt};
 pub use param::ParamError;
+pub use pass::{
+    analyse_pass, optimum_semi_angle, Die, DrawPass, DrawStresses, Method, OptimumAngle, PassError,
+    PassMechanics, Settings,
+};
 pub use quad::{Integral, QuadratureError};
