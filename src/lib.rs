@@ -6,6 +6,7 @@
 //! inputs and returns a typed error that names the parameter, its value and
 //! what is allowed.
 
+pub mod fit;
 pub mod flow;
 pub mod param;
 pub mod pass;

@@ -1,1 +1,2 @@
 //! Report formats.
+pub mod fit;

@@ -1,0 +1,1 @@
+//! Fitting flow-stress laws to tensile-test data (being built).

@@ -1,0 +1,1 @@
+//! Tables, CSV and chart for `coldpass fit` (being built).
