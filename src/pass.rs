@@ -358,8 +358,8 @@ pub fn delta(semi_angle_rad: f64, area_reduction: f64) -> f64 {
     semi_angle_rad / area_reduction * s * s
 }
 
-/// Avitzur's `f(alpha) = (1/sin^2 a) {1 - cos a sqrt(1 - (11/12) sin^2 a)
-/// + (1/sqrt 132) ln[(1 + sqrt(11/12)) / (sqrt(11/12) cos a + sqrt(1 - (11/12) sin^2 a))]}`,
+/// Avitzur's `f(alpha) = (1/sin^2 a) {1 - cos a sqrt(1 - (11/12) sin^2 a) +
+/// (1/sqrt 132) ln[(1 + sqrt(11/12)) / (sqrt(11/12) cos a + sqrt(1 - (11/12) sin^2 a))]}`,
 /// alpha in radians; tends to 1 as alpha tends to 0 (Avitzur 1963; from memory).
 pub fn avitzur_f(alpha_rad: f64) -> f64 {
     let (s, c) = alpha_rad.sin_cos();

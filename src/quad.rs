@@ -131,7 +131,8 @@ where
     if let Some((at, value)) = bad.get() {
         return Err(QuadratureError::NonFinite { at, value });
     }
-    if !(out.error_estimate <= tol) || !out.integral.is_finite() {
+    // A NaN error estimate is a miss too.
+    if out.error_estimate.is_nan() || out.error_estimate > tol || !out.integral.is_finite() {
         return Err(QuadratureError::NotConverged {
             a,
             b,
