@@ -6,11 +6,14 @@
 //! inputs and returns a typed error that names the parameter, its value and
 //! what is allowed.
 
+pub mod evaluation;
 pub mod fit;
 pub mod flow;
 pub mod param;
 pub mod pass;
 pub mod quad;
+pub mod schedule;
+pub mod size;
 
 pub use flow::{Beyond, FlowError, FlowLaw, FlowLawSpec, StrainAt};
 pub use param::ParamError;

@@ -1,18 +1,55 @@
-//! `coldpass check` (in progress).
+//! `coldpass check FILE`: evaluate a pass schedule and report it.
 
 use std::path::PathBuf;
 
-use anyhow::{bail, Result};
+use anyhow::{Context, Result};
 use clap::Args;
+use coldpass::evaluation::{evaluate, EvaluateOptions};
+use coldpass::schedule;
+use coldpass::Method;
+
+use super::{EXIT_OK, EXIT_OVER};
+use crate::cli::ReportArgs;
+use crate::{output, report};
 
 /// Arguments of `coldpass check`.
 #[derive(Debug, Args)]
 pub struct CheckArgs {
-    /// Input file.
+    /// The schedule file (YAML).
     pub file: PathBuf,
+    /// Governing method, overriding the file's `limits.method`.
+    #[arg(long, value_name = "NAME", value_parser = parse_method)]
+    pub method: Option<Method>,
+    #[command(flatten)]
+    pub report: ReportArgs,
 }
 
-/// Runs `coldpass check`.
+/// Parses a method name for clap, listing the allowed names on error.
+pub fn parse_method(s: &str) -> Result<Method, String> {
+    s.parse::<Method>().map_err(|e| e.allowed)
+}
+
+/// Runs `coldpass check`: exit 0 within limits, 3 over a limit.
 pub fn run(args: &CheckArgs) -> Result<u8> {
-    bail!("'{}': coldpass check is not built yet", args.file.display())
+    let text = output::read_to_string(&args.file)?;
+    let file = schedule::parse(&text)
+        .with_context(|| format!("reading schedule '{}'", args.file.display()))?;
+    let rep = evaluate(
+        &file,
+        &EvaluateOptions {
+            method: args.method,
+        },
+    )
+    .with_context(|| format!("checking schedule '{}'", args.file.display()))?;
+    let body = report::render_schedule(&rep, args.report.format)?;
+    // Render everything before writing anything, so a failure leaves no partial output.
+    let chart = match &args.report.plot {
+        Some(_) => Some(report::svg::schedule(&rep, &file)?),
+        None => None,
+    };
+    if let (Some(path), Some(svg)) = (&args.report.plot, &chart) {
+        output::write_file(path, svg)?;
+    }
+    output::emit(args.report.output.as_deref(), &body)?;
+    Ok(if rep.is_over() { EXIT_OVER } else { EXIT_OK })
 }

@@ -1,0 +1,259 @@
+//! The schedule chart (plotters, SVG backend): draw ratio per pass against
+//! the warn and max lines, and flow stress against the total strain drawn,
+//! with each pass's exit and each anneal marked.
+
+use anyhow::{anyhow, Result};
+use coldpass::evaluation::{ScheduleReport, StepKind};
+use coldpass::schedule::ScheduleFile;
+use plotters::prelude::*;
+
+const OK: RGBColor = RGBColor(31, 119, 180);
+const WARN: RGBColor = RGBColor(230, 145, 20);
+const OVER: RGBColor = RGBColor(200, 30, 30);
+const GREY: RGBColor = RGBColor(150, 150, 150);
+
+fn err<E: std::fmt::Display>(e: E) -> anyhow::Error {
+    anyhow!("drawing the chart: {e}")
+}
+
+/// Draws the chart of a checked schedule; `file` gives the laws for the curves.
+pub fn schedule(rep: &ScheduleReport, file: &ScheduleFile) -> Result<Vec<u8>> {
+    let mut buf = String::new();
+    {
+        let root = SVGBackend::with_string(&mut buf, (960, 760)).into_drawing_area();
+        root.fill(&WHITE).map_err(err)?;
+        let title = if rep.title.is_empty() {
+            "Schedule".to_string()
+        } else {
+            rep.title.clone()
+        };
+        let root = root
+            .titled(
+                &format!("{title}  (method: {})", rep.method),
+                ("sans-serif", 20),
+            )
+            .map_err(err)?;
+        let (upper, lower) = root.split_vertically(350);
+        draw_ratios(rep, &upper)?;
+        draw_flow(rep, file, &lower)?;
+        root.present().map_err(err)?;
+    }
+    Ok(buf.into_bytes())
+}
+
+fn draw_ratios(
+    rep: &ScheduleReport,
+    area: &DrawingArea<SVGBackend, plotters::coord::Shift>,
+) -> Result<()> {
+    let n = rep.passes.len() as f64;
+    let top = rep
+        .passes
+        .iter()
+        .filter_map(|r| r.draw_ratio)
+        .fold(rep.draw_ratio_max, f64::max)
+        * 1.15;
+    let mut chart = ChartBuilder::on(area)
+        .caption(
+            "Draw ratio per pass (drawing stress / exit flow stress)",
+            ("sans-serif", 16),
+        )
+        .margin(12)
+        .x_label_area_size(36)
+        .y_label_area_size(56)
+        .build_cartesian_2d(0.5f64..n + 0.5, 0f64..top)
+        .map_err(err)?;
+    chart
+        .configure_mesh()
+        .x_desc("step")
+        .y_desc("draw ratio")
+        .x_labels(rep.passes.len().min(30))
+        .x_label_formatter(&|x| format!("{:.0}", x))
+        .light_line_style(WHITE.mix(0.0))
+        .draw()
+        .map_err(err)?;
+    for r in rep.passes.iter().filter(|r| r.kind == StepKind::Anneal) {
+        let x = r.step as f64;
+        chart
+            .draw_series(DashedLineSeries::new(
+                vec![(x, 0.0), (x, top)],
+                6,
+                4,
+                GREY.stroke_width(2),
+            ))
+            .map_err(err)?;
+        chart
+            .draw_series(std::iter::once(Text::new(
+                "anneal",
+                (x + 0.08, top * 0.95),
+                ("sans-serif", 13).into_font().color(&GREY),
+            )))
+            .map_err(err)?;
+    }
+    for (level, colour, label) in [
+        (
+            rep.draw_ratio_warn,
+            WARN,
+            format!("warn {}", rep.draw_ratio_warn),
+        ),
+        (
+            rep.draw_ratio_max,
+            OVER,
+            format!("max {}", rep.draw_ratio_max),
+        ),
+    ] {
+        chart
+            .draw_series(DashedLineSeries::new(
+                vec![(0.5, level), (n + 0.5, level)],
+                10,
+                5,
+                colour.stroke_width(2),
+            ))
+            .map_err(err)?
+            .label(label)
+            .legend(move |(x, y)| {
+                PathElement::new(vec![(x, y), (x + 18, y)], colour.stroke_width(2))
+            });
+    }
+    let points: Vec<(f64, f64, RGBColor)> = rep
+        .passes
+        .iter()
+        .filter_map(|r| {
+            r.draw_ratio.map(|d| {
+                let c = if d > rep.draw_ratio_max {
+                    OVER
+                } else if d > rep.draw_ratio_warn {
+                    WARN
+                } else {
+                    OK
+                };
+                (r.step as f64, d, c)
+            })
+        })
+        .collect();
+    chart
+        .draw_series(
+            points.iter().map(|&(x, y, c)| {
+                Rectangle::new([(x - 0.3, 0.0), (x + 0.3, y)], c.mix(0.85).filled())
+            }),
+        )
+        .map_err(err)?
+        .label("pass")
+        .legend(|(x, y)| Rectangle::new([(x, y - 5), (x + 12, y + 5)], OK.filled()));
+    chart
+        .configure_series_labels()
+        .position(SeriesLabelPosition::UpperLeft)
+        .background_style(WHITE.mix(0.85))
+        .border_style(BLACK)
+        .draw()
+        .map_err(err)?;
+    Ok(())
+}
+
+fn draw_flow(
+    rep: &ScheduleReport,
+    file: &ScheduleFile,
+    area: &DrawingArea<SVGBackend, plotters::coord::Shift>,
+) -> Result<()> {
+    // x: total strain drawn since the start (never reset); y: flow stress.
+    let mut segments: Vec<Vec<(f64, f64)>> = Vec::new();
+    let mut exits: Vec<(f64, f64, usize)> = Vec::new();
+    let mut anneals: Vec<f64> = Vec::new();
+    let mut law = &file.material.flow;
+    let mut x = 0.0;
+    for r in &rep.passes {
+        match r.kind {
+            StepKind::Anneal => {
+                law = file.annealed_law();
+                anneals.push(x);
+            }
+            StepKind::Draw => {
+                let e = r.pass_strain.unwrap_or(0.0);
+                let seg: Vec<(f64, f64)> = (0..=24)
+                    .map(|k| {
+                        let t = e * k as f64 / 24.0;
+                        (x + t, law.stress_mpa(r.strain_before + t))
+                    })
+                    .collect();
+                segments.push(seg);
+                x += e;
+                exits.push((x, r.flow_stress_exit_mpa, r.step));
+            }
+        }
+    }
+    let ymax = segments.iter().flatten().map(|p| p.1).fold(0.0, f64::max) * 1.12;
+    let xmax = x.max(1e-6) * 1.03;
+    let mut chart = ChartBuilder::on(area)
+        .caption("Flow stress against total strain drawn", ("sans-serif", 16))
+        .margin(12)
+        .x_label_area_size(40)
+        .y_label_area_size(56)
+        .build_cartesian_2d(0f64..xmax, 0f64..ymax.max(1.0))
+        .map_err(err)?;
+    chart
+        .configure_mesh()
+        .x_desc("total true strain drawn from the start")
+        .y_desc("flow stress, MPa")
+        .y_label_formatter(&|y| format!("{:.0}", y))
+        .light_line_style(WHITE.mix(0.0))
+        .draw()
+        .map_err(err)?;
+    for a in &anneals {
+        chart
+            .draw_series(DashedLineSeries::new(
+                vec![(*a, 0.0), (*a, ymax)],
+                6,
+                4,
+                GREY.stroke_width(2),
+            ))
+            .map_err(err)?;
+        chart
+            .draw_series(std::iter::once(Text::new(
+                "anneal",
+                (*a + xmax * 0.005, ymax * 0.95),
+                ("sans-serif", 13).into_font().color(&GREY),
+            )))
+            .map_err(err)?;
+    }
+    for (i, seg) in segments.into_iter().enumerate() {
+        let s = chart
+            .draw_series(LineSeries::new(seg, OK.stroke_width(2)))
+            .map_err(err)?;
+        if i == 0 {
+            s.label("flow stress through the die")
+                .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 18, y)], OK.stroke_width(2)));
+        }
+    }
+    let steps_to_label = if exits.len() > 20 { 2 } else { 1 };
+    chart
+        .draw_series(
+            exits
+                .iter()
+                .map(|&(x, y, _)| Circle::new((x, y), 4, BLACK.filled())),
+        )
+        .map_err(err)?
+        .label("pass exit")
+        .legend(|(x, y)| Circle::new((x + 9, y), 4, BLACK.filled()));
+    chart
+        .draw_series(
+            exits
+                .iter()
+                .enumerate()
+                .filter(|(i, _)| i % steps_to_label == 0)
+                .map(|(_, &(x, y, step))| {
+                    Text::new(
+                        format!("{step}"),
+                        (x, y + ymax * 0.05),
+                        ("sans-serif", 12).into_font(),
+                    )
+                }),
+        )
+        .map_err(err)?;
+    chart
+        .configure_series_labels()
+        .position(SeriesLabelPosition::LowerRight)
+        .background_style(WHITE.mix(0.85))
+        .border_style(BLACK)
+        .draw()
+        .map_err(err)?;
+    Ok(())
+}

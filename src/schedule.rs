@@ -1,0 +1,583 @@
+//! The schedule file: material, start size, die defaults, limits, line and
+//! the steps (draw passes and anneals), as read from YAML.
+//!
+//! One model serves both `check` (which needs `passes`) and `design` (which
+//! needs `target`). Unknown keys are errors; numbers are validated as they are
+//! read, and each message names the key, the value and what is allowed.
+
+use serde::{Deserialize, Serialize};
+
+use crate::flow::FlowLaw;
+use crate::param::{self, Ends, ParamError};
+use crate::pass::{Die, Method};
+use crate::size::Diameter;
+
+/// Why a schedule file cannot be used.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+pub enum ScheduleError {
+    /// The YAML is malformed or a key is unknown, missing or of the wrong type;
+    /// the message carries the line and column.
+    #[error("{0}")]
+    Syntax(String),
+    /// A value is out of range (`key` is its path in the file).
+    #[error("{key}: {source}")]
+    Value {
+        /// Path of the key in the file (`passes[3].exit`).
+        key: String,
+        /// What is wrong with it.
+        source: ParamError,
+    },
+    /// A pass could not be evaluated.
+    #[error("{key}: {source}")]
+    Pass {
+        /// Path of the step in the file (`passes[3]`).
+        key: String,
+        /// The core's reason.
+        source: crate::pass::PassError,
+    },
+    /// The file lacks a key that this use of it needs.
+    #[error("{key} is missing: {why}")]
+    Missing {
+        /// The key that is needed.
+        key: String,
+        /// Why it is needed.
+        why: String,
+    },
+}
+
+/// Default fraction of the deformation work that becomes heat (Taylor-Quinney
+/// 0.9 to 0.95; from memory).
+pub const DEFAULT_HEAT_FRACTION: f64 = 0.9;
+/// Default ambient (and die-entry wire) temperature, deg C.
+pub const DEFAULT_AMBIENT_C: f64 = 25.0;
+/// Default shift length, hours.
+pub const DEFAULT_SHIFT_HOURS: f64 = 8.0;
+/// Default line utilisation (running time over shift time), common practice.
+pub const DEFAULT_UTILISATION: f64 = 0.85;
+/// Default largest distance from the optimum semi-angle before a pass is flagged, degrees.
+pub const DEFAULT_ANGLE_TOLERANCE_DEG: f64 = 3.0;
+/// Default governing method: the most conservative of the four physical estimates.
+pub const DEFAULT_METHOD: Method = Method::Max;
+
+/// A whole schedule (or design) file.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct ScheduleFile {
+    /// Free text.
+    #[serde(default)]
+    pub title: String,
+    /// The stock and its flow law.
+    pub material: Material,
+    /// The starting rod or wire.
+    pub start: Start,
+    /// Die defaults for every draw pass.
+    pub dies: DieDefaults,
+    /// The mill's limits.
+    pub limits: Limits,
+    /// Line speed and capacity (optional).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub line: Option<Line>,
+    /// What to design (design files only).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub target: Option<Target>,
+    /// The steps in order (schedule files only).
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub passes: Vec<Step>,
+}
+
+/// The stock.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Material {
+    /// Free text.
+    #[serde(default)]
+    pub label: String,
+    /// Density, kg/m^3.
+    pub density_kg_m3: f64,
+    /// Specific heat, J/(kg K).
+    pub specific_heat_j_kg_k: f64,
+    /// Flow law of the stock as it starts.
+    pub flow: FlowLaw,
+    /// Flow law after an anneal; default: `flow`.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub annealed_flow: Option<FlowLaw>,
+    /// Accumulated strain at which an anneal is due; default: no limit.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub cold_work_limit: Option<f64>,
+    /// Fraction of the die work that heats the wire; default 0.9.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub heat_fraction: Option<f64>,
+}
+
+/// The starting stock.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Start {
+    /// Start diameter (mm, or a string with unit or gauge).
+    pub diameter: Diameter,
+    /// Cold work already in the stock (accumulated true strain); default 0.
+    #[serde(default, skip_serializing_if = "is_zero")]
+    pub strain: f64,
+}
+
+fn is_zero(x: &f64) -> bool {
+    *x == 0.0
+}
+
+/// Die settings for every draw pass; each may be overridden on a pass.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct DieDefaults {
+    /// Semi-angle, degrees (check files need it; design files may give `semi_angles_deg`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub semi_angle_deg: Option<f64>,
+    /// The die stock to choose from, degrees (design files).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub semi_angles_deg: Option<Vec<f64>>,
+    /// Coulomb friction mu.
+    pub friction: f64,
+    /// Shear factor m for the upper bound; default `min(1, sqrt(3) mu)`.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub friction_factor: Option<f64>,
+    /// Die land length, mm; default 0.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub land_length_mm: Option<f64>,
+    /// Drawing efficiency for the efficiency method.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub efficiency: Option<f64>,
+}
+
+/// The mill's limits and the method that governs them.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Limits {
+    /// Governing method; default `max`.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub method: Option<Method>,
+    /// Draw ratio above which a pass is near the limit.
+    pub draw_ratio_warn: f64,
+    /// Draw ratio above which a pass is over the limit.
+    pub draw_ratio_max: f64,
+    /// Delta above which central bursts are a risk.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub delta_max: Option<f64>,
+    /// Highest mean wire temperature at a die exit, deg C.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub wire_temperature_max_c: Option<f64>,
+    /// Ambient temperature, deg C; the wire enters every die at it. Default 25.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub ambient_c: Option<f64>,
+    /// Largest distance from the optimum semi-angle before a pass is flagged, degrees; default 3.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub angle_tolerance_deg: Option<f64>,
+    /// C of the redundant-work factor; default 0.21.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub redundant_c: Option<f64>,
+}
+
+/// Line speed and capacity.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Line {
+    /// Speed of the finished wire, m/s.
+    pub finish_speed_m_s: f64,
+    /// Motor power limit per die (block), kW.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub block_power_kw: Option<f64>,
+    /// Mass of one finished coil or spool, kg.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub coil_mass_kg: Option<f64>,
+    /// Shift length, hours; default 8.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub shift_hours: Option<f64>,
+    /// Running time over shift time; default 0.85.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub utilisation: Option<f64>,
+}
+
+/// A strength window, MPa.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Window {
+    /// Lowest allowed, MPa.
+    pub min: f64,
+    /// Highest allowed, MPa.
+    pub max: f64,
+}
+
+/// How a design spreads the strain over its passes.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize, Default)]
+#[serde(rename_all = "kebab-case")]
+pub enum Strategy {
+    /// Every pass at the same draw ratio.
+    #[default]
+    EqualRatio,
+    /// Every pass with the same strain.
+    EqualStrain,
+    /// Each pass's strain a fixed fraction of the one before.
+    Tapered,
+}
+
+/// What a design file asks for.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Target {
+    /// Finished diameter.
+    pub diameter: Diameter,
+    /// Finished flow-stress window (temper), MPa.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub strength_mpa: Option<Window>,
+    /// Largest area reduction of a pass.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub reduction_max: Option<f64>,
+    /// Smallest area reduction of a pass.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub reduction_min: Option<f64>,
+    /// How the strain is spread; default equal-ratio.
+    #[serde(default)]
+    pub strategy: Strategy,
+    /// For `tapered`: each pass's strain this fraction of the one before.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub taper: Option<f64>,
+    /// Most draw passes to consider.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub max_passes: Option<u32>,
+}
+
+/// One step of a schedule: a draw pass or an anneal.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(try_from = "StepText", into = "StepText")]
+pub enum Step {
+    /// A draw through one die.
+    Draw(DrawStep),
+    /// An anneal: the strain goes back to 0 and the annealed law applies.
+    Anneal,
+}
+
+/// A draw pass: its die size and any die setting that differs from `dies`.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct DrawStep {
+    /// Exit diameter (die size).
+    pub exit: Option<Diameter>,
+    /// Semi-angle, degrees.
+    pub semi_angle_deg: Option<f64>,
+    /// Coulomb friction mu.
+    pub friction: Option<f64>,
+    /// Shear factor m.
+    pub friction_factor: Option<f64>,
+    /// Land length, mm.
+    pub land_length_mm: Option<f64>,
+    /// Drawing efficiency.
+    pub efficiency: Option<f64>,
+    /// Back tension, MPa.
+    pub back_tension_mpa: Option<f64>,
+}
+
+/// An anneal step's settings (none yet: `anneal: {}`).
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, Default)]
+#[serde(deny_unknown_fields)]
+pub struct AnnealText {}
+
+/// A step as written: the union of the draw keys and `anneal`.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, Default)]
+#[serde(deny_unknown_fields)]
+pub struct StepText {
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    exit: Option<Diameter>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    anneal: Option<AnnealText>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    semi_angle_deg: Option<f64>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    friction: Option<f64>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    friction_factor: Option<f64>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    land_length_mm: Option<f64>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    efficiency: Option<f64>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    back_tension_mpa: Option<f64>,
+}
+
+impl TryFrom<StepText> for Step {
+    type Error = String;
+    fn try_from(t: StepText) -> Result<Self, String> {
+        let die_keys = t.semi_angle_deg.is_some()
+            || t.friction.is_some()
+            || t.friction_factor.is_some()
+            || t.land_length_mm.is_some()
+            || t.efficiency.is_some()
+            || t.back_tension_mpa.is_some();
+        match (t.exit, t.anneal) {
+            (Some(_), Some(_)) => Err(
+                "a step is either a draw (`exit: ...`) or an anneal (`anneal: {}`), not both"
+                    .into(),
+            ),
+            (None, Some(_)) if die_keys => {
+                Err("an anneal step takes no die keys; put them on the next draw pass".into())
+            }
+            (None, Some(_)) => Ok(Step::Anneal),
+            (None, None) => Err("a step needs `exit: <diameter>` (a draw) or `anneal: {}`".into()),
+            (Some(exit), None) => Ok(Step::Draw(DrawStep {
+                exit: Some(exit),
+                semi_angle_deg: t.semi_angle_deg,
+                friction: t.friction,
+                friction_factor: t.friction_factor,
+                land_length_mm: t.land_length_mm,
+                efficiency: t.efficiency,
+                back_tension_mpa: t.back_tension_mpa,
+            })),
+        }
+    }
+}
+
+impl From<Step> for StepText {
+    fn from(s: Step) -> Self {
+        match s {
+            Step::Anneal => StepText {
+                anneal: Some(AnnealText {}),
+                ..StepText::default()
+            },
+            Step::Draw(d) => StepText {
+                exit: d.exit,
+                anneal: None,
+                semi_angle_deg: d.semi_angle_deg,
+                friction: d.friction,
+                friction_factor: d.friction_factor,
+                land_length_mm: d.land_length_mm,
+                efficiency: d.efficiency,
+                back_tension_mpa: d.back_tension_mpa,
+            },
+        }
+    }
+}
+
+/// Reads a schedule or design file from YAML text. Syntax errors, unknown
+/// keys and type errors come back with their line and column; then every
+/// value is checked by [`ScheduleFile::validate`].
+pub fn parse(text: &str) -> Result<ScheduleFile, ScheduleError> {
+    let file: ScheduleFile =
+        serde_yaml::from_str(text).map_err(|e| ScheduleError::Syntax(e.to_string()))?;
+    file.validate()?;
+    Ok(file)
+}
+
+fn value(key: &str, r: Result<f64, ParamError>) -> Result<f64, ScheduleError> {
+    r.map_err(|source| ScheduleError::Value {
+        key: key.to_string(),
+        source,
+    })
+}
+
+impl ScheduleFile {
+    /// Checks every value that serde cannot: ranges of the material, limits,
+    /// line and target numbers, and the die defaults.
+    pub fn validate(&self) -> Result<(), ScheduleError> {
+        let m = &self.material;
+        value(
+            "material.density_kg_m3",
+            param::positive("density_kg_m3", m.density_kg_m3),
+        )?;
+        value(
+            "material.specific_heat_j_kg_k",
+            param::positive("specific_heat_j_kg_k", m.specific_heat_j_kg_k),
+        )?;
+        if let Some(c) = m.cold_work_limit {
+            value(
+                "material.cold_work_limit",
+                param::positive("cold_work_limit", c),
+            )?;
+        }
+        if let Some(b) = m.heat_fraction {
+            value(
+                "material.heat_fraction",
+                param::within("heat_fraction", b, 0.0, 1.0, Ends::Closed),
+            )?;
+        }
+        value(
+            "start.strain",
+            param::non_negative("strain", self.start.strain),
+        )?;
+        let d = &self.dies;
+        if let Some(a) = d.semi_angle_deg {
+            value(
+                "dies.semi_angle_deg",
+                param::within("semi_angle_deg", a, 0.0, 45.0, Ends::Open),
+            )?;
+        }
+        if let Some(list) = &d.semi_angles_deg {
+            if list.is_empty() {
+                return Err(ScheduleError::Value {
+                    key: "dies.semi_angles_deg".into(),
+                    source: ParamError::new("semi_angles_deg", "[]", "needs at least one angle"),
+                });
+            }
+            for (i, a) in list.iter().enumerate() {
+                value(
+                    &format!("dies.semi_angles_deg[{i}]"),
+                    param::within("semi_angle_deg", *a, 0.0, 45.0, Ends::Open),
+                )?;
+            }
+        }
+        self.die_for(&DrawStep::default(), d.semi_angle_deg.unwrap_or(6.0))
+            .map_err(|source| ScheduleError::Pass {
+                key: "dies".into(),
+                source,
+            })?;
+        let l = &self.limits;
+        value(
+            "limits.draw_ratio_warn",
+            param::positive("draw_ratio_warn", l.draw_ratio_warn),
+        )?;
+        value(
+            "limits.draw_ratio_max",
+            param::positive("draw_ratio_max", l.draw_ratio_max),
+        )?;
+        if l.draw_ratio_warn > l.draw_ratio_max {
+            return Err(ScheduleError::Value {
+                key: "limits.draw_ratio_warn".into(),
+                source: ParamError::new(
+                    "draw_ratio_warn",
+                    l.draw_ratio_warn,
+                    format!("must not exceed draw_ratio_max ({})", l.draw_ratio_max),
+                ),
+            });
+        }
+        if let Some(x) = l.delta_max {
+            value("limits.delta_max", param::positive("delta_max", x))?;
+        }
+        if let Some(x) = l.wire_temperature_max_c {
+            value(
+                "limits.wire_temperature_max_c",
+                param::finite("wire_temperature_max_c", x),
+            )?;
+        }
+        if let Some(x) = l.ambient_c {
+            value(
+                "limits.ambient_c",
+                param::within("ambient_c", x, -50.0, 100.0, Ends::Closed),
+            )?;
+        }
+        if let Some(x) = l.angle_tolerance_deg {
+            value(
+                "limits.angle_tolerance_deg",
+                param::positive("angle_tolerance_deg", x),
+            )?;
+        }
+        if let Some(x) = l.redundant_c {
+            value("limits.redundant_c", param::non_negative("redundant_c", x))?;
+        }
+        if l.method == Some(Method::Efficiency) && d.efficiency.is_none() {
+            return Err(ScheduleError::Missing {
+                key: "dies.efficiency".into(),
+                why: "limits.method is efficiency, which divides ideal work by it".into(),
+            });
+        }
+        if let Some(line) = &self.line {
+            value(
+                "line.finish_speed_m_s",
+                param::positive("finish_speed_m_s", line.finish_speed_m_s),
+            )?;
+            if let Some(x) = line.block_power_kw {
+                value("line.block_power_kw", param::positive("block_power_kw", x))?;
+            }
+            if let Some(x) = line.coil_mass_kg {
+                value("line.coil_mass_kg", param::positive("coil_mass_kg", x))?;
+            }
+            if let Some(x) = line.shift_hours {
+                value(
+                    "line.shift_hours",
+                    param::within("shift_hours", x, 0.0, 24.0, Ends::OpenClosed),
+                )?;
+            }
+            if let Some(x) = line.utilisation {
+                value(
+                    "line.utilisation",
+                    param::within("utilisation", x, 0.0, 1.0, Ends::OpenClosed),
+                )?;
+            }
+        }
+        if let Some(t) = &self.target {
+            if let Some(w) = t.strength_mpa {
+                value("target.strength_mpa.min", param::positive("min", w.min))?;
+                value("target.strength_mpa.max", param::positive("max", w.max))?;
+                if w.max < w.min {
+                    return Err(ScheduleError::Value {
+                        key: "target.strength_mpa.max".into(),
+                        source: ParamError::new(
+                            "max",
+                            w.max,
+                            format!("must be at least min ({})", w.min),
+                        ),
+                    });
+                }
+            }
+            for (key, r) in [
+                ("target.reduction_max", t.reduction_max),
+                ("target.reduction_min", t.reduction_min),
+            ] {
+                if let Some(r) = r {
+                    value(key, param::within(&key[7..], r, 0.0, 1.0, Ends::Open))?;
+                }
+            }
+            if let (Some(lo), Some(hi)) = (t.reduction_min, t.reduction_max) {
+                if lo > hi {
+                    return Err(ScheduleError::Value {
+                        key: "target.reduction_min".into(),
+                        source: ParamError::new(
+                            "reduction_min",
+                            lo,
+                            format!("must not exceed reduction_max ({hi})"),
+                        ),
+                    });
+                }
+            }
+            if let Some(x) = t.taper {
+                value(
+                    "target.taper",
+                    param::within("taper", x, 0.0, 1.0, Ends::OpenClosed),
+                )?;
+            }
+            if let Some(n) = t.max_passes {
+                if !(1..=200).contains(&n) {
+                    return Err(ScheduleError::Value {
+                        key: "target.max_passes".into(),
+                        source: ParamError::new("max_passes", n, "must be in [1, 200]"),
+                    });
+                }
+            }
+        }
+        Ok(())
+    }
+
+    /// The die of a draw step: the step's own keys over the file's `dies`,
+    /// with `semi_angle_deg` when neither gives one.
+    pub fn die_for(
+        &self,
+        step: &DrawStep,
+        semi_angle_deg: f64,
+    ) -> Result<Die, crate::pass::PassError> {
+        let d = &self.dies;
+        let die = Die {
+            semi_angle_deg: step
+                .semi_angle_deg
+                .or(d.semi_angle_deg)
+                .unwrap_or(semi_angle_deg),
+            friction: step.friction.unwrap_or(d.friction),
+            friction_factor: step.friction_factor.or(d.friction_factor),
+            land_length_mm: step.land_length_mm.or(d.land_length_mm).unwrap_or(0.0),
+            efficiency: step.efficiency.or(d.efficiency),
+        };
+        die.validate()?;
+        Ok(die)
+    }
+
+    /// The law after an anneal: `annealed_flow`, or `flow` when none is given.
+    pub fn annealed_law(&self) -> &FlowLaw {
+        self.material
+            .annealed_flow
+            .as_ref()
+            .unwrap_or(&self.material.flow)
+    }
+}
