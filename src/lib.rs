@@ -6,6 +6,7 @@
 //! inputs and returns a typed error that names the parameter, its value and
 //! what is allowed.
 
+pub mod design;
 pub mod evaluation;
 pub mod fit;
 pub mod flow;

@@ -17,7 +17,11 @@ pub fn write_file(path: &Path, bytes: &[u8]) -> Result<()> {
     let name = path
         .file_name()
         .with_context(|| format!("'{}' names no file", path.display()))?;
-    let tmp = dir.join(format!(".{}.{}.tmp", name.to_string_lossy(), std::process::id()));
+    let tmp = dir.join(format!(
+        ".{}.{}.tmp",
+        name.to_string_lossy(),
+        std::process::id()
+    ));
     let result = (|| -> io::Result<()> {
         let mut f = std::fs::File::create(&tmp)?;
         f.write_all(bytes)?;

@@ -14,5 +14,8 @@ pub struct DesignArgs {
 
 /// Runs `coldpass design`.
 pub fn run(args: &DesignArgs) -> Result<u8> {
-    bail!("'{}': coldpass design is not built yet", args.file.display())
+    bail!(
+        "'{}': coldpass design is not built yet",
+        args.file.display()
+    )
 }

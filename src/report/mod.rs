@@ -2,6 +2,7 @@
 //! bytes; only `crate::output` writes them anywhere.
 
 pub mod csv;
+pub mod design;
 pub mod fit;
 pub mod svg;
 pub mod table;

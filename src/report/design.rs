@@ -1,0 +1,1 @@
+//! The design summary for `coldpass design` (being built).
