@@ -24,6 +24,24 @@ pub enum FlowError {
     /// A numerical integral could not be trusted.
     #[error(transparent)]
     Quadrature(#[from] QuadratureError),
+    /// A result is too large (or too small) for floating point: valid but
+    /// extreme constants or strains.
+    #[error("the {quantity} overflows floating point ({value}); the law's constants or the strain are too extreme")]
+    Overflow {
+        /// What overflowed, in words (`flow-stress integral`).
+        quantity: &'static str,
+        /// The value it came to (an infinity or NaN).
+        value: f64,
+    },
+}
+
+/// `value` if it is finite, else [`FlowError::Overflow`] naming `quantity`.
+fn finite_or_overflow(quantity: &'static str, value: f64) -> Result<f64, FlowError> {
+    if value.is_finite() {
+        Ok(value)
+    } else {
+        Err(FlowError::Overflow { quantity, value })
+    }
 }
 
 /// What a `points` table does beyond its last strain.
@@ -288,7 +306,7 @@ impl FlowLaw {
     pub fn integral_mpa(&self, e1: f64, e2: f64) -> Result<f64, FlowError> {
         check_interval(e1, e2)?;
         let d = e2 - e1;
-        Ok(match &self.0 {
+        let integral = match &self.0 {
             FlowLawSpec::PerfectlyPlastic { yield_mpa } => yield_mpa * d,
             FlowLawSpec::Linear {
                 yield_mpa,
@@ -313,7 +331,8 @@ impl FlowLaw {
                 saturation_mpa * d - (saturation_mpa - sigma0_mpa) * eps_c * drop
             }
             FlowLawSpec::Points { points, beyond } => table_integral(points, *beyond, e1, e2),
-        })
+        };
+        finite_or_overflow("flow-stress integral", integral)
     }
 
     /// Mean flow stress over `[e1, e2]` (MPa): `integral / (e2 - e1)`, or the
@@ -321,9 +340,9 @@ impl FlowLaw {
     pub fn mean_stress_mpa(&self, e1: f64, e2: f64) -> Result<f64, FlowError> {
         check_interval(e1, e2)?;
         if e2 == e1 {
-            return Ok(self.stress_mpa(e1));
+            return finite_or_overflow("flow stress", self.stress_mpa(e1));
         }
-        Ok(self.integral_mpa(e1, e2)? / (e2 - e1))
+        finite_or_overflow("mean flow stress", self.integral_mpa(e1, e2)? / (e2 - e1))
     }
 
     /// The same integral as [`FlowLaw::integral_mpa`] by adaptive double-exponential
@@ -434,7 +453,11 @@ impl FlowLaw {
             } => -eps_c * ((saturation_mpa - s) / (saturation_mpa - sigma0_mpa)).ln(),
             FlowLawSpec::Points { points, .. } => table_inverse(points, s),
         };
-        Ok(StrainAt::Reached(e))
+        // An exponent near 0 or a modulus near 0 can put the strain beyond f64.
+        Ok(StrainAt::Reached(finite_or_overflow(
+            "strain at that stress",
+            e,
+        )?))
     }
 }
 
@@ -650,5 +673,28 @@ mod tests {
         assert!(FlowLaw::points(vec![[0.0, 100.0], [0.0, 200.0]], Beyond::Flat).is_err());
         assert!(FlowLaw::points(vec![[0.0, 100.0]], Beyond::Flat).is_err());
         assert!(FlowLaw::points(vec![[0.0, 200.0], [1.0, 100.0]], Beyond::Slope).is_err());
+    }
+
+    #[test]
+    fn strain_beyond_f64_is_an_overflow_error_not_infinity() {
+        // (200/100)^(1/1e-300) overflows: a valid law, an unreachable-in-practice stress.
+        let law = FlowLaw::hollomon(100.0, 1e-300).unwrap();
+        assert!(matches!(
+            law.strain_at_stress(200.0),
+            Err(FlowError::Overflow { .. })
+        ));
+    }
+
+    #[test]
+    fn integral_that_overflows_is_an_overflow_error_not_infinity() {
+        let law = FlowLaw::linear(1e300, 1e300).unwrap();
+        assert!(matches!(
+            law.mean_stress_mpa(0.0, 1e300),
+            Err(FlowError::Overflow { .. })
+        ));
+        assert!(matches!(
+            law.integral_mpa(0.0, 1e300),
+            Err(FlowError::Overflow { .. })
+        ));
     }
 }

@@ -50,6 +50,24 @@ pub enum PassError {
     /// The efficiency method was asked for and the die has no efficiency.
     #[error("the efficiency method needs a drawing efficiency (`efficiency`, in (0, 1]) and none was given")]
     MissingEfficiency,
+    /// A result is too large (or too small) for floating point: valid but
+    /// extreme sizes, flow-law constants or back tension.
+    #[error("the {quantity} of the pass overflows floating point ({value}); the sizes, flow law or back tension are too extreme")]
+    Overflow {
+        /// What overflowed, in words (`drawing stress by sachs`).
+        quantity: &'static str,
+        /// The value it came to (an infinity or NaN).
+        value: f64,
+    },
+}
+
+/// `value` if it is finite, else [`PassError::Overflow`] naming `quantity`.
+fn finite_or_overflow(quantity: &'static str, value: f64) -> Result<f64, PassError> {
+    if value.is_finite() {
+        Ok(value)
+    } else {
+        Err(PassError::Overflow { quantity, value })
+    }
 }
 
 impl From<quad::QuadratureError> for PassError {
@@ -318,7 +336,11 @@ impl PassMechanics {
     /// Draw ratio `sigma_d / sigma_f(exit)` for `method`: below 1 in theory,
     /// 0.6 to 0.8 as a working ceiling (common practice).
     pub fn draw_ratio(&self, method: Method) -> Result<f64, PassError> {
-        Ok(self.draw_stress_mpa.get(method)? / self.flow_stress_exit_mpa)
+        // A flow stress that underflows to 0 would give an infinite ratio.
+        finite_or_overflow(
+            "draw ratio",
+            self.draw_stress_mpa.get(method)? / self.flow_stress_exit_mpa,
+        )
     }
 }
 
@@ -566,7 +588,7 @@ pub fn analyse_pass(
     let sachs = p.sachs(alpha)?;
     let (m, derived) = pass.die.shear_factor();
     let strain_after = p.strain_before + p.eps;
-    Ok(PassMechanics {
+    let result = PassMechanics {
         entry_diameter_mm: pass.entry_diameter_mm,
         exit_diameter_mm: pass.exit_diameter_mm,
         area_reduction: p.reduction,
@@ -593,7 +615,26 @@ pub fn analyse_pass(
             redundant: p.redundant(alpha, sachs),
             upper_bound: p.upper_bound(alpha),
         },
-    })
+    };
+    // Valid but extreme inputs (a law constant near f64::MAX, a subnormal
+    // yield stress) can overflow; report that rather than return infinities.
+    let s = &result.draw_stress_mpa;
+    for (quantity, value) in [
+        ("elongation", result.elongation),
+        ("deformation-zone shape Delta", result.delta),
+        ("redundant-work factor", result.redundant_factor),
+        ("entry flow stress", result.flow_stress_entry_mpa),
+        ("exit flow stress", result.flow_stress_exit_mpa),
+        ("drawing stress by ideal work", s.ideal),
+        ("drawing stress by efficiency", s.efficiency.unwrap_or(0.0)),
+        ("drawing stress by sachs", s.sachs),
+        ("drawing stress by siebel", s.siebel),
+        ("drawing stress by redundant work", s.redundant),
+        ("drawing stress by upper bound", s.upper_bound),
+    ] {
+        finite_or_overflow(quantity, value)?;
+    }
+    Ok(result)
 }
 
 /// The semi-angle in [1, 20] degrees that minimises `method`'s drawing stress
@@ -613,7 +654,7 @@ pub fn optimum_semi_angle(
     if !method.depends_on_angle() {
         return Ok(None);
     }
-    let f = |deg: f64| p.stress(method, deg.to_radians());
+    let f = |deg: f64| finite_or_overflow("drawing stress", p.stress(method, deg.to_radians())?);
     const SCAN: usize = 8;
     let (lo, hi) = (OPTIMUM_SEARCH_MIN_DEG, OPTIMUM_SEARCH_MAX_DEG);
     let step = (hi - lo) / (SCAN - 1) as f64;
@@ -807,5 +848,39 @@ mod tests {
             assert_eq!(m.name().parse::<Method>().unwrap(), m);
         }
         assert!("fast".parse::<Method>().is_err());
+    }
+
+    #[test]
+    fn huge_flow_stress_gives_an_overflow_error_not_infinite_stresses() {
+        // Each term is finite; back tension plus sigma_bar eps is not.
+        let law = FlowLaw::perfectly_plastic(1e308).unwrap();
+        let pass = DrawPass {
+            entry_diameter_mm: 10.0,
+            exit_diameter_mm: 5.0,
+            strain_before: 0.0,
+            back_tension_mpa: 1e308,
+            die: Die::new(6.0, 0.05).unwrap(),
+        };
+        let e = analyse_pass(&law, &pass, &Settings::default()).unwrap_err();
+        assert!(matches!(e, PassError::Overflow { .. }), "{e}");
+        let e = optimum_semi_angle(&law, &pass, &Settings::default(), Method::Siebel).unwrap_err();
+        assert!(matches!(e, PassError::Overflow { .. }), "{e}");
+    }
+
+    #[test]
+    fn subnormal_flow_stress_gives_an_overflow_error_not_an_infinite_draw_ratio() {
+        let law = FlowLaw::perfectly_plastic(5e-324).unwrap();
+        let pass = DrawPass {
+            entry_diameter_mm: 0.05,
+            exit_diameter_mm: 0.0499,
+            strain_before: 0.0,
+            back_tension_mpa: 167.0,
+            die: Die::new(0.5, 0.0).unwrap(),
+        };
+        let r = analyse_pass(&law, &pass, &Settings::default()).unwrap();
+        assert!(matches!(
+            r.draw_ratio(Method::Ideal),
+            Err(PassError::Overflow { .. })
+        ));
     }
 }

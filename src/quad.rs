@@ -35,6 +35,14 @@ pub enum QuadratureError {
         /// Integrand evaluations spent.
         evaluations: u32,
     },
+    /// Each piece is finite but their sum is not.
+    #[error("the integral over [{a}, {b}] overflows floating point")]
+    Overflow {
+        /// Lower limit.
+        a: f64,
+        /// Upper limit.
+        b: f64,
+    },
     /// A limit of integration is not finite.
     #[error("the limits of integration must be finite (got [{a}, {b}])")]
     BadLimits {
@@ -106,6 +114,9 @@ where
         total.value += piece.value;
         total.error_estimate += piece.error_estimate;
         total.evaluations += piece.evaluations;
+    }
+    if !total.value.is_finite() || !total.error_estimate.is_finite() {
+        return Err(QuadratureError::Overflow { a, b });
     }
     total.value *= sign;
     Ok(total)
@@ -190,5 +201,12 @@ mod tests {
     fn reversed_limits_change_the_sign() {
         let r = integrate(|x| x, 1.0, 0.0, 1e-12, &[]).unwrap();
         assert!((r.value + 0.5).abs() < 1e-12);
+    }
+
+    #[test]
+    fn finite_pieces_whose_sum_overflows_are_an_error() {
+        // Each quarter integrates to 5e307; the whole, 2e308, is beyond f64.
+        let r = integrate(|_| 5e307, 0.0, 4.0, 1e295, &[1.0, 2.0, 3.0]);
+        assert!(matches!(r, Err(QuadratureError::Overflow { .. })), "{r:?}");
     }
 }
