@@ -225,7 +225,7 @@ pub struct EvaluateOptions {
 fn pass_error(i: usize, source: pass::PassError) -> ScheduleError {
     ScheduleError::Pass {
         key: format!("passes[{i}]"),
-        source,
+        problem: source,
     }
 }
 
@@ -337,10 +337,10 @@ pub fn evaluate(
         if d_out >= d_in {
             return Err(ScheduleError::Value {
                 key: format!("passes[{i}].exit"),
-                source: ParamError::new(
+                problem: ParamError::new(
                     "exit",
-                    format!("{d_out:.4} mm ({exit})"),
-                    format!("must be below its entry diameter ({d_in:.4} mm)"),
+                    exit,
+                    format!("must be below its entry diameter ({d_in} mm)"),
                 ),
             });
         }

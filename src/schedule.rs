@@ -20,20 +20,20 @@ pub enum ScheduleError {
     #[error("{0}")]
     Syntax(String),
     /// A value is out of range (`key` is its path in the file).
-    #[error("{key}: {source}")]
+    #[error("{key}: {problem}")]
     Value {
         /// Path of the key in the file (`passes[3].exit`).
         key: String,
         /// What is wrong with it.
-        source: ParamError,
+        problem: ParamError,
     },
     /// A pass could not be evaluated.
-    #[error("{key}: {source}")]
+    #[error("{key}: {problem}")]
     Pass {
         /// Path of the step in the file (`passes[3]`).
         key: String,
         /// The core's reason.
-        source: crate::pass::PassError,
+        problem: crate::pass::PassError,
     },
     /// The file lacks a key that this use of it needs.
     #[error("{key} is missing: {why}")]
@@ -364,9 +364,9 @@ pub fn parse(text: &str) -> Result<ScheduleFile, ScheduleError> {
 }
 
 fn value(key: &str, r: Result<f64, ParamError>) -> Result<f64, ScheduleError> {
-    r.map_err(|source| ScheduleError::Value {
+    r.map_err(|problem| ScheduleError::Value {
         key: key.to_string(),
-        source,
+        problem,
     })
 }
 
@@ -410,7 +410,7 @@ impl ScheduleFile {
             if list.is_empty() {
                 return Err(ScheduleError::Value {
                     key: "dies.semi_angles_deg".into(),
-                    source: ParamError::new("semi_angles_deg", "[]", "needs at least one angle"),
+                    problem: ParamError::new("semi_angles_deg", "[]", "needs at least one angle"),
                 });
             }
             for (i, a) in list.iter().enumerate() {
@@ -421,9 +421,9 @@ impl ScheduleFile {
             }
         }
         self.die_for(&DrawStep::default(), d.semi_angle_deg.unwrap_or(6.0))
-            .map_err(|source| ScheduleError::Pass {
+            .map_err(|problem| ScheduleError::Pass {
                 key: "dies".into(),
-                source,
+                problem,
             })?;
         let l = &self.limits;
         value(
@@ -437,7 +437,7 @@ impl ScheduleFile {
         if l.draw_ratio_warn > l.draw_ratio_max {
             return Err(ScheduleError::Value {
                 key: "limits.draw_ratio_warn".into(),
-                source: ParamError::new(
+                problem: ParamError::new(
                     "draw_ratio_warn",
                     l.draw_ratio_warn,
                     format!("must not exceed draw_ratio_max ({})", l.draw_ratio_max),
@@ -505,7 +505,7 @@ impl ScheduleFile {
                 if w.max < w.min {
                     return Err(ScheduleError::Value {
                         key: "target.strength_mpa.max".into(),
-                        source: ParamError::new(
+                        problem: ParamError::new(
                             "max",
                             w.max,
                             format!("must be at least min ({})", w.min),
@@ -525,7 +525,7 @@ impl ScheduleFile {
                 if lo > hi {
                     return Err(ScheduleError::Value {
                         key: "target.reduction_min".into(),
-                        source: ParamError::new(
+                        problem: ParamError::new(
                             "reduction_min",
                             lo,
                             format!("must not exceed reduction_max ({hi})"),
@@ -543,7 +543,7 @@ impl ScheduleFile {
                 if !(1..=200).contains(&n) {
                     return Err(ScheduleError::Value {
                         key: "target.max_passes".into(),
-                        source: ParamError::new("max_passes", n, "must be in [1, 200]"),
+                        problem: ParamError::new("max_passes", n, "must be in [1, 200]"),
                     });
                 }
             }
