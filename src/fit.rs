@@ -1027,8 +1027,8 @@ fn finish(
 pub fn fit_law(law: FitLaw, strain: &[f64], stress_mpa: &[f64]) -> Result<LawFit, FitError> {
     same_length("stress", stress_mpa, "strain", strain)?;
     let needed = match law {
-        FitLaw::PerfectlyPlastic => 2,
-        FitLaw::Linear | FitLaw::Hollomon => 3,
+        FitLaw::PerfectlyPlastic => 1,
+        FitLaw::Linear | FitLaw::Hollomon => 2,
         _ => 4,
     };
     let (x, y): (Vec<f64>, Vec<f64>) = strain
@@ -1076,11 +1076,7 @@ fn fit_constant(y: &[f64]) -> LawFit {
     let se = (ssr / (m - 1.0) / m).sqrt();
     finish(
         FitLaw::PerfectlyPlastic,
-        vec![ParamEstimate {
-            name: "yield_mpa",
-            value: mean,
-            std_error: Some(se),
-        }],
+        vec![estimate("yield_mpa", mean, se)],
         y,
         |_| mean,
         true,
