@@ -27,8 +27,8 @@ HERE = os.path.dirname(os.path.abspath(__file__))
 OUT = os.path.join(HERE, "core_reference.json")
 
 ENTRY_DIAMETER_MM = 10.0
-TABLE = [[0.0, 100.0], [0.3, 220.0], [0.9, 300.0], [2.0, 360.0]]
-# Valid with `beyond: flat` only: a falling segment inside, a rising last one.
+TABLE = [[0.0, 100.0], [0.3, 220.0], [0.9, 300.0], [1.5, 360.0]]
+# A table whose flow stress falls over its middle segment (still valid).
 TABLE_DIP = [[0.0, 150.0], [0.4, 320.0], [0.8, 300.0], [1.4, 340.0]]
 
 # Law specs in coldpass's serde shape. Hollomon constants from Dieter Example
@@ -46,7 +46,8 @@ LAWS = [
     {"law": "points", "points": TABLE, "beyond": "flat"},
     {"law": "points", "points": TABLE_DIP, "beyond": "flat"},
 ]
-STRAINS_BEFORE = [0.0, 0.35, 1.2]
+# Passes inside the tables, across their last point and wholly beyond it.
+STRAINS_BEFORE = [0.0, 0.35, 1.3, 2.2]
 PASS_STRAINS = [0.05, math.log(1.0 / 0.8), 0.6]
 DIES = [(3.0, 0.03), (6.0, 0.09), (15.0, 0.12), (8.0, 0.0)]  # (semi-angle deg, mu)
 BACK_TENSIONS_MPA = [0.0, 60.0]
