@@ -1,21 +1,73 @@
-//! `coldpass design` (in progress).
+//! `coldpass design FILE`: lay out the passes, die angles and anneals that
+//! meet the mill's limits, report the designed schedule as `check` would,
+//! and optionally write it as a schedule file.
 
 use std::path::PathBuf;
 
-use anyhow::{bail, Result};
+use anyhow::{Context, Result};
 use clap::Args;
+use coldpass::design::{design, schedule_yaml, DesignOptions};
+use coldpass::schedule;
+use coldpass::Method;
+
+use super::check::parse_method;
+use super::{EXIT_OK, EXIT_OVER};
+use crate::cli::ReportArgs;
+use crate::{output, report};
 
 /// Arguments of `coldpass design`.
 #[derive(Debug, Args)]
 pub struct DesignArgs {
-    /// Input file.
+    /// The design file (YAML): a schedule file's blocks plus `target`, no `passes`.
     pub file: PathBuf,
+    /// Governing method, overriding the file's `limits.method` (written into the emitted schedule).
+    #[arg(long, value_name = "NAME", value_parser = parse_method)]
+    pub method: Option<Method>,
+    #[command(flatten)]
+    pub report: ReportArgs,
+    /// Also write the designed schedule to this file, for `coldpass check`
+    /// (diameters at full precision; written whole or not at all).
+    #[arg(long, value_name = "FILE.yaml")]
+    pub emit_schedule: Option<PathBuf>,
 }
 
-/// Runs `coldpass design`.
+/// Runs `coldpass design`: exit 0 when a design meets every limit, 1 when
+/// none can (the message names the binding constraint) or the file is bad.
 pub fn run(args: &DesignArgs) -> Result<u8> {
-    bail!(
-        "'{}': coldpass design is not built yet",
-        args.file.display()
+    let name = args.file.display().to_string();
+    let text = output::read_to_string(&args.file)?;
+    let file = schedule::parse(&text).with_context(|| format!("reading design '{name}'"))?;
+    let d = design(
+        &file,
+        &DesignOptions {
+            method: args.method,
+        },
     )
+    .with_context(|| format!("designing '{name}'"))?;
+    // Render everything before writing anything, so a failure leaves no partial output.
+    let body = report::design::render(&d, args.report.format)?;
+    let chart = match &args.report.plot {
+        Some(_) => Some(report::svg::schedule(&d.report, &d.schedule)?),
+        None => None,
+    };
+    let emitted = match &args.emit_schedule {
+        Some(_) => Some(schedule_yaml(
+            &d,
+            &report::design::emitted_header(&d, &name),
+        )?),
+        None => None,
+    };
+    if let (Some(path), Some(yaml)) = (&args.emit_schedule, &emitted) {
+        output::write_file(path, yaml.as_bytes())?;
+    }
+    if let (Some(path), Some(svg)) = (&args.report.plot, &chart) {
+        output::write_file(path, svg)?;
+    }
+    output::emit(args.report.output.as_deref(), &body)?;
+    // A design is checked before it is returned; an over-limit verdict would be a fault.
+    Ok(if d.report.is_over() {
+        EXIT_OVER
+    } else {
+        EXIT_OK
+    })
 }

@@ -1,1 +1,197 @@
-//! The design summary for `coldpass design` (being built).
+//! The design summary of `coldpass design`, in every format.
+//!
+//! - table: a short design section (strategy, runs, anneals and why each is
+//!   there) above the same tables `check` prints for the designed schedule;
+//! - JSON and YAML: `{design: <summary>, schedule: <the check report>}`, the
+//!   `schedule` part exactly what `check --format json` gives for the emitted file;
+//! - CSV: the check CSV, one row per step, with four more columns: `strategy`,
+//!   `run` (the run between anneals the step belongs to; an anneal ends its run),
+//!   `anneal_reason` (`cold-work` or `temper` on anneal rows) and `caution`.
+
+use anyhow::Result;
+use coldpass::design::Design;
+use coldpass::evaluation::StepKind;
+use serde::Serialize;
+use tabled::builder::Builder;
+use tabled::settings::object::Columns;
+use tabled::settings::{Alignment, Style};
+
+use super::fixed;
+use crate::cli::Format;
+
+#[derive(Serialize)]
+struct Whole<'a> {
+    design: &'a coldpass::design::DesignSummary,
+    schedule: &'a coldpass::evaluation::ScheduleReport,
+}
+
+/// Renders a design in `format` (see the module documentation for the layout).
+pub fn render(d: &Design, format: Format) -> Result<Vec<u8>> {
+    let whole = Whole {
+        design: &d.summary,
+        schedule: &d.report,
+    };
+    Ok(match format {
+        Format::Table => {
+            let mut s = summary(d);
+            s.push('\n');
+            s.push_str(&super::table::schedule(&d.report));
+            s.into_bytes()
+        }
+        Format::Json => {
+            let mut s = serde_json::to_string_pretty(&whole)?;
+            s.push('\n');
+            s.into_bytes()
+        }
+        Format::Yaml => serde_yaml::to_string(&whole)?.into_bytes(),
+        Format::Csv => csv(d)?,
+    })
+}
+
+fn strategy_name(d: &Design) -> String {
+    serde_json::to_value(d.summary.strategy)
+        .ok()
+        .and_then(|v| v.as_str().map(str::to_string))
+        .unwrap_or_default()
+}
+
+/// The short design section of the table output.
+pub fn summary(d: &Design) -> String {
+    let s = &d.summary;
+    let mut out = String::new();
+    let taper = s.taper.map(|t| format!(" (taper {t})")).unwrap_or_default();
+    out.push_str(&format!(
+        "Design: {}{taper}, {} draw passes (at most {}), {} anneal{}; governing method {}\n",
+        strategy_name(d),
+        s.draw_passes,
+        s.max_passes,
+        s.anneals.len(),
+        if s.anneals.len() == 1 { "" } else { "s" },
+        s.method
+    ));
+    let angles: Vec<String> = s.die_angles_deg.iter().map(|a| a.to_string()).collect();
+    out.push_str(&format!(
+        "Die semi-angles chosen from: {} deg; largest draw-ratio spread within a run {:.3} %\n",
+        angles.join(", "),
+        100.0 * s.run_draw_ratio_spread
+    ));
+    match (s.strength_window_mpa, s.aimed_flow_stress_mpa) {
+        (Some(w), aim) => out.push_str(&format!(
+            "Temper window {}-{} MPa, aimed at {} MPa; finished flow stress {} MPa\n",
+            w.min,
+            w.max,
+            fixed(aim, 1),
+            fixed(Some(s.finished_flow_stress_mpa), 1)
+        )),
+        (None, _) => out.push_str(&format!(
+            "Finished flow stress {} MPa (no temper window given)\n",
+            fixed(Some(s.finished_flow_stress_mpa), 1)
+        )),
+    }
+    let mut b = Builder::default();
+    b.push_record([
+        "run",
+        "from mm",
+        "to mm",
+        "run strain",
+        "strain at end",
+        "passes",
+        "draw ratio min",
+        "draw ratio max",
+    ]);
+    for r in &s.runs {
+        b.push_record([
+            r.run.to_string(),
+            fixed(Some(r.from_diameter_mm), 3),
+            fixed(Some(r.to_diameter_mm), 3),
+            fixed(Some(r.strain), 3),
+            fixed(Some(r.strain_after), 3),
+            r.passes.to_string(),
+            fixed(Some(r.draw_ratio_min), 3),
+            fixed(Some(r.draw_ratio_max), 3),
+        ]);
+    }
+    let mut t = b.build();
+    t.with(Style::sharp());
+    t.modify(Columns::new(1..), Alignment::right());
+    out.push_str(&format!("\nRuns between anneals\n{t}\n"));
+    if s.anneals.is_empty() {
+        out.push_str("\nAnneals: none needed\n");
+    } else {
+        out.push_str("\nAnneals\n");
+        for a in &s.anneals {
+            out.push_str(&format!(
+                "- step {} at {} mm ({}): {}\n",
+                a.step,
+                fixed(Some(a.diameter_mm), 3),
+                a.reason.name(),
+                a.why
+            ));
+        }
+    }
+    if !s.notes.is_empty() {
+        out.push_str("\nDesign notes\n");
+        for n in &s.notes {
+            out.push_str(&format!("- {n}\n"));
+        }
+    }
+    out
+}
+
+/// The check CSV with the design's columns added.
+fn csv(d: &Design) -> Result<Vec<u8>> {
+    let base = super::csv::schedule(&d.report)?;
+    let mut r = ::csv::Reader::from_reader(base.as_slice());
+    let mut w = ::csv::Writer::from_writer(Vec::new());
+    let mut header: Vec<String> = r.headers()?.iter().map(str::to_string).collect();
+    header.extend(["strategy", "run", "anneal_reason", "caution"].map(String::from));
+    w.write_record(&header)?;
+    let strategy = strategy_name(d);
+    let mut run = 1usize;
+    for (rec, step) in r.records().zip(&d.report.passes) {
+        let mut row: Vec<String> = rec?.iter().map(str::to_string).collect();
+        let reason = match step.kind {
+            StepKind::Anneal => d
+                .summary
+                .anneals
+                .iter()
+                .find(|a| a.step == step.step)
+                .map(|a| a.reason.name().to_string())
+                .unwrap_or_default(),
+            StepKind::Draw => String::new(),
+        };
+        row.push(strategy.clone());
+        row.push(run.to_string());
+        row.push(reason);
+        row.push(d.report.caution.clone());
+        if step.kind == StepKind::Anneal {
+            run += 1;
+        }
+        w.write_record(&row)?;
+    }
+    Ok(w.into_inner()?)
+}
+
+/// Comment lines at the head of an emitted schedule: where it came from and
+/// what it was designed for (the `target` block is not carried over).
+pub fn emitted_header(d: &Design, source: &str) -> Vec<String> {
+    let s = &d.summary;
+    let mut h = vec![
+        format!("Schedule designed by `coldpass design {source}`."),
+        format!(
+            "Strategy {}, {} draw passes, {} anneal(s), governing method {}; start {} mm, finish {} mm.",
+            strategy_name(d),
+            s.draw_passes,
+            s.anneals.len(),
+            s.method,
+            s.start_diameter_mm,
+            s.finish_diameter_mm
+        ),
+    ];
+    if let Some(w) = s.strength_window_mpa {
+        h.push(format!("Temper window {}-{} MPa.", w.min, w.max));
+    }
+    h.push("Diameters are written at full precision so that `coldpass check` reproduces the design's figures.".into());
+    h.push(d.report.caution.clone());
+    h
+}
