@@ -36,6 +36,11 @@ pub const MIN_ELASTIC_POINTS: usize = 5;
 /// ASTM E8 / ISO 6892-1 proof stress Rp0.2).
 pub const YIELD_OFFSET_STRAIN: f64 = 0.002;
 
+/// How far (percent of the highest stress) the stress must fall after its
+/// highest value for that to count as the maximum load rather than noise at
+/// the end of a test stopped early.
+pub const MAX_LOAD_DROP_PERCENT: f64 = 1.0;
+
 /// Most Levenberg-Marquardt iterations before a fit is reported as not converged.
 pub const MAX_ITERATIONS: usize = 200;
 
@@ -118,12 +123,13 @@ pub enum FitError {
         /// The modulus used for the offset line, GPa.
         youngs_modulus_gpa: f64,
     },
-    /// The highest stress is at the last point: the test stopped before maximum load.
-    #[error("the record never reaches a maximum load: the stress still rises at the last point (point {point}, {stress_mpa} MPa); run the test past maximum load")]
+    /// The stress never falls clearly after its highest value: the test
+    /// stopped before maximum load.
+    #[error("the record never reaches a maximum load: after its highest stress ({stress_mpa} MPa at point {point}) it falls by less than {MAX_LOAD_DROP_PERCENT} % to the last point; run the test past maximum load")]
     NoMaximumLoad {
-        /// 1-based last point.
+        /// 1-based point of the highest stress.
         point: usize,
-        /// Its stress, MPa.
+        /// The highest stress, MPa.
         stress_mpa: f64,
     },
     /// A law was fitted to fewer points than it needs.
@@ -710,7 +716,7 @@ fn engineering_points(strain: &[f64], stress_mpa: &[f64]) -> Result<FitReport, F
             needed: 2 * MIN_ELASTIC_POINTS,
         });
     }
-    // Maximum load: the first highest stress.
+    // Maximum load: the first highest stress, which the record must fall clearly below afterwards.
     let mut imax = 0;
     for i in 1..m {
         if stress_mpa[i] > stress_mpa[imax] {
@@ -721,9 +727,10 @@ fn engineering_points(strain: &[f64], stress_mpa: &[f64]) -> Result<FitReport, F
     if uts <= 0.0 {
         return Err(FitError::NoLinearPart);
     }
-    if imax == m - 1 {
+    let lowest_after = stress_mpa[imax..].iter().copied().fold(uts, f64::min);
+    if lowest_after > uts * (1.0 - MAX_LOAD_DROP_PERCENT / 100.0) {
         return Err(FitError::NoMaximumLoad {
-            point: m,
+            point: imax + 1,
             stress_mpa: uts,
         });
     }
