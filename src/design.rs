@@ -81,8 +81,12 @@ pub enum DesignError {
         problem: PassError,
     },
     /// The draw-ratio limit needs more passes than `max_passes` allows.
-    #[error("the draw-ratio limit binds: at most {max_passes} passes (target.max_passes) would need a draw ratio of {ratio_needed:.4}, over limits.draw_ratio_max {draw_ratio_max}; raise draw_ratio_max to at least {ratio_needed:.4}, or allow at least {passes_needed} passes")]
+    #[error("the draw-ratio limit binds: run {run} has {passes_left} of target.max_passes {max_passes} left, and with {passes_left} passes it would need a draw ratio of {ratio_needed:.4}, over limits.draw_ratio_max {draw_ratio_max}; raise draw_ratio_max to at least {ratio_needed:.4}, or allow at least {passes_needed} passes (target.max_passes)")]
     RatioLimit {
+        /// Run number, from 1.
+        run: usize,
+        /// Passes left for the run within `max_passes`.
+        passes_left: u32,
         /// Passes allowed.
         max_passes: u32,
         /// Equal draw ratio that reaches the finish in `max_passes` passes.
@@ -828,11 +832,11 @@ impl Chooser<'_> {
         &self,
         run: &Run,
         index: usize,
+        least: u32,
         cap: u32,
         passes_needed_elsewhere: u32,
         max_passes: u32,
     ) -> Result<Vec<PassPick>, DesignError> {
-        let least = self.passes_for_ratio(run)?;
         if least > cap {
             let ratio_needed = if cap == 0 {
                 f64::INFINITY
@@ -840,15 +844,26 @@ impl Chooser<'_> {
                 self.equal_ratio_strains(run, cap)?.1
             };
             return Err(DesignError::RatioLimit {
+                run: index,
+                passes_left: cap,
                 max_passes,
                 ratio_needed,
                 draw_ratio_max: self.ctx.ratio_max,
                 passes_needed: least.saturating_add(passes_needed_elsewhere),
             });
         }
+        // No pass may exceed reduction_max, so the run needs at least
+        // E / -ln(1 - reduction_max) passes whatever the strategy.
+        let by_reduction = self.ctx.r_max.map_or(1, |r| {
+            let n = run.strain() / -(-r).ln_1p();
+            (n * (1.0 - 1e-12))
+                .ceil()
+                .clamp(1.0, PASSES_COUNT_CEILING as f64) as u32
+        });
+        let first = least.max(by_reduction);
         let mut last: Vec<(usize, Breach)> = Vec::new();
-        let mut tried = least;
-        for n in least..=cap {
+        let mut tried = first;
+        for n in first..=cap {
             tried = n;
             match self.attempt(run, n)? {
                 Attempt::Fits(p) => return Ok(p),
@@ -1305,7 +1320,7 @@ fn lay_out(
         let earlier_need: u32 = need[..i].iter().sum();
         let cap = max_passes.saturating_sub(used).saturating_sub(later);
         let elsewhere = earlier_need.max(used) + later;
-        let passes = chooser.design_run(r, i + 1, cap, elsewhere, max_passes)?;
+        let passes = chooser.design_run(r, i + 1, need[i], cap, elsewhere, max_passes)?;
         used += passes.len() as u32;
         out.push((r.from_mm, r.to_mm, r.strain0, passes));
     }
