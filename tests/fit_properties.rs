@@ -100,3 +100,41 @@ proptest! {
         recovers(FitLaw::Voce, &[("sigma0_mpa", s0), ("saturation_mpa", ss), ("eps_c", ec)], &x, &y)?;
     }
 }
+
+proptest! {
+    #![proptest_config(ProptestConfig::with_cases(256))]
+
+    /// Any numbers at all give a report or an error, never a panic.
+    #[test]
+    fn any_record_gives_a_report_or_an_error(
+        strain in proptest::collection::vec(proptest::num::f64::ANY, 0..80),
+        stress in proptest::collection::vec(proptest::num::f64::ANY, 0..80),
+        sorted in any::<bool>(),
+    ) {
+        let mut strain = strain;
+        if sorted {
+            strain.retain(|v| v.is_finite());
+            strain.sort_by(f64::total_cmp);
+        }
+        let _ = coldpass::fit::fit_record(&strain, &stress, &coldpass::fit::FitOptions::default());
+        let _ = fit_law(FitLaw::Voce, &strain, &stress);
+        let _ = fit_law(FitLaw::Swift, &strain, &stress);
+        let _ = fit_law(FitLaw::Ludwik, &strain, &stress);
+    }
+
+    /// A plausible record with random hardening still never panics.
+    #[test]
+    fn rising_records_give_a_report_or_an_error(
+        steps in proptest::collection::vec((1e-6..0.01f64, -5.0..20.0f64), 10..200),
+    ) {
+        let (mut e, mut s) = (0.0, 0.0);
+        let (mut strain, mut stress) = (vec![0.0], vec![0.0]);
+        for (de, ds) in steps {
+            e += de;
+            s = f64::max(s + ds, 0.0);
+            strain.push(e);
+            stress.push(s);
+        }
+        let _ = coldpass::fit::fit_record(&strain, &stress, &coldpass::fit::FitOptions::default());
+    }
+}
