@@ -1,0 +1,159 @@
+//! Invariants of `design`, held over random design files (proptest, a modest
+//! number of cases):
+//!
+//! - every designed pass is within every limit (the draw ratio, the reduction
+//!   bounds, Delta, the cold-work limit), as `check` evaluates the schedule;
+//! - the last die is the finish diameter exactly;
+//! - an equal-ratio design holds one draw ratio within 0.5 % in each run;
+//! - a tighter ratio limit never gives fewer passes;
+//! - the emitted schedule, read back, evaluates to the same report (the
+//!   round trip `coldpass check` relies on);
+//! - nothing panics, whatever the outcome.
+
+use coldpass::design::{design, schedule_yaml, DesignOptions, EQUAL_RATIO_SPREAD_MAX};
+use coldpass::evaluation::{evaluate, EvaluateOptions, StepKind};
+use coldpass::schedule::{self, ScheduleFile, Step};
+use proptest::prelude::*;
+
+#[derive(Debug, Clone)]
+struct Case {
+    law: String,
+    d0: f64,
+    ratio_to_finish: f64,
+    angles: Vec<f64>,
+    mu: f64,
+    method: &'static str,
+    ratio_max: f64,
+    delta_max: Option<f64>,
+    cold_work: Option<f64>,
+    r_max: Option<f64>,
+    r_min: Option<f64>,
+    strategy: &'static str,
+}
+
+fn case() -> impl Strategy<Value = Case> {
+    let law = prop_oneof![
+        (100.0f64..600.0, 0.1f64..0.5)
+            .prop_map(|(k, n)| format!("{{law: hollomon, k_mpa: {k}, n: {n}}}")),
+        (50.0f64..150.0, 300.0f64..600.0, 0.3f64..1.5).prop_map(|(s0, ss, ec)| format!(
+            "{{law: voce, sigma0_mpa: {s0}, saturation_mpa: {ss}, eps_c: {ec}}}"
+        )),
+        (100.0f64..400.0).prop_map(|y| format!("{{law: perfectly-plastic, yield_mpa: {y}}}")),
+    ];
+    (
+        (law, 2.0f64..12.0, 1.2f64..6.0),
+        (
+            prop::sample::subsequence(vec![4.0, 5.0, 6.0, 7.0, 8.0, 9.0, 10.0], 1..4),
+            0.02f64..0.1,
+            prop::sample::select(vec!["max", "sachs", "upper-bound", "siebel"]),
+            0.55f64..0.9,
+        ),
+        (
+            prop::option::of(2.5f64..5.0),
+            prop::option::of(1.0f64..3.0),
+            prop::option::of(0.25f64..0.45),
+            prop::option::of(0.05f64..0.12),
+            prop::sample::select(vec!["equal-ratio", "equal-strain", "tapered"]),
+        ),
+    )
+        .prop_map(
+            |(
+                (law, d0, ratio_to_finish),
+                (angles, mu, method, ratio_max),
+                (delta_max, cold_work, r_max, r_min, strategy),
+            )| Case {
+                law,
+                d0,
+                ratio_to_finish,
+                angles,
+                mu,
+                method,
+                ratio_max,
+                delta_max,
+                cold_work,
+                r_max,
+                r_min,
+                strategy,
+            },
+        )
+}
+
+fn text(c: &Case, ratio_max: f64) -> String {
+    let opt = |k: &str, v: Option<f64>| v.map(|x| format!("  {k}: {x}\n")).unwrap_or_default();
+    format!(
+        "material:\n  density_kg_m3: 8000\n  specific_heat_j_kg_k: 450\n  flow: {}\n{}start:\n  diameter: {}\ndies:\n  semi_angles_deg: {:?}\n  friction: {}\nlimits:\n  method: {}\n  draw_ratio_warn: {}\n  draw_ratio_max: {}\n{}target:\n  diameter: {}\n  strategy: {}\n  max_passes: 60\n{}{}",
+        c.law,
+        opt("cold_work_limit", c.cold_work),
+        c.d0,
+        c.angles,
+        c.mu,
+        c.method,
+        0.5 * ratio_max,
+        ratio_max,
+        opt("delta_max", c.delta_max),
+        c.d0 / c.ratio_to_finish,
+        c.strategy,
+        opt("reduction_max", c.r_max),
+        opt("reduction_min", c.r_min.filter(|lo| c.r_max.is_none_or(|hi| *lo < hi))),
+    )
+}
+
+fn last_exit_mm(f: &ScheduleFile) -> f64 {
+    f.passes
+        .iter()
+        .rev()
+        .find_map(|s| match s {
+            Step::Draw(d) => d.exit.as_ref().map(|e| e.mm()),
+            Step::Anneal => None,
+        })
+        .unwrap()
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig { cases: 48, ..ProptestConfig::default() })]
+
+    #[test]
+    fn designs_meet_every_limit_and_round_trip(c in case()) {
+        let t = text(&c, c.ratio_max);
+        let file = schedule::parse(&t).unwrap();
+        let target = file.target.clone().unwrap();
+        let Ok(d) = design(&file, &DesignOptions::default()) else {
+            // An infeasible case must fail with a message, never a panic; nothing more to hold.
+            return Ok(());
+        };
+        // Finish exact.
+        prop_assert_eq!(last_exit_mm(&d.schedule), target.diameter.mm());
+        // Every pass within every limit, as check evaluates it.
+        let rep = &d.report;
+        for r in rep.passes.iter().filter(|r| r.kind == StepKind::Draw) {
+            let ratio = r.draw_ratio.unwrap();
+            prop_assert!(ratio <= c.ratio_max, "step {} ratio {ratio}", r.step);
+            let red = r.area_reduction.unwrap();
+            if let Some(hi) = target.reduction_max { prop_assert!(red <= hi, "step {} {red}", r.step); }
+            if let Some(lo) = target.reduction_min { prop_assert!(red >= lo, "step {} {red}", r.step); }
+            if let Some(dm) = c.delta_max { prop_assert!(r.delta.unwrap() <= dm); }
+            if let Some(l) = c.cold_work { prop_assert!(r.strain_after <= l); }
+            prop_assert!(r.flags.iter().all(|f| !f.is_over()), "{:?}", r.flags);
+        }
+        // Equal ratio within 0.5 % in each run.
+        if c.strategy == "equal-ratio" {
+            for run in &d.summary.runs {
+                let s = (run.draw_ratio_max - run.draw_ratio_min) / run.draw_ratio_max;
+                prop_assert!(s <= EQUAL_RATIO_SPREAD_MAX, "run {} spread {s}", run.run);
+            }
+        }
+        // Round trip through the emitted YAML.
+        let yaml = schedule_yaml(&d, &["test".to_string()]).unwrap();
+        let back = schedule::parse(&yaml).unwrap();
+        prop_assert_eq!(&back, &d.schedule);
+        let again = evaluate(&back, &EvaluateOptions::default()).unwrap();
+        prop_assert_eq!(&again, &d.report);
+        // A tighter ratio limit never gives fewer passes.
+        let tight = schedule::parse(&text(&c, 0.9 * c.ratio_max)).unwrap();
+        if let Ok(t) = design(&tight, &DesignOptions::default()) {
+            prop_assert!(t.summary.draw_passes >= d.summary.draw_passes,
+                "{} passes at {} vs {} at {}", t.summary.draw_passes, 0.9 * c.ratio_max,
+                d.summary.draw_passes, c.ratio_max);
+        }
+    }
+}
