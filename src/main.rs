@@ -1,7 +1,8 @@
 //! The `coldpass` command: parse, run, map the outcome to an exit status.
 //!
-//! Exit status: 0 within limits, 3 when a schedule is over a limit (or a
-//! design cannot meet them), 1 for bad input, 2 for bad usage (clap's own).
+//! Exit status: 0 within limits, 3 when a checked schedule is over a limit,
+//! 1 for bad input or a design that cannot meet the limits, 2 for bad usage
+//! (clap's own).
 
 mod cli;
 mod commands;

@@ -211,10 +211,10 @@ fn every_format_carries_the_design_and_the_caution() {
     let csv = String::from_utf8(coldpass(&["design", d, "--format", "csv"]).stdout).unwrap();
     let header = csv.lines().next().unwrap();
     assert!(
-        header.ends_with("strategy,run,anneal_reason,caution"),
+        header.contains(",caution,") && header.ends_with("strategy,run,anneal_reason"),
         "{header}"
     );
-    assert!(csv.contains(",temper,"));
+    assert!(csv.lines().any(|l| l.trim_end().ends_with(",temper")));
     let table = String::from_utf8(coldpass(&["design", d]).stdout).unwrap();
     assert!(table.starts_with("Design: equal-ratio") && table.contains("(temper)"));
 }

@@ -11,7 +11,7 @@ use crate::cli::{Cli, Command};
 
 /// Exit status when every figure is within the limits.
 pub const EXIT_OK: u8 = 0;
-/// Exit status when a schedule is over a limit, or no design meets them.
+/// Exit status when a checked schedule is over a limit.
 pub const EXIT_OVER: u8 = 3;
 
 /// Runs the chosen subcommand and returns its exit status.

@@ -1,10 +1,10 @@
 //! CSV: one row per step, with the JSON names (nested keys joined by a dot,
-//! flags joined by `;`).
+//! flags joined by `;`); every row carries the caution in its last column.
 
 use anyhow::Result;
 use coldpass::evaluation::{ScheduleReport, StepKind};
 
-const HEADER: [&str; 37] = [
+const HEADER: [&str; 38] = [
     "step",
     "kind",
     "die_size",
@@ -42,6 +42,7 @@ const HEADER: [&str; 37] = [
     "method",
     "verdict",
     "title",
+    "caution",
 ];
 
 fn num(x: Option<f64>) -> String {
@@ -102,6 +103,7 @@ pub fn schedule(rep: &ScheduleReport) -> Result<Vec<u8>> {
                 .unwrap_or_default()
                 .into(),
             rep.title.clone(),
+            rep.caution.clone(),
         ];
         w.write_record(&record)?;
     }

@@ -6,7 +6,7 @@
 //!   `schedule` part exactly what `check --format json` gives for the emitted file;
 //! - CSV: the check CSV, one row per step, with four more columns: `strategy`,
 //!   `run` (the run between anneals the step belongs to; an anneal ends its run),
-//!   `anneal_reason` (`cold-work` or `temper` on anneal rows) and `caution`.
+//!   `anneal_reason` (`cold-work` or `temper` on anneal rows); the caution column comes from the check CSV.
 
 use anyhow::Result;
 use coldpass::design::Design;
@@ -144,7 +144,7 @@ fn csv(d: &Design) -> Result<Vec<u8>> {
     let mut r = ::csv::Reader::from_reader(base.as_slice());
     let mut w = ::csv::Writer::from_writer(Vec::new());
     let mut header: Vec<String> = r.headers()?.iter().map(str::to_string).collect();
-    header.extend(["strategy", "run", "anneal_reason", "caution"].map(String::from));
+    header.extend(["strategy", "run", "anneal_reason"].map(String::from));
     w.write_record(&header)?;
     let strategy = strategy_name(d);
     let mut run = 1usize;
@@ -163,7 +163,6 @@ fn csv(d: &Design) -> Result<Vec<u8>> {
         row.push(strategy.clone());
         row.push(run.to_string());
         row.push(reason);
-        row.push(d.report.caution.clone());
         if step.kind == StepKind::Anneal {
             run += 1;
         }
