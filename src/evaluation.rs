@@ -37,6 +37,9 @@ pub enum Flag {
     OverBlockPower,
     /// Semi-angle more than `angle_tolerance_deg` from the optimum.
     AngleOffOptimum,
+    /// Back tension at or above the entry flow stress: the wire would yield
+    /// before it reaches the die.
+    BackTensionOverYield,
 }
 
 impl Flag {
@@ -50,6 +53,7 @@ impl Flag {
             Flag::TooHot => "too-hot",
             Flag::OverBlockPower => "over-block-power",
             Flag::AngleOffOptimum => "angle-off-optimum",
+            Flag::BackTensionOverYield => "back-tension-over-yield",
         }
     }
 
@@ -58,7 +62,11 @@ impl Flag {
     pub fn is_over(self) -> bool {
         matches!(
             self,
-            Flag::OverDrawLimit | Flag::AnnealDue | Flag::TooHot | Flag::OverBlockPower
+            Flag::OverDrawLimit
+                | Flag::AnnealDue
+                | Flag::TooHot
+                | Flag::OverBlockPower
+                | Flag::BackTensionOverYield
         )
     }
 }
@@ -222,9 +230,15 @@ pub struct EvaluateOptions {
     pub method: Option<Method>,
 }
 
+/// The path of a step's key as the file has it, with the step number the
+/// report shows (`passes[1].exit (step 2)`): YAML counts from 0, the mill from 1.
+fn step_key(i: usize, key: &str) -> String {
+    format!("passes[{i}]{key} (step {})", i + 1)
+}
+
 fn pass_error(i: usize, source: pass::PassError) -> ScheduleError {
     ScheduleError::Pass {
-        key: format!("passes[{i}]"),
+        key: step_key(i, ""),
         problem: source,
     }
 }
@@ -235,9 +249,15 @@ pub fn evaluate(
     options: &EvaluateOptions,
 ) -> Result<ScheduleReport, ScheduleError> {
     if file.passes.iter().all(|s| matches!(s, Step::Anneal)) {
+        let why = if file.target.is_some() && file.passes.is_empty() {
+            "this is a design file (it has `target`): run `coldpass design` on it, or add passes"
+                .into()
+        } else {
+            "a schedule needs at least one draw pass (`- exit: <diameter>`)".into()
+        };
         return Err(ScheduleError::Missing {
             key: "passes".into(),
-            why: "a schedule needs at least one draw pass (`- exit: <diameter>`)".into(),
+            why,
         });
     }
     let (method, method_source) = match (options.method, file.limits.method) {
@@ -330,13 +350,13 @@ pub fn evaluate(
             Step::Draw(d) => d,
         };
         let exit = draw.exit.as_ref().ok_or_else(|| ScheduleError::Missing {
-            key: format!("passes[{i}].exit"),
+            key: step_key(i, ".exit"),
             why: "a draw pass needs its die size".into(),
         })?;
         let d_out = exit.mm();
         if d_out >= d_in {
             return Err(ScheduleError::Value {
-                key: format!("passes[{i}].exit"),
+                key: step_key(i, ".exit"),
                 problem: ParamError::new(
                     "exit",
                     exit,
@@ -348,7 +368,7 @@ pub fn evaluate(
             .semi_angle_deg
             .or(file.dies.semi_angle_deg)
             .ok_or_else(|| ScheduleError::Missing {
-                key: format!("passes[{i}].semi_angle_deg"),
+                key: step_key(i, ".semi_angle_deg"),
                 why: "no semi_angle_deg on the pass or under dies".into(),
             })?;
         let die = file
@@ -426,6 +446,9 @@ pub fn evaluate(
             if p > pmax {
                 flags.push(Flag::OverBlockPower);
             }
+        }
+        if dp.back_tension_mpa > 0.0 && dp.back_tension_mpa >= mech.flow_stress_entry_mpa {
+            flags.push(Flag::BackTensionOverYield);
         }
         if let Some(o) = optimum {
             if !o.at_search_limit && (o.semi_angle_deg - die.semi_angle_deg).abs() > angle_tolerance

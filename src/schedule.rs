@@ -97,9 +97,14 @@ pub struct Material {
     /// Specific heat, J/(kg K).
     pub specific_heat_j_kg_k: f64,
     /// Flow law of the stock as it starts.
+    #[serde(deserialize_with = "flow_key")]
     pub flow: FlowLaw,
     /// Flow law after an anneal; default: `flow`.
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    #[serde(
+        default,
+        deserialize_with = "annealed_flow_key",
+        skip_serializing_if = "Option::is_none"
+    )]
     pub annealed_flow: Option<FlowLaw>,
     /// Accumulated strain at which an anneal is due; default: no limit.
     #[serde(default, skip_serializing_if = "Option::is_none")]
@@ -107,6 +112,20 @@ pub struct Material {
     /// Fraction of the die work that heats the wire; default 0.9.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub heat_fraction: Option<f64>,
+}
+
+/// Reads a flow law, naming its key in a validation error (`flow: `n` = 1.5 ...`).
+fn law_at<'de, D: serde::Deserializer<'de>>(d: D, key: &str) -> Result<FlowLaw, D::Error> {
+    let spec = crate::flow::FlowLawSpec::deserialize(d)?;
+    FlowLaw::new(spec).map_err(|e| serde::de::Error::custom(format!("{key}: {e}")))
+}
+
+fn flow_key<'de, D: serde::Deserializer<'de>>(d: D) -> Result<FlowLaw, D::Error> {
+    law_at(d, "flow")
+}
+
+fn annealed_flow_key<'de, D: serde::Deserializer<'de>>(d: D) -> Result<Option<FlowLaw>, D::Error> {
+    law_at(d, "annealed_flow").map(Some)
 }
 
 /// The starting stock.
@@ -357,10 +376,26 @@ impl From<Step> for StepText {
 /// keys and type errors come back with their line and column; then every
 /// value is checked by [`ScheduleFile::validate`].
 pub fn parse(text: &str) -> Result<ScheduleFile, ScheduleError> {
-    let file: ScheduleFile =
-        serde_yaml::from_str(text).map_err(|e| ScheduleError::Syntax(e.to_string()))?;
+    if text
+        .lines()
+        .all(|l| l.trim().is_empty() || l.trim_start().starts_with('#'))
+    {
+        return Err(ScheduleError::Syntax(
+            "the file is empty: a schedule needs material, start, dies, limits and passes".into(),
+        ));
+    }
+    let file: ScheduleFile = serde_yaml::from_str(text)
+        .map_err(|e| ScheduleError::Syntax(plain_words(&e.to_string())))?;
     file.validate()?;
     Ok(file)
+}
+
+/// The parser's type names in the user's words.
+fn plain_words(message: &str) -> String {
+    message
+        .replace("expected f64", "expected a number")
+        .replace("expected u32", "expected a whole number")
+        .replace("expected a borrowed string", "expected text")
 }
 
 fn value(key: &str, r: Result<f64, ParamError>) -> Result<f64, ScheduleError> {

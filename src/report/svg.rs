@@ -51,7 +51,9 @@ fn draw_ratios(
         .iter()
         .filter_map(|r| r.draw_ratio)
         .fold(rep.draw_ratio_max, f64::max)
-        * 1.15;
+        * 1.4;
+    // Room right of the last bar for the labels of the warn and max lines.
+    let label_room = 0.12 * n.max(8.0);
     let mut chart = ChartBuilder::on(area)
         .caption(
             "Draw ratio per pass (drawing stress / exit flow stress)",
@@ -60,14 +62,22 @@ fn draw_ratios(
         .margin(12)
         .x_label_area_size(36)
         .y_label_area_size(56)
-        .build_cartesian_2d(0.5f64..n + 0.5, 0f64..top)
+        .build_cartesian_2d(0.5f64..n + 0.5 + label_room, 0f64..top)
         .map_err(err)?;
     chart
         .configure_mesh()
         .x_desc("step")
         .y_desc("draw ratio")
-        .x_labels(rep.passes.len().min(30))
-        .x_label_formatter(&|x| format!("{:.0}", x))
+        .x_labels((n + label_room).ceil() as usize + 1)
+        // Only the step numbers: no tick in the label room, none between steps.
+        .x_label_formatter(&|x| {
+            let k = x.round();
+            if (x - k).abs() < 1e-6 && k >= 1.0 && k <= n {
+                format!("{k:.0}")
+            } else {
+                String::new()
+            }
+        })
         .light_line_style(WHITE.mix(0.0))
         .draw()
         .map_err(err)?;
@@ -89,6 +99,8 @@ fn draw_ratios(
             )))
             .map_err(err)?;
     }
+    // The warn and max lines are labelled past the last bar, so the legend only
+    // has to explain the bar colours.
     for (level, colour, label) in [
         (
             rep.draw_ratio_warn,
@@ -103,32 +115,33 @@ fn draw_ratios(
     ] {
         chart
             .draw_series(DashedLineSeries::new(
-                vec![(0.5, level), (n + 0.5, level)],
+                vec![(0.5, level), (n + 0.5 + label_room, level)],
                 10,
                 5,
                 colour.stroke_width(2),
             ))
-            .map_err(err)?
-            .label(label)
-            .legend(move |(x, y)| {
-                PathElement::new(vec![(x, y), (x + 18, y)], colour.stroke_width(2))
-            });
+            .map_err(err)?;
+        chart
+            .draw_series(std::iter::once(Text::new(
+                label,
+                (n + 0.55, level + top * 0.045),
+                ("sans-serif", 13).into_font().color(&colour),
+            )))
+            .map_err(err)?;
     }
+    let status = |d: f64| {
+        if d > rep.draw_ratio_max {
+            OVER
+        } else if d > rep.draw_ratio_warn {
+            WARN
+        } else {
+            OK
+        }
+    };
     let points: Vec<(f64, f64, RGBColor)> = rep
         .passes
         .iter()
-        .filter_map(|r| {
-            r.draw_ratio.map(|d| {
-                let c = if d > rep.draw_ratio_max {
-                    OVER
-                } else if d > rep.draw_ratio_warn {
-                    WARN
-                } else {
-                    OK
-                };
-                (r.step as f64, d, c)
-            })
-        })
+        .filter_map(|r| r.draw_ratio.map(|d| (r.step as f64, d, status(d))))
         .collect();
     chart
         .draw_series(
@@ -136,9 +149,19 @@ fn draw_ratios(
                 Rectangle::new([(x - 0.3, 0.0), (x + 0.3, y)], c.mix(0.85).filled())
             }),
         )
-        .map_err(err)?
-        .label("pass")
-        .legend(|(x, y)| Rectangle::new([(x, y - 5), (x + 12, y + 5)], OK.filled()));
+        .map_err(err)?;
+    // Legend entries for the three bar colours (empty series carry the labels).
+    for (colour, label) in [
+        (OK, "within limits"),
+        (WARN, "near the limit"),
+        (OVER, "over the limit"),
+    ] {
+        chart
+            .draw_series(std::iter::empty::<Rectangle<(f64, f64)>>())
+            .map_err(err)?
+            .label(label)
+            .legend(move |(x, y)| Rectangle::new([(x, y - 5), (x + 12, y + 5)], colour.filled()));
+    }
     chart
         .configure_series_labels()
         .position(SeriesLabelPosition::UpperLeft)
@@ -209,7 +232,7 @@ fn draw_flow(
         chart
             .draw_series(std::iter::once(Text::new(
                 "anneal",
-                (*a + xmax * 0.005, ymax * 0.95),
+                (*a + xmax * 0.005, ymax * 0.06),
                 ("sans-serif", 13).into_font().color(&GREY),
             )))
             .map_err(err)?;

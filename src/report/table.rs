@@ -20,6 +20,13 @@ fn build(header: &[&str], rows: Vec<Vec<String>>) -> String {
     t.to_string()
 }
 
+fn with_unit(x: Option<f64>, digits: usize, unit: &str, why_none: &str) -> String {
+    match x {
+        Some(_) => format!("{} {unit}", fixed(x, digits)),
+        None => format!("- ({why_none})"),
+    }
+}
+
 fn pct(x: Option<f64>) -> String {
     fixed(x.map(|v| 100.0 * v), 1)
 }
@@ -223,8 +230,14 @@ pub fn schedule(rep: &ScheduleReport) -> String {
                 _ => "- (no line block)".into(),
             },
         ],
-        vec!["time per coil".into(), fixed(s.coil_time_min, 1) + " min"],
-        vec!["total power".into(), fixed(s.total_power_kw, 1) + " kW"],
+        vec![
+            "time per coil".into(),
+            with_unit(s.coil_time_min, 1, "min", "no line.coil_mass_kg"),
+        ],
+        vec![
+            "total power".into(),
+            with_unit(s.total_power_kw, 1, "kW", "no line block"),
+        ],
         vec!["verdict".into(), verdict.into()],
     ];
     let mut b = Builder::default();
