@@ -313,3 +313,57 @@ fn a_broken_pipe_ends_quietly() {
     assert!(!err.contains("panicked"), "{err}");
     assert!(status.code().is_some_and(|c| c == 0), "{status:?} {err}");
 }
+
+#[test]
+fn fails_with_usage_status_when_the_chart_is_not_named_svg() {
+    let dir = tempfile::tempdir().unwrap();
+    let png = dir.path().join("chart.png");
+    let o = coldpass(&["check", COPPER, "--plot", png.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(2));
+    assert!(stderr(&o).contains("must end in .svg"), "{}", stderr(&o));
+    assert!(!png.exists());
+}
+
+#[test]
+fn back_tension_above_the_entry_flow_stress_is_over() {
+    let dir = tempfile::tempdir().unwrap();
+    let text = std::fs::read_to_string(root(OVER)).unwrap();
+    let path = dir.path().join("bt.yaml");
+    std::fs::write(
+        &path,
+        text.replace("back_tension_mpa: 80", "back_tension_mpa: 900"),
+    )
+    .unwrap();
+    let o = coldpass(&["check", path.to_str().unwrap(), "--format", "json"]);
+    assert_eq!(o.status.code(), Some(3));
+    let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    let flags = v["passes"][4]["flags"].as_array().unwrap();
+    assert!(
+        flags.iter().any(|f| f == "back-tension-over-yield"),
+        "{flags:?}"
+    );
+    // The pass before, at 60 MPa on wire of about 380 MPa, is not flagged for it.
+    let before = v["passes"][3]["flags"].as_array().unwrap();
+    assert!(!before.iter().any(|f| f == "back-tension-over-yield"));
+}
+
+#[test]
+fn fails_naming_an_empty_file() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("empty.yaml");
+    std::fs::write(&path, "# nothing here\n").unwrap();
+    let o = coldpass(&["check", path.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(1));
+    assert!(stderr(&o).contains("the file is empty"));
+}
+
+#[test]
+fn fails_pointing_a_design_file_to_the_design_command() {
+    let o = coldpass(&["check", "schedules-demo/design-copper-temper.yaml"]);
+    assert_eq!(o.status.code(), Some(1));
+    assert!(
+        stderr(&o).contains("run `coldpass design`"),
+        "{}",
+        stderr(&o)
+    );
+}
