@@ -19,6 +19,10 @@ use crate::schedule::{self, ScheduleError, ScheduleFile, Step};
 /// The caution every report carries.
 pub const CAUTION: &str = "Planning estimates only: confirm every figure by trial. Wire under tension whips when it breaks and running capstans trap hands; the machine maker's limits, local codes and licensed practice govern.";
 
+/// Accumulated strain past which the finished flow stress is taken as close to
+/// the wire's tensile strength (common practice; a judgement, not a law).
+pub const HEAVILY_DRAWN_STRAIN: f64 = 1.0;
+
 /// A flag raised on a pass. Names are plain words, the same in every format.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize)]
 #[serde(rename_all = "kebab-case")]
@@ -492,6 +496,22 @@ pub fn evaluate(
         d_in = d_out;
     }
 
+    if let Some(last) = rows.last() {
+        // Common practice: heavily drawn wire has almost no uniform elongation
+        // left, so its tensile strength is close to its flow stress; a lightly
+        // drawn or annealed wire still work-hardens in the test (Considere).
+        notes.push(if last.strain_after >= HEAVILY_DRAWN_STRAIN {
+            format!(
+                "finished flow stress {:.0} MPa: for wire drawn this far (strain {:.2} since anneal) the tensile strength is close to it",
+                last.flow_stress_exit_mpa, last.strain_after
+            )
+        } else {
+            format!(
+                "finished flow stress {:.0} MPa: the wire is lightly drawn (strain {:.2} since anneal), so its tensile strength is higher than this (Considere)",
+                last.flow_stress_exit_mpa, last.strain_after
+            )
+        });
+    }
     notes.push(format!(
         "wire temperature: the wire enters every die at ambient ({ambient} C), cooled between dies; the figure is the bulk mean at the die exit (the surface runs hotter)"
     ));
