@@ -56,6 +56,31 @@ const PASS_STRAIN_FLOOR: f64 = 1e-9;
 const COLD_WORK_MARGIN: f64 = 1e-9;
 /// Most passes counted when working out how many a limit needs.
 const PASSES_COUNT_CEILING: u32 = 1000;
+/// Most draw passes a design may have: the largest `target.max_passes` the
+/// schedule file accepts.
+pub const PASSES_ALLOWED: u32 = 200;
+
+/// A pass count for a message: `12 passes`, or `more than 1000 passes`.
+fn passes_in_words(n: &Option<u32>) -> String {
+    match n {
+        Some(1) => "1 pass".into(),
+        Some(n) => format!("{n} passes"),
+        None => format!("more than {PASSES_COUNT_CEILING} passes"),
+    }
+}
+
+/// `x` rounded up to `prec` decimals: a value a message says to raise
+/// something "to at least" (rounding to nearest could print one too small).
+fn at_least(x: f64, prec: i32) -> f64 {
+    let f = 10f64.powi(prec);
+    (x * f).ceil() / f
+}
+
+/// `x` rounded down to `prec` decimals: a value a message says to lower something "to at most".
+fn at_most(x: f64, prec: i32) -> f64 {
+    let f = 10f64.powi(prec);
+    (x * f).floor() / f
+}
 
 /// Why no design could be made. Each message names the binding constraint and
 /// what would make the design feasible.
@@ -73,28 +98,53 @@ pub enum DesignError {
         why: String,
     },
     /// A pass could not be evaluated by the core.
-    #[error("designing pass {pass}: {problem}")]
+    #[error("designing {pass}: {problem}")]
     Pass {
-        /// Pass number within the design, from 1.
-        pass: usize,
+        /// Which pass, in words (`run 2, pass 3`, or the entry diameter
+        /// while a pass is still being solved for).
+        pass: String,
         /// The core's reason.
         problem: PassError,
     },
-    /// The draw-ratio limit needs more passes than `max_passes` allows.
-    #[error("the draw-ratio limit binds: run {run} has {passes_left} of target.max_passes {max_passes} left, and with {passes_left} passes it would need a draw ratio of {ratio_needed:.4}, over limits.draw_ratio_max {draw_ratio_max}; raise draw_ratio_max to at least {ratio_needed:.4}, or allow at least {passes_needed} passes (target.max_passes)")]
+    /// The design meets every limit, but only with more draw passes than
+    /// `target.max_passes` allows.
+    #[error("target.max_passes {max_passes} is too few: meeting every limit takes {passes_needed} draw passes ({split}); allow at least {passes_needed} (target.max_passes), or relax what sets each run's count ({set_by})")]
+    TooFewPasses {
+        /// Passes allowed.
+        max_passes: u32,
+        /// Fewest draw passes of a design that meets every limit.
+        passes_needed: u32,
+        /// The passes run by run, with the anneals between (`8 + 5 around the temper anneal`).
+        split: String,
+        /// The limits that set each run's pass count, in words.
+        set_by: String,
+    },
+    /// Keeping every pass under the ratio limit takes more passes than any
+    /// design may have.
+    #[error("the draw-ratio limit binds: keeping every pass of run {run} at or under limits.draw_ratio_max {draw_ratio_max} takes {}, more than the {passes_allowed} left of the {PASSES_ALLOWED} draw passes target.max_passes may allow; raise draw_ratio_max, or lower the friction or land length", passes_in_words(.passes_needed))]
     RatioLimit {
         /// Run number, from 1.
         run: usize,
-        /// Passes left for the run within `max_passes`.
-        passes_left: u32,
-        /// Passes allowed.
-        max_passes: u32,
-        /// Equal draw ratio that reaches the finish in `max_passes` passes.
-        ratio_needed: f64,
         /// The limit.
         draw_ratio_max: f64,
-        /// Fewest passes that keep every pass under the limit.
-        passes_needed: u32,
+        /// Passes the ratio limit needs in the run (`None`: more than the
+        /// count ceiling of 1000).
+        passes_needed: Option<u32>,
+        /// Passes left for the run.
+        passes_allowed: u32,
+    },
+    /// The designed schedule, evaluated as `check` evaluates it, puts a pass
+    /// over a limit (a fault of the design, reported rather than hidden).
+    #[error("the designed schedule fails its own check: step {step} ({from_mm:.4} mm to {to_mm:.4} mm) is flagged {flags}; relax the limit named, or try another strategy")]
+    CheckFlags {
+        /// Step number in the designed schedule, from 1.
+        step: usize,
+        /// Entry diameter, mm.
+        from_mm: f64,
+        /// Exit diameter, mm.
+        to_mm: f64,
+        /// The flags over their limits, comma-separated.
+        flags: String,
     },
     /// No pass, however light, stays under the ratio limit.
     #[error("the draw-ratio limit binds: even a pass of {reduction_pct:.4} % reduction from {diameter_mm} mm has draw ratio {ratio:.4}, over limits.draw_ratio_max {draw_ratio_max} (the die's redundant work and land alone); raise draw_ratio_max above {ratio:.4}, or lower the friction or land length")]
@@ -109,7 +159,7 @@ pub enum DesignError {
         draw_ratio_max: f64,
     },
     /// The window lies below the annealed strength: no anneal makes the wire that soft.
-    #[error("target.strength_mpa {min}-{max} MPa is softer than the annealed stock ({annealed_mpa:.1} MPa at strain 0): no anneal reaches it; raise the window's max to at least {annealed_mpa:.1} MPa")]
+    #[error("target.strength_mpa {min}-{max} MPa is softer than the annealed stock ({annealed_mpa:.1} MPa at strain 0): no anneal reaches it; raise the window's max to at least {:.1} MPa", at_least(*.annealed_mpa, 1))]
     WindowBelowAnnealed {
         /// Window min, MPa.
         min: f64,
@@ -119,7 +169,7 @@ pub enum DesignError {
         annealed_mpa: f64,
     },
     /// The window lies above what the annealed law can ever reach.
-    #[error("target.strength_mpa {min}-{max} MPa is harder than the annealed law can reach (it saturates at {saturation_mpa:.1} MPa); lower the window's min below {saturation_mpa:.1} MPa")]
+    #[error("target.strength_mpa {min}-{max} MPa is harder than the annealed law can reach (it saturates at {saturation_mpa:.1} MPa); lower the window's min below {:.1} MPa", at_most(*.saturation_mpa, 1))]
     WindowAboveSaturation {
         /// Window min, MPa.
         min: f64,
@@ -129,7 +179,7 @@ pub enum DesignError {
         saturation_mpa: f64,
     },
     /// The window needs more cold work after the last anneal than the cold-work limit allows.
-    #[error("target.strength_mpa min {min} MPa needs strain {strain_needed:.4} after the last anneal, over material.cold_work_limit {cold_work_limit}; the most the limit allows is {stress_at_limit_mpa:.1} MPa: lower the window's min to at most that, or raise cold_work_limit to {strain_needed:.4}")]
+    #[error("target.strength_mpa min {min} MPa needs strain {strain_needed:.4} after the last anneal, over material.cold_work_limit {cold_work_limit}; the most the limit allows is {stress_at_limit_mpa:.1} MPa: lower the window's min to at most {:.1} MPa, or raise cold_work_limit to at least {:.4}", at_most(*.stress_at_limit_mpa, 1), at_least(*.strain_needed * (1.0 + 2.0 * COLD_WORK_MARGIN), 4))]
     WindowColdWork {
         /// Window min, MPa.
         min: f64,
@@ -141,7 +191,7 @@ pub enum DesignError {
         stress_at_limit_mpa: f64,
     },
     /// The whole reduction is too small to work the wire into the window.
-    #[error("target.strength_mpa min {min} MPa needs strain {strain_needed:.4} after an anneal, but the whole reduction from start to finish is only {strain_available:.4} (and without an anneal the wire ends at {stress_without_anneal_mpa:.1} MPa); start from at least {start_needed_mm:.4} mm, or lower the window's min")]
+    #[error("target.strength_mpa min {min} MPa needs strain {strain_needed:.4} after an anneal, but the whole reduction from start to finish is only {strain_available:.4} (and without an anneal the wire ends at {stress_without_anneal_mpa:.1} MPa); start from at least {:.4} mm, or lower the window's min", at_least(*.start_needed_mm, 4))]
     WindowReduction {
         /// Window min, MPa.
         min: f64,
@@ -314,6 +364,31 @@ impl Breach {
         matches!(self, Breach::ReductionMin(_) | Breach::Delta(_))
     }
 
+    /// The limit broken, as the file names it, with its value.
+    fn limit(self, c: &Ctx) -> String {
+        let l = &c.file.limits;
+        let v = |x: Option<f64>| x.map_or_else(String::new, |x| format!(" {x}"));
+        match self {
+            Breach::Ratio(_) => format!("limits.draw_ratio_max {}", c.ratio_max),
+            Breach::ReductionMax(_) => format!("target.reduction_max{}", v(c.r_max)),
+            Breach::ReductionMin(_) => format!("target.reduction_min{}", v(c.r_min)),
+            Breach::Delta(_) => format!("limits.delta_max{}", v(c.delta_max)),
+            Breach::ColdWork(_) => format!("material.cold_work_limit{}", v(c.cold_work)),
+            Breach::Hot(_) => format!(
+                "limits.wire_temperature_max_c{}",
+                v(l.wire_temperature_max_c)
+            ),
+            Breach::Power(_) => format!(
+                "line.block_power_kw{}",
+                v(c.file.line.as_ref().and_then(|x| x.block_power_kw))
+            ),
+            Breach::Spread(_) => format!(
+                "the {} % draw-ratio spread of equal-ratio",
+                100.0 * EQUAL_RATIO_SPREAD_MAX
+            ),
+        }
+    }
+
     fn describe(self, c: &Ctx) -> String {
         match self {
             Breach::Ratio(x) => format!(
@@ -338,8 +413,21 @@ impl Breach {
                 "strain {e:.4} over material.cold_work_limit {}",
                 c.cold_work.unwrap_or(f64::INFINITY)
             ),
-            Breach::Hot(t) => format!("wire at {t:.1} C, over limits.wire_temperature_max_c"),
-            Breach::Power(p) => format!("{p:.2} kW, over line.block_power_kw"),
+            Breach::Hot(t) => format!(
+                "wire at {t:.1} C, over limits.wire_temperature_max_c {}",
+                c.file
+                    .limits
+                    .wire_temperature_max_c
+                    .unwrap_or(f64::INFINITY)
+            ),
+            Breach::Power(p) => format!(
+                "{p:.2} kW, over line.block_power_kw {}",
+                c.file
+                    .line
+                    .as_ref()
+                    .and_then(|l| l.block_power_kw)
+                    .unwrap_or(f64::INFINITY)
+            ),
             Breach::Spread(s) => format!(
                 "draw ratios spread {:.3} %, over the {} % an equal-ratio design allows",
                 100.0 * s,
@@ -496,7 +584,10 @@ impl Ctx<'_> {
         let f = |x: f64| {
             self.ratio_gap(law, d_in, strain_before, x, rho)
                 .map(|r| r.0)
-                .map_err(|problem| DesignError::Pass { pass: 0, problem })
+                .map_err(|problem| DesignError::Pass {
+                    pass: format!("a pass from {d_in:.4} mm"),
+                    problem,
+                })
         };
         let g0 = guess.clamp(PASS_STRAIN_FLOOR, PASS_STRAIN_CEILING);
         let f0 = f(g0)?;
@@ -621,6 +712,8 @@ fn solve_increasing(
 /// A run to draw: from `from_mm` to `to_mm` with `law`, starting at strain `strain0`.
 #[derive(Debug, Clone, Copy)]
 struct Run<'a> {
+    /// Run number, from 1.
+    index: usize,
     law: &'a FlowLaw,
     strain0: f64,
     from_mm: f64,
@@ -661,7 +754,7 @@ impl Chooser<'_> {
                 .ctx
                 .pick(run.law, d, d_out, e)
                 .map_err(|problem| DesignError::Pass {
-                    pass: i + 1,
+                    pass: format!("run {}, pass {}", run.index, i + 1),
                     problem,
                 })?;
             d = d_out;
@@ -720,7 +813,10 @@ impl Chooser<'_> {
             let (gap, p) = self
                 .ctx
                 .ratio_gap(run.law, run.from_mm, run.strain0, x, rho)
-                .map_err(|problem| DesignError::Pass { pass: 1, problem })?;
+                .map_err(|problem| DesignError::Pass {
+                    pass: format!("run {}, pass 1", run.index),
+                    problem,
+                })?;
             return Err(DesignError::NoLightPass {
                 diameter_mm: run.from_mm,
                 reduction_pct: 100.0 * p.reduction,
@@ -827,29 +923,15 @@ impl Chooser<'_> {
         })
     }
 
-    /// The fewest passes for the run within `cap` passes.
-    fn design_run(
-        &self,
-        run: &Run,
-        index: usize,
-        least: u32,
-        cap: u32,
-        passes_needed_elsewhere: u32,
-        max_passes: u32,
-    ) -> Result<Vec<PassPick>, DesignError> {
+    /// The fewest passes for the run within `cap` passes, `least` of them
+    /// needed by the ratio limit.
+    fn design_run(&self, run: &Run, least: u32, cap: u32) -> Result<Vec<PassPick>, DesignError> {
         if least > cap {
-            let ratio_needed = if cap == 0 {
-                f64::INFINITY
-            } else {
-                self.equal_ratio_strains(run, cap)?.1
-            };
             return Err(DesignError::RatioLimit {
-                run: index,
-                passes_left: cap,
-                max_passes,
-                ratio_needed,
+                run: run.index,
                 draw_ratio_max: self.ctx.ratio_max,
-                passes_needed: least.saturating_add(passes_needed_elsewhere),
+                passes_needed: (least <= PASSES_COUNT_CEILING).then_some(least),
+                passes_allowed: cap,
             });
         }
         // No pass may exceed reduction_max, so the run needs at least
@@ -876,13 +958,39 @@ impl Chooser<'_> {
                 }
             }
         }
-        Err(self.run_error(run, index, least, tried, cap, &last))
+        Err(self.run_error(run, least, tried, cap, &last))
+    }
+
+    /// What sets the run's count of `n` passes: the limits that `n - 1`
+    /// passes would break, in words.
+    fn count_set_by(&self, run: &Run, n: usize) -> String {
+        if n <= 1 {
+            return format!("run {}: 1 pass", run.index);
+        }
+        let fewer = n as u32 - 1;
+        let mut keys: Vec<String> = Vec::new();
+        if let Ok(Attempt::Breaks(b)) = self.attempt(run, fewer) {
+            for (_, x) in b {
+                let k = x.limit(&self.ctx);
+                if !keys.contains(&k) {
+                    keys.push(k);
+                }
+            }
+        }
+        if keys.is_empty() {
+            // The count was not tried (the scan starts at the ratio limit's count).
+            keys.push(format!("limits.draw_ratio_max {}", self.ctx.ratio_max));
+        }
+        format!(
+            "run {}: {fewer} passes would break {}",
+            run.index,
+            keys.join(", ")
+        )
     }
 
     fn run_error(
         &self,
         run: &Run,
-        index: usize,
         least: u32,
         tried: u32,
         cap: u32,
@@ -914,7 +1022,7 @@ impl Chooser<'_> {
                 if per_pass < rmin {
                     remedy.push(format!(
                         "lower target.reduction_min to at most {:.4} (the run's strain over {tried} passes)",
-                        per_pass
+                        at_most(per_pass, 4)
                     ));
                 }
             }
@@ -927,7 +1035,8 @@ impl Chooser<'_> {
                     })
                     .fold(0.0, f64::max);
                 remedy.push(format!(
-                    "stock a smaller die angle or raise limits.delta_max to at least {worst:.3}"
+                    "stock a smaller die angle or raise limits.delta_max to at least {:.3}",
+                    at_least(worst, 3)
                 ));
             }
             if heavy || least == tried {
@@ -937,14 +1046,14 @@ impl Chooser<'_> {
             }
         } else {
             remedy.push(format!(
-                "allow more than {cap} passes (target.max_passes) or relax the limits named"
+                "{cap} passes, the most left for this run of the {PASSES_ALLOWED} a design may have, are still over: relax the limits named"
             ));
         }
         if self.strategy != Strategy::EqualStrain {
             remedy.push("or try strategy equal-strain".into());
         }
         DesignError::RunLimits {
-            run: index,
+            run: run.index,
             from_mm: run.from_mm,
             to_mm: run.to_mm,
             strain,
@@ -1023,7 +1132,10 @@ fn layouts(
     let cold = |total: f64| -> Result<Vec<f64>, DesignError> {
         cold_work_runs(total, e0, limit).ok_or_else(|| DesignError::Input {
             key: "material.cold_work_limit".into(),
-            why: "more than 1000 anneals would be needed; raise the limit".into(),
+            why: format!(
+                "{} would need more than {PASSES_COUNT_CEILING} anneals for a strain of {total:.4}; raise the limit",
+                limit.unwrap_or(f64::INFINITY)
+            ),
         })
     };
     let Some(w) = target.strength_mpa else {
@@ -1151,6 +1263,18 @@ fn layouts(
 
 // ------------------------------------------------------------------ the design
 
+/// A diameter as the file gave it, with millimetres added when it was not
+/// given in them (`AWG 10 (2.588 mm)`, `9 mm`, never `9 mm (9 mm)`).
+fn as_written(d: &Diameter) -> String {
+    let mm = d.mm();
+    match d.written() {
+        Some(w) if w.parse::<f64>().is_err() && !w.trim_end().ends_with("mm") => {
+            format!("{w} ({mm:.4} mm)")
+        }
+        _ => format!("{mm} mm"),
+    }
+}
+
 /// Designs the schedule asked for by `file.target` (see the module
 /// documentation for the method). The file's `passes` must be empty.
 pub fn design(file: &ScheduleFile, options: &DesignOptions) -> Result<Design, DesignError> {
@@ -1193,8 +1317,9 @@ pub fn design(file: &ScheduleFile, options: &DesignOptions) -> Result<Design, De
         return Err(DesignError::Input {
             key: "target.diameter".into(),
             why: format!(
-                "{} ({finish_mm} mm) must be below the start diameter ({start_mm} mm)",
-                target.diameter
+                "{} must be below start.diameter {} (drawing only makes wire thinner)",
+                as_written(&target.diameter),
+                as_written(&file.start.diameter)
             ),
         });
     }
@@ -1234,40 +1359,122 @@ pub fn design(file: &ScheduleFile, options: &DesignOptions) -> Result<Design, De
     };
 
     let candidates = layouts(file, target, finish_mm)?;
-    let mut first_error = None;
+    let first_error = match search(&chooser, &candidates, start_mm, finish_mm, max_passes) {
+        Ok((layout, runs)) => {
+            return finish(
+                file, target, options, &chooser, layout, runs, max_passes, &angles,
+            )
+        }
+        Err(e) => e,
+    };
+    if max_passes >= PASSES_ALLOWED {
+        return Err(first_error);
+    }
+    // Too few passes allowed, or limits no pass count meets? A design with the
+    // most passes any file may allow tells which, and how many are needed:
+    // each run takes its own fewest passes, so the fewest total over the
+    // layouts is the least max_passes that works.
+    let mut best: Option<(u32, &Layout, RunPasses)> = None;
+    let mut retry_error = None;
     for layout in &candidates {
-        match lay_out(&chooser, layout, start_mm, finish_mm, max_passes) {
+        match lay_out(&chooser, layout, start_mm, finish_mm, PASSES_ALLOWED) {
             Ok(runs) => {
-                return finish(
-                    file, target, options, &chooser, layout, runs, max_passes, &angles,
-                )
-            }
-            // Another window strain helps only when the passes are too light
-            // or too heavy for the run; any other error ends the search.
-            Err(e @ DesignError::RunLimits { .. }) | Err(e @ DesignError::RatioLimit { .. }) => {
-                if first_error.is_none() {
-                    first_error = Some(e);
+                let n: u32 = runs.iter().map(|r| r.1.len() as u32).sum();
+                if best.as_ref().is_none_or(|b| n < b.0) {
+                    best = Some((n, layout, runs));
                 }
+            }
+            Err(e @ DesignError::RunLimits { .. }) | Err(e @ DesignError::RatioLimit { .. }) => {
+                retry_error.get_or_insert(e);
             }
             Err(e) => return Err(e),
         }
     }
-    Err(first_error.unwrap_or(DesignError::Solver {
-        what: "layout",
-        iterations: 0,
+    Err(match best {
+        Some((n, layout, runs)) => too_few_passes(&chooser, layout, &runs, n, max_passes),
+        None => retry_error.unwrap_or(first_error),
+    })
+}
+
+/// The first layout, in the order given, whose every run can be drawn within
+/// `max_passes` passes in all.
+fn search<'l, 'f>(
+    chooser: &Chooser<'f>,
+    candidates: &'l [Layout],
+    start_mm: f64,
+    finish_mm: f64,
+    max_passes: u32,
+) -> Result<(&'l Layout, RunPasses<'f>), DesignError> {
+    let mut first_error = None;
+    for layout in candidates {
+        match lay_out(chooser, layout, start_mm, finish_mm, max_passes) {
+            Ok(runs) => return Ok((layout, runs)),
+            // Another window strain helps only when the passes are too light
+            // or too heavy for the run; any other error ends the search.
+            Err(e @ DesignError::RunLimits { .. }) | Err(e @ DesignError::RatioLimit { .. }) => {
+                first_error.get_or_insert(e);
+            }
+            Err(e) => return Err(e),
+        }
+    }
+    Err(first_error.unwrap_or_else(|| DesignError::Input {
+        key: "target".into(),
+        why: "no layout of runs and anneals could be made for this target".into(),
     }))
 }
 
-type RunPasses = Vec<(f64, f64, f64, Vec<PassPick>)>;
+/// The error when the design needs `needed` passes, more than `max_passes`:
+/// the passes run by run, the anneals between, and what sets each count.
+fn too_few_passes(
+    chooser: &Chooser,
+    layout: &Layout,
+    runs: &RunPasses,
+    needed: u32,
+    max_passes: u32,
+) -> DesignError {
+    let drawn: Vec<&(Run, Vec<PassPick>)> = runs.iter().filter(|r| !r.1.is_empty()).collect();
+    let counts = drawn
+        .iter()
+        .map(|r| r.1.len().to_string())
+        .collect::<Vec<_>>()
+        .join(" + ");
+    // One anneal between runs (a run of no strain stands for an anneal
+    // before the first pass), and one after the last when the window asks.
+    let anneals = runs.len() - 1 + usize::from(layout.final_anneal);
+    let reasons: Vec<&str> = layout
+        .anneal_reasons
+        .iter()
+        .take(anneals)
+        .map(|r| r.name())
+        .collect();
+    let split = match anneals {
+        0 => format!("{counts} in one run, no anneal"),
+        1 => format!("{counts} around the {} anneal", reasons.join("")),
+        k => format!("{counts} around {k} anneals: {}", reasons.join(", ")),
+    };
+    let set_by = drawn
+        .iter()
+        .map(|(run, passes)| chooser.count_set_by(run, passes.len()))
+        .collect::<Vec<_>>()
+        .join("; ");
+    DesignError::TooFewPasses {
+        max_passes,
+        passes_needed: needed,
+        split,
+        set_by,
+    }
+}
+
+type RunPasses<'a> = Vec<(Run<'a>, Vec<PassPick>)>;
 
 /// Designs every run of `layout`: (from, to, start strain, passes) for each.
-fn lay_out(
-    chooser: &Chooser,
+fn lay_out<'f>(
+    chooser: &Chooser<'f>,
     layout: &Layout,
     start_mm: f64,
     finish_mm: f64,
     max_passes: u32,
-) -> Result<RunPasses, DesignError> {
+) -> Result<RunPasses<'f>, DesignError> {
     let file = chooser.ctx.file;
     let strains = &layout.run_strains;
     // Boundaries from the finish back (the last boundary is the finish exactly).
@@ -1293,6 +1500,7 @@ fn lay_out(
         };
         let e0 = if i == 0 { file.start.strain } else { 0.0 };
         runs.push(Run {
+            index: i + 1,
             law,
             strain0: e0,
             from_mm: from,
@@ -1300,7 +1508,7 @@ fn lay_out(
         });
         from = if *s > 0.0 { to } else { from };
     }
-    // Passes the ratio limit needs in each run, for the message when the total is too many.
+    // Passes the ratio limit needs in each run: each run leaves the later ones theirs.
     let mut need = Vec::with_capacity(runs.len());
     for r in &runs {
         need.push(if r.to_mm < r.from_mm {
@@ -1313,16 +1521,14 @@ fn lay_out(
     let mut out = Vec::new();
     for (i, r) in runs.iter().enumerate() {
         if r.to_mm >= r.from_mm {
-            out.push((r.from_mm, r.to_mm, r.strain0, Vec::new()));
+            out.push((*r, Vec::new()));
             continue;
         }
         let later: u32 = need[i + 1..].iter().sum();
-        let earlier_need: u32 = need[..i].iter().sum();
         let cap = max_passes.saturating_sub(used).saturating_sub(later);
-        let elsewhere = earlier_need.max(used) + later;
-        let passes = chooser.design_run(r, i + 1, need[i], cap, elsewhere, max_passes)?;
+        let passes = chooser.design_run(r, need[i], cap)?;
         used += passes.len() as u32;
-        out.push((r.from_mm, r.to_mm, r.strain0, passes));
+        out.push((*r, passes));
     }
     Ok(out)
 }
@@ -1343,8 +1549,9 @@ fn finish(
     let mut run_plans = Vec::new();
     let mut all: Vec<PassPick> = Vec::new();
     let n_runs = runs.len();
-    let last_draw = runs.iter().rposition(|r| !r.3.is_empty());
-    for (i, (from, to, e0, passes)) in runs.into_iter().enumerate() {
+    let last_draw = runs.iter().rposition(|r| !r.1.is_empty());
+    for (i, (run, passes)) in runs.into_iter().enumerate() {
+        let (from, to, e0) = (run.from_mm, run.to_mm, run.strain0);
         if !passes.is_empty() {
             let lo = passes.iter().map(|p| p.ratio).fold(f64::INFINITY, f64::min);
             let hi = passes.iter().map(|p| p.ratio).fold(0.0, f64::max);
@@ -1425,21 +1632,17 @@ fn finish(
         .iter()
         .find(|r| r.flags.iter().any(|f| f.is_over()))
     {
-        return Err(DesignError::RunLimits {
-            run: 0,
+        return Err(DesignError::CheckFlags {
+            step: bad.step,
             from_mm: bad.entry_diameter_mm,
             to_mm: bad.exit_diameter_mm,
-            strain: bad.pass_strain.unwrap_or(0.0),
-            binding: format!(
-                "the check of step {} flags {}",
-                bad.step,
-                bad.flags
-                    .iter()
-                    .map(|f| f.name())
-                    .collect::<Vec<_>>()
-                    .join(", ")
-            ),
-            remedy: "relax the limit named, or try another strategy".into(),
+            flags: bad
+                .flags
+                .iter()
+                .filter(|f| f.is_over())
+                .map(|f| f.name())
+                .collect::<Vec<_>>()
+                .join(", "),
         });
     }
     let mut notes = Vec::new();
@@ -1539,6 +1742,24 @@ mod tests {
         assert!(s <= 2.0);
         assert_eq!(cold_work_runs(1.0, 0.0, None).unwrap(), vec![1.0]);
         assert_eq!(cold_work_runs(1.0, 0.0, Some(2.0)).unwrap(), vec![1.0]);
+    }
+
+    #[test]
+    fn advice_values_round_towards_the_feasible_side() {
+        // A "raise to at least" printed to 4 places never falls short of the
+        // value needed, nor a "lower to at most" above the value allowed.
+        assert_eq!(at_least(1.23451, 4), 1.2346);
+        assert_eq!(at_least(1.5, 4), 1.5);
+        assert_eq!(at_most(0.32709, 4), 0.327);
+        assert_eq!(at_most(470.0, 1), 470.0);
+    }
+
+    #[test]
+    fn a_diameter_in_millimetres_is_written_once() {
+        let d = |t: &str| crate::size::Diameter::parse(t).unwrap();
+        assert_eq!(as_written(&d("9")), "9 mm");
+        assert_eq!(as_written(&d("9mm")), "9 mm");
+        assert_eq!(as_written(&d("AWG 10")), "AWG 10 (2.5882 mm)");
     }
 
     #[test]

@@ -156,7 +156,7 @@ fn an_infeasible_design_names_the_binding_constraint_exits_1_and_writes_nothing(
         // Too few passes for the ratio limit.
         (
             "target:\n  diameter: 1.0\n  max_passes: 3\n",
-            "draw-ratio limit binds",
+            "target.max_passes 3 is too few",
         ),
     ];
     for (i, (target, words)) in cases.iter().enumerate() {
@@ -217,4 +217,165 @@ fn every_format_carries_the_design_and_the_caution() {
     assert!(csv.lines().any(|l| l.trim_end().ends_with(",temper")));
     let table = String::from_utf8(coldpass(&["design", d]).stdout).unwrap();
     assert!(table.starts_with("Design: equal-ratio") && table.contains("(temper)"));
+}
+
+/// The copper demo with `max_passes` set to `n`, written to `dir`.
+fn copper_demo_with_max_passes(dir: &Path, n: u32) -> PathBuf {
+    let text = std::fs::read_to_string(root("schedules-demo/design-copper-temper.yaml")).unwrap();
+    assert!(text.contains("max_passes: 30"));
+    write(
+        dir,
+        &format!("max{n}.yaml"),
+        &text.replace("max_passes: 30", &format!("max_passes: {n}")),
+    )
+}
+
+/// Runs `design` with `--emit-schedule`; returns the output and whether the file was written.
+fn design_emitting(file: &Path, dir: &Path) -> (Output, bool) {
+    let out = dir.join(format!(
+        "{}.out.yaml",
+        file.file_stem().unwrap().to_str().unwrap()
+    ));
+    let o = coldpass(&[
+        "design",
+        file.to_str().unwrap(),
+        "--emit-schedule",
+        out.to_str().unwrap(),
+    ]);
+    (o, out.exists())
+}
+
+#[test]
+fn too_few_max_passes_asks_for_the_passes_the_design_needs_not_an_infinite_ratio() {
+    // The demo design is 8 + 5 passes around its temper anneal (13 in all):
+    // with 3 or 12 allowed, the error asks for 13; with 13 the design is made.
+    let dir = tempfile::tempdir().unwrap();
+    for n in [3, 12] {
+        let (o, written) = design_emitting(&copper_demo_with_max_passes(dir.path(), n), dir.path());
+        let err = String::from_utf8_lossy(&o.stderr);
+        assert_eq!(o.status.code(), Some(1), "{err}");
+        assert!(!written && o.stdout.is_empty());
+        assert!(
+            err.contains(&format!("target.max_passes {n} is too few"))
+                && err.contains("takes 13 draw passes (8 + 5 around the temper anneal)")
+                && err.contains("allow at least 13 (target.max_passes)"),
+            "{err}"
+        );
+        // Here the reduction limit, not the ratio limit, sets both counts.
+        assert!(err.contains("target.reduction_max 0.35"), "{err}");
+        for bad in ["inf", "NaN", " 0 passes", "draw ratio of"] {
+            assert!(!err.contains(bad), "{bad:?} in {err}");
+        }
+    }
+    let (o, written) = design_emitting(&copper_demo_with_max_passes(dir.path(), 13), dir.path());
+    assert_eq!(o.status.code(), Some(0));
+    assert!(written);
+    assert!(String::from_utf8_lossy(&o.stdout).contains("13 draw passes (at most 13)"));
+}
+
+#[test]
+fn a_target_at_or_over_the_start_diameter_names_each_diameter_once() {
+    let dir = tempfile::tempdir().unwrap();
+    for (target, words) in [
+        (
+            "9",
+            "target.diameter: 9 mm must be below start.diameter 8 mm",
+        ),
+        (
+            "8.0",
+            "target.diameter: 8 mm must be below start.diameter 8 mm",
+        ),
+        (
+            "\"0.5 in\"",
+            "target.diameter: 0.5 in (12.7000 mm) must be below start.diameter 8 mm",
+        ),
+    ] {
+        let f = write(
+            dir.path(),
+            "big.yaml",
+            &format!("{COPPER}target:\n  diameter: {target}\n"),
+        );
+        let (o, written) = design_emitting(&f, dir.path());
+        let err = String::from_utf8_lossy(&o.stderr);
+        assert_eq!(o.status.code(), Some(1), "{err}");
+        assert!(!written);
+        assert!(err.contains(words), "{err}");
+        // No diameter is given twice (`9 mm (9 mm)`).
+        assert!(!err.contains("(9 mm)") && !err.contains("(8 mm)"), "{err}");
+    }
+}
+
+#[test]
+fn each_refused_design_input_names_the_key_the_value_and_what_is_allowed() {
+    let dir = tempfile::tempdir().unwrap();
+    let t = "target:\n  diameter: 2.0\n";
+    let cases: [(String, &[&str]); 5] = [
+        (
+            format!("{COPPER}{t}  strength_mpa: {{min: 40, max: 60}}\n"),
+            &[
+                "target.strength_mpa 40-60 MPa",
+                "80.0 MPa",
+                "at least 80.0 MPa",
+            ],
+        ),
+        (
+            format!("{COPPER}{t}  strength_mpa: {{min: 480, max: 500}}\n"),
+            &[
+                "target.strength_mpa 480-500 MPa",
+                "470.0 MPa",
+                "below 470.0 MPa",
+            ],
+        ),
+        (
+            format!("{COPPER}{t}  reduction_min: 0.3\n  reduction_max: 0.2\n"),
+            &[
+                "target.reduction_min",
+                "0.3",
+                "must not exceed reduction_max (0.2)",
+            ],
+        ),
+        (
+            format!(
+                "{}{t}",
+                COPPER.replace("semi_angles_deg: [6, 8]", "semi_angles_deg: []")
+            ),
+            &["dies.semi_angles_deg", "[]", "at least one angle"],
+        ),
+        (
+            format!("{COPPER}{t}  max_passes: 0\n"),
+            &["target.max_passes", "= 0", "[1, 200]"],
+        ),
+    ];
+    for (i, (text, words)) in cases.iter().enumerate() {
+        let f = write(dir.path(), &format!("refused{i}.yaml"), text);
+        let (o, written) = design_emitting(&f, dir.path());
+        let err = String::from_utf8_lossy(&o.stderr);
+        assert_eq!(o.status.code(), Some(1), "{err}");
+        assert!(!written && o.stdout.is_empty(), "{err}");
+        for w in *words {
+            assert!(err.contains(w), "{w:?} not in {err}");
+        }
+    }
+}
+
+#[test]
+fn tapered_without_a_taper_is_designed_with_the_documented_default_and_says_so() {
+    let dir = tempfile::tempdir().unwrap();
+    let f = write(
+        dir.path(),
+        "tapered.yaml",
+        &format!("{COPPER}target:\n  diameter: 2.0\n  strategy: tapered\n"),
+    );
+    let v = json(&coldpass(&[
+        "design",
+        f.to_str().unwrap(),
+        "--format",
+        "json",
+    ]));
+    assert_eq!(v["design"]["taper"], 0.9);
+    let notes = v["design"]["notes"].to_string();
+    assert!(
+        notes.contains("taper 0.9 (the default; set target.taper)"),
+        "{notes}"
+    );
 }

@@ -71,13 +71,20 @@ fn perfectly_plastic_sachs_fewest_passes_match_the_slab_limit() {
                 expect,
                 "{angle} deg, mu {mu}, {d0} -> {df}, {strategy}"
             );
-            // One pass fewer cannot be done: the ratio limit binds.
+            // One pass fewer cannot be done: the error asks for the
+            // published count, and the ratio limit is what sets it.
             let text = format!("{text}  max_passes: {}\n", expect - 1);
-            assert!(
-                matches!(passes(&text), Err(DesignError::RatioLimit { .. })),
-                "{:?}",
-                passes(&text)
-            );
+            match passes(&text) {
+                Err(DesignError::TooFewPasses {
+                    passes_needed,
+                    set_by,
+                    ..
+                }) => {
+                    assert_eq!(passes_needed as usize, expect);
+                    assert!(set_by.contains("limits.draw_ratio_max 1"), "{set_by}");
+                }
+                other => panic!("{other:?}"),
+            }
         }
     }
 }
