@@ -58,7 +58,7 @@ const COLD_WORK_MARGIN: f64 = 1e-9;
 const PASSES_COUNT_CEILING: u32 = 1000;
 /// Most draw passes a design may have: the largest `target.max_passes` the
 /// schedule file accepts.
-pub const PASSES_ALLOWED: u32 = 200;
+pub const PASSES_ALLOWED: u32 = crate::schedule::MAX_PASSES_ALLOWED;
 
 /// A pass count for a message: `12 passes`, or `more than 1000 passes`.
 fn passes_in_words(n: &Option<u32>) -> String {

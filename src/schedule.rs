@@ -56,6 +56,8 @@ pub const DEFAULT_SHIFT_HOURS: f64 = 8.0;
 pub const DEFAULT_UTILISATION: f64 = 0.85;
 /// Default largest distance from the optimum semi-angle before a pass is flagged, degrees.
 pub const DEFAULT_ANGLE_TOLERANCE_DEG: f64 = 3.0;
+/// The most draw passes a design file may ask for (`target.max_passes`).
+pub const MAX_PASSES_ALLOWED: u32 = 200;
 /// Default governing method: the most conservative of the four physical estimates.
 pub const DEFAULT_METHOD: Method = Method::Max;
 
@@ -575,10 +577,14 @@ impl ScheduleFile {
                 )?;
             }
             if let Some(n) = t.max_passes {
-                if !(1..=200).contains(&n) {
+                if !(1..=MAX_PASSES_ALLOWED).contains(&n) {
                     return Err(ScheduleError::Value {
                         key: "target.max_passes".into(),
-                        problem: ParamError::new("max_passes", n, "must be in [1, 200]"),
+                        problem: ParamError::new(
+                            "max_passes",
+                            n,
+                            format!("must be in [1, {MAX_PASSES_ALLOWED}]"),
+                        ),
                     });
                 }
             }
