@@ -96,16 +96,26 @@ pub enum FitError {
         /// The previous point's value.
         previous: f64,
     },
-    /// The record is too short to find its linear part.
-    #[error("the record has {found} points: at least {needed} are needed")]
+    /// The record as a whole is too short.
+    #[error("the record has {}: at least {needed} are needed", points(*found))]
     TooFewPoints {
         /// Points given.
         found: usize,
         /// Points needed.
         needed: usize,
     },
+    /// Too few points before half the maximum stress to find Young's modulus.
+    #[error("the elastic range (the points before the stress first reaches half its highest, {below_mpa:.1} MPa) has {}: at least {needed} are needed to find Young's modulus; record the start of the test more densely", points(*found))]
+    TooFewElasticPoints {
+        /// Points found in the range.
+        found: usize,
+        /// Points needed.
+        needed: usize,
+        /// Half the highest stress, MPa: the range ends at the first point that reaches it.
+        below_mpa: f64,
+    },
     /// Too few points between yield and maximum load.
-    #[error("only {found} points lie in the plastic range ({range}): at least {needed} are needed; record the test more densely")]
+    #[error("the plastic range ({range}) has {}: at least {needed} are needed; record the test more densely", points(*found))]
     TooFewPlasticPoints {
         /// Points found in the range.
         found: usize,
@@ -133,7 +143,7 @@ pub enum FitError {
         stress_mpa: f64,
     },
     /// A law was fitted to fewer points than it needs.
-    #[error("`{law}` needs at least {needed} points with strain above 0 to fit; {found} given")]
+    #[error("`{law}` needs at least {} with strain above 0 to fit; {found} given", points(*needed))]
     TooFewForLaw {
         /// The law.
         law: &'static str,
@@ -142,6 +152,15 @@ pub enum FitError {
         /// Points needed.
         needed: usize,
     },
+}
+
+/// "1 point", "5 points".
+fn points(n: usize) -> String {
+    if n == 1 {
+        "1 point".into()
+    } else {
+        format!("{n} points")
+    }
 }
 
 impl FitError {
@@ -582,9 +601,10 @@ fn elastic_line(strain: &[f64], stress_mpa: &[f64], max_mpa: f64) -> Result<(f64
         .position(|&s| s >= 0.5 * max_mpa)
         .unwrap_or(stress_mpa.len());
     if end < MIN_ELASTIC_POINTS {
-        return Err(FitError::TooFewPoints {
+        return Err(FitError::TooFewElasticPoints {
             found: end,
             needed: MIN_ELASTIC_POINTS,
+            below_mpa: 0.5 * max_mpa,
         });
     }
     let w = (end / 3).clamp(MIN_ELASTIC_POINTS, 25);

@@ -167,7 +167,41 @@ fn fails_on_too_few_points_in_the_plastic_range() {
     // three points past yield, then the load falls
     text.push_str("0.010000,310\n0.050000,330\n0.100000,340\n0.110000,300\n");
     let file = written(&dir, &text);
-    fails_writing_nothing(&dir, &file, &[], &["plastic range", "at least 8"]);
+    fails_writing_nothing(
+        &dir,
+        &file,
+        &[],
+        &[
+            "the plastic range (0.2 % offset yield to maximum load) has 3 points",
+            "at least 8 are needed",
+        ],
+    );
+}
+
+#[test]
+fn fails_on_a_sparse_record_naming_the_short_elastic_range_in_good_grammar() {
+    // The demo copper record cut to every 40th line, as a new user did: the
+    // file has 12 points, of which only the first lies before half the
+    // highest stress. The message used to say "the record has 1 points".
+    let dir = TempDir::new().unwrap();
+    let file = edited(&dir, |l| {
+        let header = data_line(&l, 0);
+        l.iter()
+            .enumerate()
+            .filter(|(i, _)| *i < header || (i + 1) % 40 == 0)
+            .map(|(_, x)| x.clone())
+            .collect()
+    });
+    fails_writing_nothing(
+        &dir,
+        &file,
+        &[],
+        &[
+            "the elastic range",
+            "has 1 point: at least 5 are needed",
+            "Young's modulus",
+        ],
+    );
 }
 
 #[test]
@@ -256,17 +290,35 @@ fn a_percent_header_is_read_as_percent() {
 }
 
 #[test]
-fn csv_has_one_row_per_fit_after_the_caution() {
+fn csv_has_one_row_per_fit_each_carrying_the_caution_in_its_last_column() {
+    // Like the check and design CSVs: no comment line a CSV reader would choke on.
     let o = coldpass(&["fit", COPPER, "--format", "csv"]);
     assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
     let out = stdout(&o);
-    let mut lines = out.lines();
-    assert!(lines.next().unwrap().starts_with("# Caution"));
-    assert!(lines
-        .next()
-        .unwrap()
-        .starts_with("law,strain,best,points,rms_mpa"));
-    assert_eq!(lines.count(), 8);
+    let mut reader = csv::Reader::from_reader(out.as_bytes());
+    let head = reader.headers().unwrap().clone();
+    assert!(out.starts_with("law,strain,best,points,rms_mpa"), "{out}");
+    assert_eq!(head.iter().next_back(), Some("caution"));
+    let rows: Vec<csv::StringRecord> = reader.records().map(Result::unwrap).collect();
+    assert_eq!(rows.len(), 8);
+    for row in &rows {
+        assert_eq!(row.len(), head.len());
+        let caution = row.iter().next_back().unwrap();
+        assert!(
+            caution.starts_with("Caution:") && caution.contains("licensed practice"),
+            "{caution}"
+        );
+    }
+}
+
+#[test]
+fn the_table_names_the_reach_column_by_its_strain_not_as_a_stress() {
+    // "stress at 3.20 MPa" read as a stress of 3.20 MPa.
+    let o = coldpass(&["fit", COPPER, "--reach-strain", "3.2"]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let out = stdout(&o);
+    assert!(out.contains("stress MPa at strain 3.20"), "{out}");
+    assert!(!out.contains("stress at 3.20 MPa"), "{out}");
 }
 
 #[test]
@@ -319,15 +371,179 @@ fn the_emitted_law_pastes_into_a_schedule() {
     );
 }
 
+/// The `--reach-strain` of the README's `coldpass fit` command for the demo copper record.
+fn readme_reach_strain() -> String {
+    let readme = std::fs::read_to_string(root("README.md")).unwrap();
+    let command = readme
+        .lines()
+        .find(|l| l.contains(&format!("fit {COPPER}")))
+        .expect("the README shows a fit command for the demo copper record");
+    let mut words = command.split_whitespace();
+    words.find(|w| *w == "--reach-strain");
+    words
+        .next()
+        .expect("the README's fit command gives --reach-strain")
+        .to_string()
+}
+
+/// One `<text>` of an SVG: x, anchor, font size (px) and its characters.
+struct SvgText {
+    x: f64,
+    anchor: String,
+    font_px: f64,
+    chars: usize,
+    /// Turned a quarter (the y-axis title): it spans one line height across,
+    /// from x (the text hangs below its anchor by 0.76 em).
+    rotated: bool,
+    text: String,
+}
+
+fn attr<'a>(tag: &'a str, name: &str) -> Option<&'a str> {
+    let start = tag.find(&format!(" {name}=\""))? + name.len() + 3;
+    let len = tag[start..].find('"')?;
+    Some(&tag[start..start + len])
+}
+
+fn svg_width(svg: &str) -> f64 {
+    let tag = &svg[..svg.find('>').unwrap()];
+    attr(tag, "width").unwrap().parse().unwrap()
+}
+
+fn svg_texts(svg: &str) -> Vec<SvgText> {
+    svg.split("<text")
+        .skip(1)
+        .map(|piece| {
+            let (tag, rest) = piece.split_once('>').unwrap();
+            let body = rest[..rest.find("</text>").unwrap()].trim();
+            let text = body
+                .replace("&apos;", "'")
+                .replace("&quot;", "\"")
+                .replace("&lt;", "<")
+                .replace("&gt;", ">")
+                .replace("&amp;", "&");
+            SvgText {
+                x: attr(tag, "x").unwrap().parse().unwrap(),
+                anchor: attr(tag, "text-anchor").unwrap_or("start").to_string(),
+                font_px: attr(tag, "font-size").unwrap().parse().unwrap(),
+                chars: text.chars().count(),
+                rotated: attr(tag, "transform").is_some_and(|t| t.starts_with("rotate")),
+                text,
+            }
+        })
+        .collect()
+}
+
+/// The fit chart of the demo steel record (one panel) and of the copper
+/// record with a reach strain (two panels).
+fn demo_plots(dir: &TempDir) -> Vec<(&'static str, String)> {
+    let runs: [(&str, &[&str]); 2] = [
+        (
+            "steel, one panel",
+            &[STEEL, "--gauge-length-mm", "50", "--diameter-mm", "5.5"],
+        ),
+        ("copper, two panels", &[COPPER, "--reach-strain", "3.2"]),
+    ];
+    runs.iter()
+        .map(|(name, args)| {
+            let plot = dir.path().join("chart.svg");
+            let mut all = vec!["fit"];
+            all.extend_from_slice(args);
+            all.extend_from_slice(&["--plot", plot.to_str().unwrap()]);
+            let o = coldpass(&all);
+            assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+            (*name, std::fs::read_to_string(&plot).unwrap())
+        })
+        .collect()
+}
+
 #[test]
-fn the_committed_demo_law_is_what_emit_law_writes() {
+fn every_text_of_the_fit_plots_lies_inside_the_picture() {
+    // The one-panel chart ran its caution footer off the right edge. Each
+    // text is taken at 0.6 em a character, wider than the drawn sans-serif.
+    let dir = TempDir::new().unwrap();
+    for (name, svg) in demo_plots(&dir) {
+        let width = svg_width(&svg);
+        let texts = svg_texts(&svg);
+        assert!(
+            texts.iter().any(|t| t.text.starts_with("Caution:")),
+            "{name}"
+        );
+        for t in texts {
+            let w = t.chars as f64 * 0.6 * t.font_px;
+            let (left, right) = match t.anchor.as_str() {
+                _ if t.rotated => (t.x, t.x + t.font_px),
+                "middle" => (t.x - w / 2.0, t.x + w / 2.0),
+                "end" => (t.x - w, t.x),
+                _ => (t.x, t.x + w),
+            };
+            assert!(
+                left >= 0.0 && right <= width,
+                "{name}: '{}' spans {left:.0} to {right:.0} px of {width}",
+                t.text
+            );
+        }
+    }
+}
+
+#[test]
+fn the_fit_plots_draw_the_data_as_dots_that_can_be_seen_over_the_laws() {
+    // The data were 1 px dots under 2 px law curves: now each dot is at least
+    // 2 px with a wider white rim, drawn after the curves, thinned so that
+    // they do not merge, and the legend says how many were drawn.
+    let dir = TempDir::new().unwrap();
+    for (name, svg) in demo_plots(&dir) {
+        let circles: Vec<(usize, f64, String)> = svg
+            .match_indices("<circle")
+            .map(|(at, _)| {
+                let tag = &svg[at..at + svg[at..].find('>').unwrap()];
+                (
+                    at,
+                    attr(tag, "r").unwrap().parse().unwrap(),
+                    attr(tag, "fill").unwrap().to_string(),
+                )
+            })
+            .collect();
+        let dots: Vec<usize> = (1..circles.len())
+            .filter(|&i| circles[i].2 != "#FFFFFF")
+            .collect();
+        assert!(
+            (20..=400).contains(&dots.len()),
+            "{name}: {} dots",
+            dots.len()
+        );
+        for &i in &dots {
+            let (rim, dot) = (&circles[i - 1], &circles[i]);
+            assert!(dot.1 >= 2.0, "{name}: a dot of radius {}", dot.1);
+            assert!(
+                rim.2 == "#FFFFFF" && rim.1 > dot.1,
+                "{name}: a dot without its rim"
+            );
+        }
+        // The six laws' curves (2 px) of the first panel come before its first dot.
+        let first_dot = circles[dots[0]].0;
+        let curves = svg[..first_dot]
+            .split("<polyline")
+            .filter(|p| p.contains("stroke-width=\"2\""))
+            .count();
+        assert!(curves >= 6, "{name}: {curves} curves before the first dot");
+        assert!(
+            svg.contains(" drawn)"),
+            "{name}: the legend says how many were drawn"
+        );
+    }
+}
+
+#[test]
+fn the_committed_demo_law_is_what_the_readme_fit_command_writes() {
+    // A user running the README's command gets the committed file.
+    let reach = readme_reach_strain();
     let dir = TempDir::new().unwrap();
     let law = dir.path().join("law.yaml");
     let o = coldpass(&[
         "fit",
         COPPER,
         "--reach-strain",
-        "3.5",
+        &reach,
         "--emit-law",
         law.to_str().unwrap(),
     ]);

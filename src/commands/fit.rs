@@ -6,6 +6,7 @@
 use std::path::{Path, PathBuf};
 
 use anyhow::{anyhow, bail, Context, Result};
+use clap::builder::{PossibleValuesParser, TypedValueParser};
 use clap::{Args, ValueEnum};
 
 use coldpass::fit::{self, DataKind, FitError, FitLaw, FitOptions};
@@ -61,9 +62,10 @@ pub struct FitArgs {
     /// the tensile test that is.
     #[arg(long, value_name = "STRAIN")]
     pub reach_strain: Option<f64>,
-    /// Law for --emit-law; default: the best by AIC.
-    #[arg(long, value_enum, value_name = "NAME")]
-    pub law: Option<LawArg>,
+    /// Law for --emit-law; default: the best by AIC. The total-strain forms
+    /// are written as `perfectly-plastic` and `linear`.
+    #[arg(long, value_name = "NAME", value_parser = law_parser())]
+    pub law: Option<FitLaw>,
     /// Write the chosen law as a `flow:` block for a schedule file.
     #[arg(long, value_name = "FILE.yaml")]
     pub emit_law: Option<PathBuf>,
@@ -98,40 +100,11 @@ pub enum ForceUnit {
     Kn,
 }
 
-/// A law by its report name.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
-pub enum LawArg {
-    /// `yield_mpa`
-    PerfectlyPlastic,
-    /// `yield_mpa`, `hardening_modulus_mpa`
-    Linear,
-    /// `k_mpa`, `n`
-    Hollomon,
-    /// `sigma0_mpa`, `k_mpa`, `n`
-    Ludwik,
-    /// `k_mpa`, `eps0`, `n`
-    Swift,
-    /// `sigma0_mpa`, `saturation_mpa`, `eps_c`
-    Voce,
-    /// written as `perfectly-plastic`
-    ElasticPerfectlyPlastic,
-    /// written as `linear`
-    ElasticLinear,
-}
-
-impl From<LawArg> for FitLaw {
-    fn from(l: LawArg) -> Self {
-        match l {
-            LawArg::PerfectlyPlastic => FitLaw::PerfectlyPlastic,
-            LawArg::Linear => FitLaw::Linear,
-            LawArg::Hollomon => FitLaw::Hollomon,
-            LawArg::Ludwik => FitLaw::Ludwik,
-            LawArg::Swift => FitLaw::Swift,
-            LawArg::Voce => FitLaw::Voce,
-            LawArg::ElasticPerfectlyPlastic => FitLaw::ElasticPerfectlyPlastic,
-            LawArg::ElasticLinear => FitLaw::ElasticLinear,
-        }
-    }
+/// `--law`: one of the core's law names ([`FitLaw::name`]), so the list lives
+/// in one place; `--help` and a wrong name list them all.
+fn law_parser() -> impl TypedValueParser<Value = FitLaw> {
+    PossibleValuesParser::new(FitLaw::ALL.map(FitLaw::name))
+        .try_map(|name| FitLaw::from_name(&name).ok_or_else(|| format!("no law is named '{name}'")))
 }
 
 /// A numeric column read from the file, with the line of each value.
@@ -383,7 +356,6 @@ pub fn run(args: &FitArgs) -> Result<u8> {
         Some(_) => {
             let chosen = args
                 .law
-                .map(FitLaw::from)
                 .or(result.best)
                 .context("no fitted law is valid for a schedule, so there is none to write")?;
             Some(report::law_yaml(&result, chosen, &source)?)

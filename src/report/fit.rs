@@ -196,8 +196,8 @@ pub fn table(r: &FitReport, src: &Source) -> String {
     let mut b = Builder::default();
     let reach = r
         .reach_strain
-        .map_or("stress at reach MPa".to_string(), |x| {
-            format!("stress at {} MPa", sig(x, 3))
+        .map_or("stress MPa at reach strain".to_string(), |x| {
+            format!("stress MPa at strain {}", sig(x, 3))
         });
     b.push_record([
         "law".to_string(),
@@ -264,8 +264,10 @@ pub fn table(r: &FitReport, src: &Source) -> String {
     out
 }
 
-/// CSV: a `#` caution line, then one row per fit with every parameter key
-/// as a column (empty where a law has none) and its `_std_error` beside it.
+/// CSV: one row per fit with every parameter key as a column (empty where a
+/// law has none) and its `_std_error` beside it; like the check and design
+/// CSVs, every row carries the caution in its last column, `caution` (a `#`
+/// line is not CSV and many readers stop at it).
 pub fn csv(r: &FitReport, _src: &Source) -> Result<String> {
     let mut w = csv::Writer::from_writer(Vec::new());
     let mut head: Vec<String> = [
@@ -288,6 +290,7 @@ pub fn csv(r: &FitReport, _src: &Source) -> Result<String> {
         head.push(k.to_string());
         head.push(format!("{k}_std_error"));
     }
+    head.push("caution".to_string());
     w.write_record(&head)?;
     let num = |v: Option<f64>| v.and_then(finite).map_or(String::new(), |x| x.to_string());
     for f in &r.fits {
@@ -309,10 +312,10 @@ pub fn csv(r: &FitReport, _src: &Source) -> Result<String> {
             row.push(num(o.params.get(k).copied().flatten()));
             row.push(num(o.std_errors.get(k).copied().flatten()));
         }
+        row.push(CAUTION.to_string());
         w.write_record(&row)?;
     }
-    let body = String::from_utf8(w.into_inner().context("writing CSV")?)?;
-    Ok(format!("# {CAUTION}\n{body}"))
+    Ok(String::from_utf8(w.into_inner().context("writing CSV")?)?)
 }
 
 /// The chosen law as a `flow:` block a schedule file can paste under
@@ -417,22 +420,27 @@ pub fn svg(r: &FitReport, src: &Source) -> Result<String> {
     {
         let wide = r.reach_strain.is_some_and(|x| x > r.strain_to());
         let size = if wide { (1200, 620) } else { (760, 620) };
+        // The caution in as many lines as the width needs, so none runs off the edge.
+        let caution = wrap_words(CAUTION, (size.0 as usize - 32) / CAUTION_CHAR_PX);
+        let foot_px = 14 + 16 * caution.len() as u32;
         let root = SVGBackend::with_string(&mut buf, size).into_drawing_area();
         root.fill(&WHITE).map_err(plot_err)?;
         let (top, rest) = root.split_vertically(44);
-        let (body, foot) = rest.split_vertically(size.1 - 44 - 30);
+        let (body, foot) = rest.split_vertically(size.1 - 44 - foot_px);
         top.draw(&Text::new(
             format!("True stress vs true plastic strain: {}", src.file),
             (16, 14),
             ("sans-serif", 20).into_font(),
         ))
         .map_err(plot_err)?;
-        foot.draw(&Text::new(
-            CAUTION,
-            (16, 8),
-            ("sans-serif", 12).into_font().color(&RGBColor(90, 90, 90)),
-        ))
-        .map_err(plot_err)?;
+        for (i, line) in caution.iter().enumerate() {
+            foot.draw(&Text::new(
+                line.as_str(),
+                (16, 6 + 16 * i as i32),
+                ("sans-serif", 12).into_font().color(&RGBColor(90, 90, 90)),
+            ))
+            .map_err(plot_err)?;
+        }
         let laws: Vec<&LawFit> = r
             .fits
             .iter()
@@ -449,6 +457,30 @@ pub fn svg(r: &FitReport, src: &Source) -> Result<String> {
     }
     Ok(buf)
 }
+
+/// A generous width of one character of the 12-point caution, px (the
+/// drawn font is narrower; this leaves room for a wider one).
+const CAUTION_CHAR_PX: usize = 6;
+
+/// `text` broken at spaces into lines of at most `width` characters (a
+/// longer word stands alone on its line).
+fn wrap_words(text: &str, width: usize) -> Vec<String> {
+    let mut lines: Vec<String> = Vec::new();
+    for word in text.split_whitespace() {
+        match lines.last_mut() {
+            Some(line) if line.chars().count() + 1 + word.chars().count() <= width => {
+                line.push(' ');
+                line.push_str(word);
+            }
+            _ => lines.push(word.to_string()),
+        }
+    }
+    lines
+}
+
+/// Fewest pixels between the centres of two data dots drawn: closer points
+/// are left out so that each dot drawn can be seen.
+const DOT_GAP_PX: i32 = 10;
 
 fn plot_err<E: std::fmt::Debug>(e: E) -> anyhow::Error {
     anyhow::anyhow!("drawing the chart: {e:?}")
@@ -508,6 +540,8 @@ where
     let mut chart = ChartBuilder::on(area)
         .caption(caption, ("sans-serif", 16))
         .margin(12)
+        // room for the half of the last x tick label that lies past the axis end
+        .margin_right(30)
         .x_label_area_size(44)
         .y_label_area_size(62)
         .build_cartesian_2d(x0..x_max, 0.0..y_max)
@@ -547,18 +581,47 @@ where
                 .map_err(plot_err)?;
         }
     }
-    let step = (r.plastic_strain.len() / 300).max(1);
-    chart
-        .draw_series(
-            r.plastic_strain
-                .iter()
-                .zip(&r.true_stress_mpa)
-                .step_by(step)
-                .map(|(&x, &y)| Circle::new((x, y), 1, RGBColor(70, 70, 70).filled())),
+    // The data over the laws, a white rim round each dot so that it stands
+    // out on a curve, thinned to one dot per few pixels along the record.
+    let mut dots = Vec::new();
+    let mut last: Option<(i32, i32)> = None;
+    for (&x, &y) in r.plastic_strain.iter().zip(&r.true_stress_mpa) {
+        if !(x0..=x_max).contains(&x) || !(0.0..=y_max).contains(&y) {
+            continue;
+        }
+        let at = chart.backend_coord(&(x, y));
+        let far = last.is_none_or(|(lx, ly)| {
+            let (dx, dy) = (at.0 - lx, at.1 - ly);
+            dx * dx + dy * dy >= DOT_GAP_PX * DOT_GAP_PX
+        });
+        if far {
+            dots.push((x, y));
+            last = Some(at);
+        }
+    }
+    let ink = RGBColor(20, 20, 20);
+    let label = if dots.len() < r.plastic_strain.len() {
+        format!(
+            "data ({} points, {} drawn)",
+            r.plastic_strain.len(),
+            dots.len()
         )
+    } else {
+        format!("data ({} points)", r.plastic_strain.len())
+    };
+    chart
+        .draw_series(dots.iter().map(|&p| {
+            EmptyElement::at(p)
+                + Circle::new((0, 0), 3, WHITE.filled())
+                + Circle::new((0, 0), 2, ink.filled())
+        }))
         .map_err(plot_err)?
-        .label(format!("data ({} points)", r.plastic_strain.len()))
-        .legend(|(x, y)| Circle::new((x + 10, y), 3, RGBColor(70, 70, 70).filled()));
+        .label(label)
+        .legend(move |(x, y)| {
+            EmptyElement::at((x + 10, y))
+                + Circle::new((0, 0), 3, WHITE.filled())
+                + Circle::new((0, 0), 2, ink.filled())
+        });
     if reach {
         let grey = ShapeStyle::from(&RGBColor(60, 60, 60)).stroke_width(1);
         chart
