@@ -523,7 +523,11 @@ pub fn evaluate(
     let worst = draws
         .iter()
         .filter_map(|r| r.draw_ratio.map(|x| (x, r.step)))
-        .max_by(|a, b| a.0.total_cmp(&b.0));
+        // The first of equal ratios, so an equal-ratio run names its first pass.
+        .fold(None, |best: Option<(f64, usize)>, (x, step)| match best {
+            Some((b, _)) if b >= x => best,
+            _ => Some((x, step)),
+        });
     let verdict = rows
         .iter()
         .flat_map(|r| r.flags.iter())
