@@ -523,9 +523,10 @@ pub fn evaluate(
     let worst = draws
         .iter()
         .filter_map(|r| r.draw_ratio.map(|x| (x, r.step)))
-        // The first of equal ratios, so an equal-ratio run names its first pass.
+        // The first of equal ratios (equal to a part in a million, the design
+        // solver's tolerance), so an equal-ratio run names its first pass.
         .fold(None, |best: Option<(f64, usize)>, (x, step)| match best {
-            Some((b, _)) if b >= x => best,
+            Some((b, _)) if x <= b * (1.0 + 1e-6) => best,
             _ => Some((x, step)),
         });
     let verdict = rows
