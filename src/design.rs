@@ -37,7 +37,7 @@ use crate::evaluation::{evaluate, EvaluateOptions, ScheduleReport};
 use crate::flow::{FlowLaw, StrainAt};
 use crate::pass::{self, analyse_pass, DrawPass, Method, PassError, Settings};
 use crate::schedule::{
-    self, DrawStep, ScheduleError, ScheduleFile, Step, Strategy, Target, Window,
+    self, DieOverrides, DrawStep, ScheduleError, ScheduleFile, Step, Strategy, Target, Window,
 };
 use crate::size::Diameter;
 
@@ -478,9 +478,9 @@ impl Ctx<'_> {
         let mut best: Option<PassPick> = None;
         let mut best_any: Option<PassPick> = None;
         for &a in &self.angles {
-            let step = DrawStep {
+            let step = DieOverrides {
                 semi_angle_deg: Some(a),
-                ..DrawStep::default()
+                ..DieOverrides::default()
             };
             let die = self.file.die_for(&step, a)?;
             let dp = DrawPass {
@@ -1577,9 +1577,12 @@ fn finish(
                 })?
             };
             steps.push(Step::Draw(DrawStep {
-                exit: Some(exit),
-                semi_angle_deg: chooser.ctx.from_stock.then_some(p.semi_angle_deg),
-                ..DrawStep::default()
+                exit,
+                die: DieOverrides {
+                    semi_angle_deg: chooser.ctx.from_stock.then_some(p.semi_angle_deg),
+                    ..DieOverrides::default()
+                },
+                back_tension_mpa: None,
             }));
         }
         all.extend(passes.iter().copied());

@@ -298,7 +298,7 @@ pub fn evaluate(
         .iter()
         .rev()
         .find_map(|s| match s {
-            Step::Draw(d) => d.exit.as_ref().map(|e| e.mm()),
+            Step::Draw(d) => Some(d.exit.mm()),
             Step::Anneal => None,
         })
         .unwrap_or(start_d);
@@ -353,10 +353,7 @@ pub fn evaluate(
             }
             Step::Draw(d) => d,
         };
-        let exit = draw.exit.as_ref().ok_or_else(|| ScheduleError::Missing {
-            key: step_key(i, ".exit"),
-            why: "a draw pass needs its die size".into(),
-        })?;
+        let exit = &draw.exit;
         let d_out = exit.mm();
         if d_out >= d_in {
             return Err(ScheduleError::Value {
@@ -369,6 +366,7 @@ pub fn evaluate(
             });
         }
         let semi_angle = draw
+            .die
             .semi_angle_deg
             .or(file.dies.semi_angle_deg)
             .ok_or_else(|| ScheduleError::Missing {
@@ -376,7 +374,7 @@ pub fn evaluate(
                 why: "no semi_angle_deg on the pass or under dies".into(),
             })?;
         let die = file
-            .die_for(draw, semi_angle)
+            .die_for(&draw.die, semi_angle)
             .map_err(|e| pass_error(i, e))?;
         if needs_efficiency && die.efficiency.is_none() {
             return Err(ScheduleError::Missing {

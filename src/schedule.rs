@@ -275,11 +275,21 @@ pub enum Step {
     Anneal,
 }
 
-/// A draw pass: its die size and any die setting that differs from `dies`.
-#[derive(Debug, Clone, PartialEq, Default)]
+/// A draw pass: its die size, any die setting that differs from `dies`,
+/// and its back tension.
+#[derive(Debug, Clone, PartialEq)]
 pub struct DrawStep {
     /// Exit diameter (die size).
-    pub exit: Option<Diameter>,
+    pub exit: Diameter,
+    /// Die settings of this pass that differ from `dies`.
+    pub die: DieOverrides,
+    /// Back tension, MPa.
+    pub back_tension_mpa: Option<f64>,
+}
+
+/// Die settings given on one pass, each over the file's `dies` default.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct DieOverrides {
     /// Semi-angle, degrees.
     pub semi_angle_deg: Option<f64>,
     /// Coulomb friction mu.
@@ -290,8 +300,6 @@ pub struct DrawStep {
     pub land_length_mm: Option<f64>,
     /// Drawing efficiency.
     pub efficiency: Option<f64>,
-    /// Back tension, MPa.
-    pub back_tension_mpa: Option<f64>,
 }
 
 /// An anneal step's settings (none yet: `anneal: {}`).
@@ -341,12 +349,14 @@ impl TryFrom<StepText> for Step {
             (None, Some(_)) => Ok(Step::Anneal),
             (None, None) => Err("a step needs `exit: <diameter>` (a draw) or `anneal: {}`".into()),
             (Some(exit), None) => Ok(Step::Draw(DrawStep {
-                exit: Some(exit),
-                semi_angle_deg: t.semi_angle_deg,
-                friction: t.friction,
-                friction_factor: t.friction_factor,
-                land_length_mm: t.land_length_mm,
-                efficiency: t.efficiency,
+                exit,
+                die: DieOverrides {
+                    semi_angle_deg: t.semi_angle_deg,
+                    friction: t.friction,
+                    friction_factor: t.friction_factor,
+                    land_length_mm: t.land_length_mm,
+                    efficiency: t.efficiency,
+                },
                 back_tension_mpa: t.back_tension_mpa,
             })),
         }
@@ -361,13 +371,13 @@ impl From<Step> for StepText {
                 ..StepText::default()
             },
             Step::Draw(d) => StepText {
-                exit: d.exit,
+                exit: Some(d.exit),
                 anneal: None,
-                semi_angle_deg: d.semi_angle_deg,
-                friction: d.friction,
-                friction_factor: d.friction_factor,
-                land_length_mm: d.land_length_mm,
-                efficiency: d.efficiency,
+                semi_angle_deg: d.die.semi_angle_deg,
+                friction: d.die.friction,
+                friction_factor: d.die.friction_factor,
+                land_length_mm: d.die.land_length_mm,
+                efficiency: d.die.efficiency,
                 back_tension_mpa: d.back_tension_mpa,
             },
         }
@@ -457,7 +467,7 @@ impl ScheduleFile {
                 )?;
             }
         }
-        self.die_for(&DrawStep::default(), d.semi_angle_deg.unwrap_or(6.0))
+        self.die_for(&DieOverrides::default(), d.semi_angle_deg.unwrap_or(6.0))
             .map_err(|problem| ScheduleError::Pass {
                 key: "dies".into(),
                 problem,
@@ -596,7 +606,7 @@ impl ScheduleFile {
     /// with `semi_angle_deg` when neither gives one.
     pub fn die_for(
         &self,
-        step: &DrawStep,
+        step: &DieOverrides,
         semi_angle_deg: f64,
     ) -> Result<Die, crate::pass::PassError> {
         let d = &self.dies;

@@ -103,7 +103,7 @@ fn last_exit_mm(f: &ScheduleFile) -> f64 {
         .iter()
         .rev()
         .find_map(|s| match s {
-            Step::Draw(d) => d.exit.as_ref().map(|e| e.mm()),
+            Step::Draw(d) => Some(d.exit.mm()),
             Step::Anneal => None,
         })
         .unwrap()
