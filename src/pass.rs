@@ -739,7 +739,7 @@ mod tests {
         assert!((b - 0.8563).abs() < 5e-5);
         let closed = r.mean_flow_stress_mpa * (1.0 + b) / b * (1.0 - 0.8f64.powf(b));
         assert!((closed - 240.42).abs() < 0.01, "{closed}");
-        // The integral form with the actual law runs about 1.2 % higher (reference sheet, computed).
+        // The integral form with the actual law runs about 1.2 % higher (docs/physics.md, computed).
         let excess = r.draw_stress_mpa.sachs / closed - 1.0;
         assert!((0.010..0.014).contains(&excess), "{excess}");
     }
@@ -783,14 +783,14 @@ mod tests {
 
     #[test]
     fn avitzur_f_self_checks() {
-        // Avitzur's f(alpha) -> 1 as alpha -> 0; f(6 deg) = 1.000229 (reference sheet).
+        // Avitzur's f(alpha) -> 1 as alpha -> 0; f(6 deg) = 1.000229 (docs/physics.md).
         assert!((avitzur_f(0.01f64.to_radians()) - 1.0).abs() < 1e-6);
         assert!((avitzur_f(6f64.to_radians()) - 1.000229).abs() < 1e-6);
     }
 
     #[test]
     fn delta_chart_values() {
-        // Published die-maker's chart, within 1.5 % (reference sheet).
+        // Published die-maker's chart, within 1.5 % (docs/physics.md).
         for (deg, r, chart) in [
             (6.0, 0.20, 1.88),
             (8.0, 0.35, 1.30),

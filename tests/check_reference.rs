@@ -55,7 +55,7 @@ fn one_pass_schedule_reproduces_dieter_example_19_1() {
 
 #[test]
 fn gauges_match_the_astm_b3_table() {
-    // ASTM B3 Table 1 (published, via the reference sheet), inches; the table
+    // ASTM B3 Table 1 (published, via the docs/physics.md), inches; the table
     // rounds to 4 significant figures and never finer than 0.0001 in.
     for (gauge, table_in) in [
         ("AWG 0000", 0.4600),

@@ -1,7 +1,7 @@
 //! Published checks on the computation core: every value asserted here comes
 //! from an outside source named beside it (or is a closed form from one), was
 //! recomputed by hand before it was written down, and is never taken from the
-//! code under test. Sources are those of /work/shared/REFERENCE.md; "from
+//! code under test. Sources are those of docs/physics.md; "from
 //! memory" and "common practice" are marked as the sheet marks them.
 
 use coldpass::pass::{avitzur_f, delta, true_strain};
@@ -163,7 +163,7 @@ fn perfectly_plastic_sachs_limit_is_one_minus_one_plus_b_to_minus_one_over_b() {
 #[test]
 fn hollomon_annealed_ideal_work_limit_is_n_plus_one() {
     // Hollomon from annealed, ideal work: eps_max = n + 1 (Hosford & Caddell,
-    // from memory); n = 0.3 gives r_max = 1 - e^(-1.3) = 0.7275 (reference sheet).
+    // from memory); n = 0.3 gives r_max = 1 - e^(-1.3) = 0.7275 (docs/physics.md).
     for (k, n) in [(1300.0, 0.3), (530.0, 0.26), (315.0, 0.54), (960.0, 0.10)] {
         let law = FlowLaw::hollomon(k, n).unwrap();
         let r_max = reduction_at_unit_draw_ratio(&law, Die::new(6.0, 0.05).unwrap(), Method::Ideal);
@@ -177,7 +177,7 @@ fn hollomon_annealed_ideal_work_limit_is_n_plus_one() {
 
 #[test]
 fn hollomon_annealed_efficiency_limit_is_eta_times_n_plus_one() {
-    // Efficiency method: eps_max = eta (n + 1) (reference sheet, from the ideal-work
+    // Efficiency method: eps_max = eta (n + 1) (docs/physics.md, from the ideal-work
     // limit of Hosford & Caddell, from memory).
     for (n, eta) in [(0.3, 0.6), (0.26, 0.5), (0.45, 0.7), (0.2, 1.0)] {
         let law = FlowLaw::hollomon(800.0, n).unwrap();
@@ -196,7 +196,7 @@ fn hollomon_annealed_efficiency_limit_is_eta_times_n_plus_one() {
 
 #[test]
 fn delta_matches_the_die_makers_chart_within_1_5_percent() {
-    // Published die-maker's chart of Delta, within 1.5 % (reference sheet);
+    // Published die-maker's chart of Delta, within 1.5 % (docs/physics.md);
     // formula Delta = (alpha/r)(1 + sqrt(1-r))^2 (Hosford & Caddell, from memory).
     let law = FlowLaw::hollomon(530.0, 0.26).unwrap();
     for (deg, r, chart) in [
@@ -239,7 +239,7 @@ fn redundant_factor_is_one_plus_c_times_delta_minus_one() {
 #[test]
 fn avitzur_f_tends_to_one_and_is_1_000229_at_6_degrees() {
     // Avitzur, J. Eng. Ind. 85 (1963) 89 (from memory): f(alpha) -> 1 as alpha -> 0;
-    // f(6 deg) = 1.000229 (reference sheet self-check).
+    // f(6 deg) = 1.000229 (docs/physics.md self-check).
     assert!((avitzur_f(6f64.to_radians()) - 1.000229).abs() < 1e-6);
     let mut last = f64::INFINITY;
     for deg in [4.0, 2.0, 1.0, 0.5, 0.1, 0.01] {
@@ -254,7 +254,7 @@ fn avitzur_f_tends_to_one_and_is_1_000229_at_6_degrees() {
 fn upper_bound_ideal_part_is_two_f_ln_r0_over_rf() {
     // Avitzur's upper bound (from memory) with m = 0 and no land:
     // sigma_d/sigma_bar = 2 f(alpha) ln(R0/Rf) + (2/sqrt 3)[alpha/sin^2 alpha - cot alpha],
-    // checked at 6 deg with f(6 deg) = 1.000229 (reference sheet), perfectly plastic.
+    // checked at 6 deg with f(6 deg) = 1.000229 (docs/physics.md), perfectly plastic.
     let law = FlowLaw::perfectly_plastic(100.0).unwrap();
     let mut die = Die::new(6.0, 0.0).unwrap();
     die.friction_factor = Some(0.0);
@@ -270,7 +270,7 @@ fn upper_bound_ideal_part_is_two_f_ln_r0_over_rf() {
 #[test]
 fn siebel_optimum_semi_angle_is_sqrt_of_1_5_mu_eps() {
     // Siebel, as given by Dieter (2/3 redundant term): alpha* = sqrt(1.5 mu eps)
-    // (reference sheet). Independent of the law, since sigma_bar only scales it.
+    // (docs/physics.md). Independent of the law, since sigma_bar only scales it.
     let laws = [
         FlowLaw::hollomon(1300.0, 0.3).unwrap(),
         FlowLaw::voce(80.0, 470.0, 0.8).unwrap(),

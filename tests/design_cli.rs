@@ -101,7 +101,7 @@ fn copper_demo_anneals_where_the_rest_lands_in_the_temper_window() {
     let anneals = design["anneals"].as_array().unwrap();
     let temper: Vec<_> = anneals.iter().filter(|a| a["reason"] == "temper").collect();
     assert_eq!(temper.len(), 1, "{anneals:?}");
-    // Voce inverse (Voce 1948; form as in the reference sheet) at the middle
+    // Voce inverse (Voce 1948; form as in the docs/physics.md) at the middle
     // of the 380-420 MPa window: eps = -ec ln((ss - s)/(ss - s0)), and the
     // anneal sits at D_a = D_f exp(eps/2).
     let eps = -0.8 * ((470.0f64 - 400.0) / (470.0 - 80.0)).ln();

@@ -2,7 +2,7 @@
 //!
 //! - Perfectly plastic stock through Sachs dies (Dieter, *Mechanical
 //!   Metallurgy*, ch. 19; Example 19.2 gives r_max = 0.514 for its data, the
-//!   formula from the reference sheet): with `B = mu cot(alpha)` the draw
+//!   formula from the docs/physics.md): with `B = mu cot(alpha)` the draw
 //!   ratio reaches 1 at `r_max = 1 - (1+B)^(-1/B)`, so with
 //!   `draw_ratio_max: 1` the fewest passes is
 //!   `ceil(ln(A0/Af) / ln(1/(1 - r_max)))`.

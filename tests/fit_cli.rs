@@ -608,7 +608,7 @@ fn true_data_are_fitted_as_given() {
 
 #[test]
 fn a_strength_coefficient_outside_the_shear_modulus_range_is_a_warning_not_a_refusal() {
-    // K mostly between G/1000 and G/100 (common practice, reference sheet);
+    // K mostly between G/1000 and G/100 (common practice, docs/physics.md);
     // copper's G is about 45 GPa (common practice), so G = 10 GPa puts K = 300 MPa above G/100.
     let o = coldpass(&["fit", COPPER, "--shear-modulus-gpa", "10"]);
     assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));

@@ -19,7 +19,7 @@ fn hollomon_from_two_points_gives_callisters_exponent() {
 #[test]
 fn considere_uts_matches_the_reference_sheet() {
     // Considere criterion, engineering UTS = K n^n e^-n (published; check
-    // values computed on the project's reference sheet): K = 315, n = 0.54
+    // values computed on the project's docs/physics.md): K = 315, n = 0.54
     // gives 131.6 MPa; K = 1275, n = 0.45 gives 567.6 MPa.
     for (k, n, uts) in [(315.0, 0.54, 131.6), (1275.0, 0.45, 567.6)] {
         let closed = considere_uts_mpa(k, n).unwrap();
