@@ -98,7 +98,8 @@ pub enum Method {
     Redundant,
     /// Avitzur's upper bound.
     UpperBound,
-    /// The largest of sachs, siebel, redundant and upper-bound.
+    /// A conservative envelope: the largest of sachs, siebel, redundant and
+    /// upper-bound (well above the published cases, README "Validation").
     Max,
 }
 
@@ -155,6 +156,20 @@ impl FromStr for Method {
     }
 }
 
+/// The shear factor m taken per unit Coulomb friction when a die gives only
+/// mu: `m = min(1, DERIVED_SHEAR_FACTOR_PER_MU * mu)`.
+///
+/// Chosen from the validation table (README, "Validation"; docs/physics.md):
+/// the former `sqrt(3) mu` (friction shear `m k` equal to `mu p` at a die
+/// pressure `p` equal to the flow stress) put the upper bound 17 to 31 %
+/// above every published case; `m = mu` (a mean die pressure of about
+/// `sigma_f / sqrt 3`, near what the slab solution gives in the cone) brings
+/// it within about 10 %. Give `friction_factor` to set m directly.
+pub const DERIVED_SHEAR_FACTOR_PER_MU: f64 = 1.0;
+
+/// The rule for m when only mu is given, in words, for notes and reports.
+pub const DERIVED_SHEAR_FACTOR_RULE: &str = "min(1, mu)";
+
 /// A conical die and its lubrication.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
 pub struct Die {
@@ -164,9 +179,11 @@ pub struct Die {
     /// Coulomb friction coefficient mu, in [0, 0.5] (slab and Siebel methods).
     pub friction: f64,
     /// Shear friction factor m, in [0, 1] (upper bound); `None` derives
-    /// `m = min(1, sqrt(3) mu)`.
+    /// `m = min(1, mu)` ([`DERIVED_SHEAR_FACTOR_PER_MU`]).
     pub friction_factor: Option<f64>,
-    /// Die land (bearing) length L, mm, 0 or more (upper bound).
+    /// Die land (bearing) length L, mm, 0 or more: the slab land balance in
+    /// Sachs, Siebel and redundant ([`land_exit_stress`]), Avitzur's land
+    /// term in the upper bound. [`land_is_long`] flags a long one.
     pub land_length_mm: f64,
     /// Drawing efficiency eta, in (0, 1] (efficiency method).
     pub efficiency: Option<f64>,
@@ -203,12 +220,12 @@ impl Die {
     }
 
     /// The shear factor used by the upper bound and whether it was derived
-    /// from mu as `m = min(1, sqrt(3) mu)` (the factor that makes the friction
-    /// shear `m k` equal `mu p` at `p = sigma_f`, with `k = sigma_f / sqrt 3`).
+    /// from mu as `m = min(1, DERIVED_SHEAR_FACTOR_PER_MU * mu)` (see
+    /// [`DERIVED_SHEAR_FACTOR_PER_MU`] for the choice).
     pub fn shear_factor(&self) -> (f64, bool) {
         match self.friction_factor {
             Some(m) => (m, false),
-            None => ((3f64.sqrt() * self.friction).min(1.0), true),
+            None => ((DERIVED_SHEAR_FACTOR_PER_MU * self.friction).min(1.0), true),
         }
     }
 }
