@@ -163,7 +163,11 @@ pub struct StepReport {
     pub force_kn: Option<f64>,
     /// Exit speed, m/s (with a `line`).
     pub exit_speed_m_s: Option<f64>,
-    /// Pulling power, kW (with a `line`).
+    /// Net pull of the capstan after this die, kN: the front pull
+    /// (`force_kn`) less the back pull it holds on the next die.
+    pub net_pull_kn: Option<f64>,
+    /// Net pulling power of the capstan after this die, kW (with a `line`):
+    /// `net_pull_kn x exit_speed_m_s`, so a back pull is counted once.
     pub power_kw: Option<f64>,
     /// Mean adiabatic temperature rise, deg C.
     pub temperature_rise_c: Option<f64>,
@@ -202,7 +206,7 @@ pub struct Summary {
     pub throughput_t_per_shift: Option<f64>,
     /// Minutes to draw one coil (with `coil_mass_kg`).
     pub coil_time_min: Option<f64>,
-    /// Sum of the passes' pulling power, kW (with a `line`).
+    /// Sum of the capstans' net pulling power, kW (with a `line`).
     pub total_power_kw: Option<f64>,
     /// `ok`, `warn` or `over`.
     pub verdict: Verdict,
@@ -435,6 +439,7 @@ fn draw_row(d: &PlannedDraw<'_>, f: &PassFigures, l: &LineFigures, flags: Vec<Fl
         optimum_semi_angle_deg: f.optimum.map(|o| o.semi_angle_deg),
         force_kn: Some(f.force_kn),
         exit_speed_m_s: l.exit_speed_m_s,
+        net_pull_kn: Some(l.net_pull_kn),
         power_kw: l.power_kw,
         temperature_rise_c: Some(f.temperature_rise_c),
         wire_temperature_c: Some(l.wire_temperature_c),
@@ -469,6 +474,7 @@ fn anneal_row(index: usize, diameter_mm: f64, strain_before: f64, law: &FlowLaw)
         optimum_semi_angle_deg: None,
         force_kn: None,
         exit_speed_m_s: None,
+        net_pull_kn: None,
         power_kw: None,
         temperature_rise_c: None,
         wire_temperature_c: None,
@@ -501,6 +507,7 @@ fn closing_notes(rows: &[StepReport], ambient: f64, has_line: bool) -> Vec<Strin
     ));
     if has_line {
         notes.push("speeds by volume constancy from the finish speed through every pass (one continuous line)".into());
+        notes.push("power: each capstan's net pull (its front pull less the back pull it holds on the next die) times its speed; the total counts each back pull once".into());
     }
     notes
 }
