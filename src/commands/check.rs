@@ -8,8 +8,8 @@ use coldpass::evaluation::{evaluate, EvaluateOptions};
 use coldpass::schedule;
 use coldpass::Method;
 
+use super::options::ReportArgs;
 use super::{EXIT_OK, EXIT_OVER};
-use crate::cli::ReportArgs;
 use crate::{output, report};
 
 /// Arguments of `coldpass check`.

@@ -11,8 +11,8 @@ use coldpass::schedule;
 use coldpass::Method;
 
 use super::check::parse_method;
+use super::options::ReportArgs;
 use super::{EXIT_OK, EXIT_OVER};
-use crate::cli::ReportArgs;
 use crate::{output, report};
 
 /// Arguments of `coldpass design`.

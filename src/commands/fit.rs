@@ -11,10 +11,11 @@ use clap::{Args, ValueEnum};
 
 use coldpass::fit::{self, DataKind, FitError, FitLaw, FitOptions};
 
-use crate::cli::{Format, ReportArgs};
+use crate::commands::options::ReportArgs;
 use crate::commands::EXIT_OK;
 use crate::output;
 use crate::report::fit as report;
+use crate::report::Format;
 
 /// Arguments of `coldpass fit`.
 #[derive(Debug, Args)]

@@ -17,7 +17,7 @@ use tabled::settings::object::Columns;
 use tabled::settings::{Alignment, Style};
 
 use super::fixed;
-use crate::cli::Format;
+use super::Format;
 
 #[derive(Serialize)]
 struct Whole<'a> {

@@ -10,7 +10,19 @@ pub mod table;
 use anyhow::Result;
 use coldpass::evaluation::ScheduleReport;
 
-use crate::cli::Format;
+/// How a report is written; the report side owns it, so that `commands/`
+/// and `cli.rs` depend on `report/` and never the other way round.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
+pub enum Format {
+    /// Tables for people.
+    Table,
+    /// JSON for programs.
+    Json,
+    /// YAML for programs.
+    Yaml,
+    /// CSV, one row per step.
+    Csv,
+}
 
 /// Renders a schedule report in `format` (JSON and YAML straight from serde).
 pub fn render_schedule(report: &ScheduleReport, format: Format) -> Result<Vec<u8>> {
