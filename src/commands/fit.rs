@@ -348,6 +348,7 @@ pub fn run(args: &FitArgs) -> Result<u8> {
         Format::Json => report::json(&result, &source)?,
         Format::Yaml => report::yaml(&result, &source)?,
         Format::Csv => report::csv(&result, &source)?,
+        Format::Html => crate::report::html::fit_page(&result, &source)?,
     };
     let chart = match &args.report.plot {
         Some(_) => Some(report::svg(&result, &source)?),
