@@ -141,6 +141,9 @@ h2 { font-size: 1.1em; margin: 14px 0 4px 0; }
 table { border-collapse: collapse; margin: 4px 0; }
 th, td { border: 1px solid var(--line); padding: 2px 5px; }
 th { background: #eee; font-weight: bold; text-align: center; }
+table.passes { font-size: 12.5px; }
+table.passes th, table.passes td { padding: 1px 3px; }
+@media (max-width: 1150px) { table.passes { font-size: 11px; } }
 td.n { text-align: right; font-variant-numeric: tabular-nums; }
 table.summary td:first-child { font-weight: bold; }
 div.summary { display: flex; flex-wrap: wrap; gap: 0 16px; align-items: start; }
@@ -164,8 +167,8 @@ footer.caution { margin-top: 12px; padding: 6px 10px; border: 2px solid #333; fo
   h2 { font-size: 9pt; margin: 5px 0 2px 0; }
   dl.facts { margin: 2px 0; }
   .verdict { padding: 2px 6px; margin: 3px 0; }
-  table { font-size: 7pt; }
-  th, td { padding: 0 3px; }
+  table, table.passes { font-size: 7pt; }
+  th, td, table.passes th, table.passes td { padding: 0 3px; }
   .wrap { overflow: visible; }
   .pagebreak { break-before: page; }
   table.summary { float: none; }
