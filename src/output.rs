@@ -225,6 +225,8 @@ fn check_target(option: &'static str, path: &Path) -> Result<Target> {
     let name = path
         .file_name()
         .ok_or_else(|| anyhow!("{option} '{shown}' names no file"))?;
+    let absolute = std::env::current_dir().map_or_else(|_| path.to_path_buf(), |d| d.join(path));
+    refuse_system_path(option, path, &absolute)?;
     let real = match fs::symlink_metadata(path) {
         Ok(m) if m.file_type().is_symlink() => fs::canonicalize(path).map_err(|_| {
             anyhow!(

@@ -435,10 +435,21 @@ pub fn parse(text: &str) -> Result<ScheduleFile, ScheduleError> {
 }
 
 fn value(key: &str, r: Result<f64, ParamError>) -> Result<f64, ScheduleError> {
-    r.map_err(|problem| ScheduleError::Value {
-        key: key.to_string(),
-        problem,
+    r.map_err(|mut problem| {
+        problem.value = compact_number(&problem.value);
+        ScheduleError::Value {
+            key: key.to_string(),
+            problem,
+        }
     })
+}
+
+/// A number as short as it is exact: `5e-324`, not 324 digits.
+fn compact_number(text: &str) -> String {
+    match text.parse::<f64>() {
+        Ok(x) if x.is_finite() && text.len() > 15 => format!("{x:e}"),
+        _ => text.to_string(),
+    }
 }
 
 impl ScheduleFile {

@@ -197,7 +197,13 @@ fn token_at(text: &str, line: usize, column: usize) -> Option<String> {
         Some(i) => &rest[..i],
         None => &rest[..],
     };
-    let t = rest.trim();
+    let mut t = rest.trim();
+    // A mark at a block's first key (`exit: [7]`): the value after the key.
+    if let Some((k, v)) = t.split_once(": ") {
+        if !k.is_empty() && k.chars().all(|c| c.is_ascii_alphanumeric() || c == '_') {
+            t = v.trim();
+        }
+    }
     let t = match t.chars().next() {
         Some('[' | '{' | '"' | '\'') | None => t,
         Some(_) => t.split([',', '}', ']']).next().unwrap_or(t).trim(),
@@ -293,12 +299,19 @@ fn rewrite(path: &str, msg: &str, written: Option<&str>) -> (String, String) {
         return (key, format!("{value}{DIAMETER_FORM} is needed"));
     }
     if let Some(rest) = msg.strip_prefix("`diameter` = ") {
-        return (diameter_key(&key), format!("{rest}"));
+        return (diameter_key(&key), rest.to_string());
     }
     if msg == "repetition limit exceeded" {
         return (
             key,
             "the file's aliases (`*name`) repeat their anchors (`&name`) so often that it would expand to more than a hundred times its size; write the values out".into(),
+        );
+    }
+    if msg == "unknown anchor" {
+        let alias = written.map(|w| format!("`{w}` ")).unwrap_or_default();
+        return (
+            key,
+            format!("the alias {alias}names no anchor (`&name`) defined before it"),
         );
     }
     if msg == "recursion limit exceeded" {
@@ -321,10 +334,7 @@ fn rewrite(path: &str, msg: &str, written: Option<&str>) -> (String, String) {
         } else {
             format!("the keys here are {list}")
         };
-        return (
-            key,
-            format!("unknown field {}: {allowed}", cut(name)),
-        );
+        return (key, format!("unknown field {}: {allowed}", cut(name)));
     }
     if let Some(rest) = msg.strip_prefix("unknown variant ") {
         let (name, list) = rest.split_once(", expected ").unwrap_or((rest, ""));
@@ -460,6 +470,14 @@ mod tests {
     fn quoted_brackets_and_apostrophes_do_not_count() {
         let text = format!("title: \"{}\"\nlabel: Smith's [mill\n", "[".repeat(100));
         assert!(check_shape(&text).is_ok());
+    }
+
+    #[test]
+    fn the_parsers_limits_are_named_in_the_files_words() {
+        let (_, m) = rewrite("material.flow", "repetition limit exceeded", None);
+        assert!(m.contains("aliases") && m.contains("anchors"), "{m}");
+        let (_, m) = rewrite("", "recursion limit exceeded", None);
+        assert!(m.contains("nested too deep"), "{m}");
     }
 
     #[test]
