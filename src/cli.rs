@@ -23,6 +23,8 @@ pub enum Command {
     Design(crate::commands::design::DesignArgs),
     /// Fit hardening laws to a tensile-test record.
     Fit(crate::commands::fit::FitArgs),
+    /// How likely each pass is to break when friction, material and sizes scatter.
+    Risk(crate::commands::risk::RiskArgs),
 }
 
 /// How a report is written.

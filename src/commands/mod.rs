@@ -4,6 +4,7 @@
 pub mod check;
 pub mod design;
 pub mod fit;
+pub mod risk;
 
 use anyhow::Result;
 
@@ -20,5 +21,6 @@ pub fn run(cli: Cli) -> Result<u8> {
         Command::Check(args) => check::run(&args),
         Command::Design(args) => design::run(&args),
         Command::Fit(args) => fit::run(&args),
+        Command::Risk(args) => risk::run(&args),
     }
 }
