@@ -115,6 +115,9 @@ pub struct ScheduleFile {
     /// The steps in order (schedule files only).
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub passes: Vec<Step>,
+    /// How the inputs scatter, for `coldpass risk` (optional; see `crate::risk`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub scatter: Option<crate::risk::Scatter>,
 }
 
 /// The stock.
@@ -144,6 +147,10 @@ pub struct Material {
     /// Fraction of the die work that heats the wire; default 0.9.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub heat_fraction: Option<f64>,
+    /// Scatter of the flow law's parameters (as `fit` writes it), the default
+    /// flow scatter for `coldpass risk`.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub flow_scatter: Option<crate::risk::FlowScatter>,
 }
 
 /// Reads a flow law, naming its key in a validation error (`flow: `n` = 1.5 ...`).
@@ -682,6 +689,19 @@ impl ScheduleFile {
                     });
                 }
             }
+        }
+        if self.scatter.is_some() || m.flow_scatter.is_some() {
+            crate::risk::spreads(self).map_err(|e| match e {
+                crate::risk::RiskError::Value(problem) => ScheduleError::Value {
+                    key: if problem.name.starts_with("material") {
+                        "material.flow_scatter".into()
+                    } else {
+                        "scatter".into()
+                    },
+                    problem,
+                },
+                other => ScheduleError::Syntax(other.to_string()),
+            })?;
         }
         Ok(())
     }

@@ -5,6 +5,7 @@ pub mod check;
 pub mod design;
 pub mod fit;
 pub mod options;
+pub mod risk;
 
 use anyhow::Result;
 use clap::Subcommand;
@@ -18,6 +19,8 @@ pub enum Command {
     Design(design::DesignArgs),
     /// Fit hardening laws to a tensile-test record.
     Fit(fit::FitArgs),
+    /// How likely each pass is to break when friction, material and sizes scatter.
+    Risk(risk::RiskArgs),
 }
 
 /// Exit status when every figure is within the limits.
@@ -31,5 +34,6 @@ pub fn run(command: Command) -> Result<u8> {
         Command::Check(args) => check::run(&args),
         Command::Design(args) => design::run(&args),
         Command::Fit(args) => fit::run(&args),
+        Command::Risk(args) => risk::run(&args),
     }
 }
