@@ -406,7 +406,7 @@ pub fn csv(rep: &RiskReport) -> Result<Vec<u8>> {
             rep.caution.clone(),
         ])?;
     }
-    Ok(w.into_inner().map_err(|e| anyhow!("writing CSV: {e}"))?)
+    w.into_inner().map_err(|e| anyhow!("writing CSV: {e}"))
 }
 
 const BAND: RGBColor = RGBColor(31, 119, 180);
