@@ -408,6 +408,12 @@ pub fn delta(semi_angle_rad: f64, area_reduction: f64) -> f64 {
 /// alpha in radians; tends to 1 as alpha tends to 0 (Avitzur 1963; from memory).
 pub fn avitzur_f(alpha_rad: f64) -> f64 {
     let (s, c) = alpha_rad.sin_cos();
+    avitzur_f_of(s, c)
+}
+
+/// [`avitzur_f`] from `sin(alpha)` and `cos(alpha)` already at hand.
+#[inline]
+pub(crate) fn avitzur_f_of(s: f64, c: f64) -> f64 {
     let s2 = s * s;
     let k = 11.0 / 12.0;
     let root = (1.0 - k * s2).sqrt();

@@ -162,6 +162,37 @@ mod tests {
     }
 
     #[test]
+    fn brent_needs_about_ten_probes_on_drawing_stress_curves() {
+        // Issue 14: the former scan + golden section spent 28 probes a pass.
+        use crate::{Die, DrawPass, FlowLaw, Settings};
+        let law = FlowLaw::voce(80.0, 470.0, 0.8).unwrap();
+        let pass = DrawPass {
+            entry_diameter_mm: 8.0,
+            exit_diameter_mm: 7.2,
+            strain_before: 0.4,
+            back_tension_mpa: 0.0,
+            die: Die::new(6.0, 0.05).unwrap(),
+        };
+        let p = PreparedPass::new(&law, &pass, &Settings::default()).unwrap();
+        let t = p.die_terms(&pass.die);
+        for m in [
+            Method::Siebel,
+            Method::Redundant,
+            Method::UpperBound,
+            Method::Max,
+        ] {
+            let (_, _, probes) = brent_minimum(
+                |deg: f64| p.stress(&t, m, deg.to_radians()),
+                1.0,
+                20.0,
+                ANGLE_TOLERANCE_DEG,
+            )
+            .unwrap();
+            assert!(probes <= 14, "{m}: {probes} probes");
+        }
+    }
+
+    #[test]
     fn brent_converges_onto_the_end_of_a_falling_curve() {
         let (x, _, _) = brent_minimum(|x| Ok(1.0 / x), 1.0, 20.0, 1e-4).unwrap();
         assert!(20.0 - x < 2e-3, "{x}");
