@@ -38,7 +38,7 @@ use crate::flow::{FlowError, FlowLaw};
 use crate::param::{self, Ends, ParamError};
 use crate::quad;
 
-mod optimum;
+pub(crate) mod optimum;
 mod prepared;
 mod sachs;
 
