@@ -28,6 +28,18 @@
 //! prescribe; for ideal, efficiency and Siebel it is added whole (the energy
 //! balance of a die with a back pull). Angles are degrees at the interface and
 //! radians inside.
+//!
+//! A die land (bearing) of length `L` acts on the cone's exit stress of
+//! Sachs, Siebel and redundant through the slab balance
+//! `Y - (Y - sigma_cone) e^(-4 mu L / d)` ([`land_exit_stress`]); the upper
+//! bound carries Avitzur's own land term. Ideal and efficiency see no land.
+//!
+//! [`PreparedPass`] computes the die-independent part of a pass once (sizes,
+//! flow stresses, the angle-independent part of the Sachs integral) for
+//! callers that try many dies; [`analyse_pass`] and [`optimum_semi_angle`]
+//! are thin wrappers over it. The files of this folder: `prepared.rs` (the
+//! prepared pass and every method), `sachs.rs` (the Sachs integral by law),
+//! `optimum.rs` (Brent's search for the optimum angle).
 
 use serde::{Deserialize, Serialize};
 use std::f64::consts::PI;
