@@ -4,8 +4,9 @@ use std::path::PathBuf;
 
 use anyhow::{Context, Result};
 use clap::Args;
-use coldpass::evaluation::{evaluate, EvaluateOptions};
-use coldpass::schedule;
+use coldpass::evaluation::{evaluate_on, EvaluateOptions};
+use coldpass::machine::{self, Machine};
+use coldpass::schedule::{self, ScheduleFile};
 use coldpass::Method;
 
 use super::{EXIT_OK, EXIT_OVER};
@@ -20,6 +21,9 @@ pub struct CheckArgs {
     /// Governing method, overriding the file's `limits.method`.
     #[arg(long, value_name = "NAME", value_parser = parse_method)]
     pub method: Option<Method>,
+    /// Run the schedule on this machine file (YAML), overriding the file's `machine:`.
+    #[arg(long, value_name = "FILE")]
+    pub machine: Option<PathBuf>,
     #[command(flatten)]
     pub report: ReportArgs,
 }
@@ -34,11 +38,13 @@ pub fn run(args: &CheckArgs) -> Result<u8> {
     let text = output::read_to_string(&args.file)?;
     let file = schedule::parse(&text)
         .with_context(|| format!("reading schedule '{}'", args.file.display()))?;
-    let rep = evaluate(
+    let machine = read_machine(args, &file)?;
+    let rep = evaluate_on(
         &file,
         &EvaluateOptions {
             method: args.method,
         },
+        machine.as_ref(),
     )
     .with_context(|| format!("checking schedule '{}'", args.file.display()))?;
     let body = report::render_schedule(&rep, args.report.format)?;
@@ -52,4 +58,32 @@ pub fn run(args: &CheckArgs) -> Result<u8> {
     }
     output::emit(args.report.output.as_deref(), &body)?;
     Ok(if rep.is_over() { EXIT_OVER } else { EXIT_OK })
+}
+
+/// The machine: `--machine FILE`, else the schedule's `machine:` path
+/// (relative to the schedule file), else none.
+pub fn read_machine(args: &CheckArgs, file: &ScheduleFile) -> Result<Option<Machine>> {
+    let path = match (&args.machine, &file.machine) {
+        (Some(p), _) => p.clone(),
+        (None, Some(rel)) => args
+            .file
+            .parent()
+            .unwrap_or_else(|| std::path::Path::new(""))
+            .join(rel),
+        (None, None) => return Ok(None),
+    };
+    let text = output::read_to_string(&path).with_context(|| {
+        if args.machine.is_some() {
+            "reading the --machine file".to_string()
+        } else {
+            format!(
+                "reading the machine file that '{}' names (machine: {})",
+                args.file.display(),
+                file.machine.as_deref().unwrap_or_default()
+            )
+        }
+    })?;
+    let m =
+        machine::parse(&text).with_context(|| format!("reading machine '{}'", path.display()))?;
+    Ok(Some(m))
 }

@@ -4,6 +4,7 @@
 pub mod csv;
 pub mod design;
 pub mod fit;
+pub mod machine;
 pub mod svg;
 pub mod table;
 

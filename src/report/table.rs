@@ -188,6 +188,7 @@ pub fn schedule(rep: &ScheduleReport) -> String {
     ));
     out.push_str("\n\n");
 
+    out.push_str(&super::machine::table(rep));
     let s = &rep.summary;
     let worst = match (s.worst_draw_ratio, s.worst_step) {
         (Some(r), Some(step)) => format!("{r:.3} at step {step}"),
