@@ -493,3 +493,27 @@ fn csv_carries_the_machine_columns_and_the_caution_last() {
     assert!(header.contains("machine.motor_load") && header.ends_with("caution"));
     assert!(header.contains("summary.attainable_speed_m_s"));
 }
+
+#[test]
+fn the_chart_on_a_machine_shows_load_and_temperature_against_limits_and_the_caution() {
+    let dir = tempfile::tempdir().unwrap();
+    let svg = dir.path().join("chart.svg");
+    let o = coldpass(&[
+        "check",
+        "schedules-demo/steel-multiblock.yaml",
+        "--plot",
+        svg.to_str().unwrap(),
+    ]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let text = std::fs::read_to_string(&svg).unwrap();
+    for want in [
+        "Motor load per block",
+        "motor rating (100 %)",
+        "Wire temperature, cooling 50 %",
+        "limit 150 C",
+        "Planning estimates only",
+        "licensed practice govern",
+    ] {
+        assert!(text.contains(want), "chart lacks {want}");
+    }
+}
