@@ -83,7 +83,7 @@ pub fn table(rep: &ScheduleReport) -> String {
         })
         .collect();
     out.push_str(&format!(
-        "Machine: {} ({}, {} blocks), figures at {:.2} m/s finish speed\n",
+        "Machine: {}; {}, {} blocks; figures at {:.2} m/s finish speed\n",
         if m.name.is_empty() { "-" } else { &m.name },
         m.kind.name(),
         m.blocks_available,
