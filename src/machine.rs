@@ -23,9 +23,12 @@
 //!
 //! Every load and speed is proportional to the finish speed, so the
 //! attainable speed is the least of each block's motor and capstan-speed
-//! limits. The temperature model has no speed in it (adiabatic rise, fixed
-//! cooling fraction), so the temperature limit either holds at every speed or
-//! at none.
+//! limits. The adiabatic rise has no speed in it; with a fixed cooling
+//! fraction the temperature limit holds at every speed or at none. With
+//! `cooling_at_speed_m_s` the cooling falls with speed (Newtonian cooling over
+//! a time on the capstan that goes as 1/v:
+//! `1 - c(v) = (1 - c_ref)^(v_ref/v)`), the wire runs hotter the faster it
+//! goes, and the fastest speed within the limit is found by bisection.
 
 use std::f64::consts::PI;
 
@@ -128,6 +131,11 @@ pub struct Machine {
     /// taken off before the next die, [0, 1]: capstan water cooling, or
     /// immersion on a wet machine.
     pub cooling_between_dies: f64,
+    /// The wire speed at which `cooling_between_dies` holds, m/s; with it the
+    /// cooling falls with speed (less time on the capstan), without it the
+    /// fraction is the same at every speed.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub cooling_at_speed_m_s: Option<f64>,
     /// Drive efficiency of every block without its own, (0, 1]; default 0.9.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub drive_efficiency: Option<f64>,
@@ -186,6 +194,12 @@ impl Machine {
                 Ends::Closed,
             ),
         )?;
+        if let Some(v) = self.cooling_at_speed_m_s {
+            value(
+                "cooling_at_speed_m_s".into(),
+                param::positive("cooling_at_speed_m_s", v),
+            )?;
+        }
         if let Some(e) = self.drive_efficiency {
             value(
                 "drive_efficiency".into(),
@@ -368,16 +382,34 @@ pub fn slip(surface_speed_m_s: f64, wire_speed_m_s: f64) -> f64 {
 /// `ambient_c`, leaves die `i` at `T_in + rise_i`, and the cooling removes
 /// the fraction `cooling` of its heat above ambient before the next die.
 pub fn carry_temperature(rises_c: &[f64], ambient_c: f64, cooling: f64) -> Vec<(f64, f64)> {
+    carry_temperature_each(rises_c, ambient_c, &vec![cooling; rises_c.len()])
+}
+
+/// [`carry_temperature`] with a cooling fraction after each die.
+pub fn carry_temperature_each(rises_c: &[f64], ambient_c: f64, cooling: &[f64]) -> Vec<(f64, f64)> {
     let mut t_in = ambient_c;
     rises_c
         .iter()
-        .map(|rise| {
+        .zip(cooling)
+        .map(|(rise, c)| {
             let t_out = t_in + rise;
             let here = (t_in, t_out);
-            t_in = ambient_c + (1.0 - cooling) * (t_out - ambient_c);
+            t_in = ambient_c + (1.0 - c) * (t_out - ambient_c);
             here
         })
         .collect()
+}
+
+/// Cooling fraction at wire speed `v` when the fraction is `c_ref` at
+/// `v_ref`: Newtonian (lumped) cooling over a time on the capstan that goes
+/// as `1/v` keeps `exp(-t/tau)` of the heat, so
+/// `1 - c(v) = (1 - c_ref)^(v_ref / v)` (Incropera & DeWitt, lumped
+/// capacitance; from memory).
+pub fn cooling_at_speed(c_ref: f64, v_ref: f64, v: f64) -> f64 {
+    if c_ref >= 1.0 {
+        return 1.0;
+    }
+    1.0 - (1.0 - c_ref).powf(v_ref / v)
 }
 
 /// One die on its block, as the machine sees it.
@@ -514,14 +546,19 @@ pub fn run(
             h[j] = h[j + 1] / machine.blocks[j + 1].step_ratio.unwrap_or(1.0);
         }
     }
-    let temps = carry_temperature(
-        &dies
+    let rises: Vec<f64> = dies.iter().map(|d| d.temperature_rise_c).collect();
+    // Temperatures at finish speed s: the cooling after die j at its wire speed s g_j.
+    let temps_at = |s: f64| {
+        let cooling: Vec<f64> = g
             .iter()
-            .map(|d| d.temperature_rise_c)
-            .collect::<Vec<_>>(),
-        ambient_c,
-        machine.cooling_between_dies,
-    );
+            .map(|gj| match machine.cooling_at_speed_m_s {
+                Some(v_ref) => cooling_at_speed(machine.cooling_between_dies, v_ref, s * gj),
+                None => machine.cooling_between_dies,
+            })
+            .collect();
+        carry_temperature_each(&rises, ambient_c, &cooling)
+    };
+    let hottest_over = |s: f64, tmax: f64| temps_at(s).iter().position(|&(_, out)| out > tmax);
     // The attainable speed: the least limit over the blocks.
     let mut best = (f64::INFINITY, 0usize, SpeedLimit::CapstanSpeed);
     for (j, d) in dies.iter().enumerate() {
@@ -537,12 +574,40 @@ pub fn run(
             }
         }
     }
-    let too_hot = temperature_max_c.and_then(|tmax| temps.iter().position(|&(_, out)| out > tmax));
-    let (attainable, binding_block, binding_limit) = match too_hot {
-        Some(j) => (None, j, SpeedLimit::WireTemperature),
+    let (attainable, binding_block, binding_limit) = match temperature_max_c {
+        Some(tmax) => match hottest_over(best.0, tmax) {
+            None => (Some(best.0), best.1, best.2),
+            Some(j) if machine.cooling_at_speed_m_s.is_none() => {
+                (None, j, SpeedLimit::WireTemperature)
+            }
+            Some(_) => {
+                // Hotter with speed: bisect for the fastest speed within the
+                // limit, none if even the slowest (full cooling) is too hot.
+                match hottest_over(best.0 * 1e-9, tmax) {
+                    Some(j) => (None, j, SpeedLimit::WireTemperature),
+                    None => {
+                        let (mut lo, mut hi) = (best.0 * 1e-9, best.0);
+                        for _ in 0..200 {
+                            let mid = 0.5 * (lo + hi);
+                            if hottest_over(mid, tmax).is_some() {
+                                hi = mid;
+                            } else {
+                                lo = mid;
+                            }
+                            if hi - lo <= 1e-13 * hi {
+                                break;
+                            }
+                        }
+                        let j = hottest_over(hi, tmax).unwrap_or(0);
+                        (Some(lo), j, SpeedLimit::WireTemperature)
+                    }
+                }
+            }
+        },
         None => (Some(best.0), best.1, best.2),
     };
-    let running = speed_m_s.unwrap_or(best.0);
+    let running = speed_m_s.unwrap_or(attainable.unwrap_or(best.0));
+    let temps = temps_at(running);
     let blocks: Vec<BlockReport> = dies
         .iter()
         .enumerate()

@@ -517,3 +517,60 @@ fn the_chart_on_a_machine_shows_load_and_temperature_against_limits_and_the_caut
         assert!(text.contains(want), "chart lacks {want}");
     }
 }
+
+#[test]
+fn cooling_that_falls_with_speed_makes_the_temperature_limit_a_speed() {
+    // Newtonian cooling over a capstan time that goes as 1/v (lumped
+    // capacitance; Incropera & DeWitt, from memory): 1 - c(v) = (1 - c_ref)^(v_ref/v).
+    // Half the heat off at 5 m/s keeps 0.5^(5/10) = 0.70711 of it at 10 m/s.
+    assert!((machine::cooling_at_speed(0.5, 5.0, 10.0) - (1.0 - 0.5f64.sqrt())).abs() < 1e-15);
+    assert!((machine::cooling_at_speed(0.5, 5.0, 5.0) - 0.5).abs() < 1e-15);
+    // Three dies, cooling 0.5 at 5 m/s, limit 70 C, motors and capstans
+    // generous: the temperature binds, and at the attainable speed the hottest
+    // exit sits on the limit, by the hand heat balance T_in,i+1 = T_a + (1 - c_i)(T_out,i - T_a).
+    let m = machine::parse(
+        "kind: non-slip
+cooling_between_dies: 0.5
+cooling_at_speed_m_s: 5
+wire_temperature_max_c: 70
+blocks:
+  - {capstan_diameter_mm: 600, motor_kw: 500, max_capstan_rpm: 5000}
+  - {capstan_diameter_mm: 600, motor_kw: 500, max_capstan_rpm: 5000}
+  - {capstan_diameter_mm: 600, motor_kw: 500, max_capstan_rpm: 5000}
+",
+    )
+    .unwrap();
+    let text = three_dies("").replace("line:\n  finish_speed_m_s: 5\n", "");
+    let rep = on(&text, &m);
+    let s = rep.summary.attainable_speed_m_s.unwrap();
+    assert_eq!(
+        rep.summary.binding_limit.unwrap().name(),
+        "wire-temperature"
+    );
+    let k = 0.9 * 300e6 / (8900.0 * 385.0);
+    let rises = [
+        k * 2.0 * (5.0f64 / 4.5).ln(),
+        k * 2.0 * (4.5f64 / 4.0).ln(),
+        k * 2.0 * (4.0f64 / 3.6).ln(),
+    ];
+    let mut t_in = 25.0;
+    let mut hottest = 0.0f64;
+    for j in 0..3 {
+        let t_out = t_in + rises[j];
+        hottest = hottest.max(t_out);
+        let v = s * SPEED_PER_FINISH[j];
+        let kept = 0.5f64.powf(5.0 / v);
+        t_in = 25.0 + kept * (t_out - 25.0);
+    }
+    assert!((hottest - 70.0).abs() < 1e-6, "{hottest} at {s} m/s");
+    assert!(flagged(&rep, "too-hot").is_empty());
+    // Faster than that is too hot.
+    let fast = on(
+        &three_dies("").replace(
+            "finish_speed_m_s: 5",
+            &format!("finish_speed_m_s: {}", s * 1.1),
+        ),
+        &m,
+    );
+    assert!(!flagged(&fast, "too-hot").is_empty());
+}

@@ -668,7 +668,7 @@ fn machine_notes(run: &MachineRun, file_speed: Option<f64>) -> Vec<String> {
             run.binding_limit.name()
         )),
         None => notes.push(format!(
-            "no speed is attainable: the wire is above the temperature limit at block {} whatever the speed (this model's temperature does not fall with speed); the motors and capstans alone would allow {:.2} m/s",
+            "no speed is attainable: the wire is above the temperature limit at block {} however slowly it runs (with a fixed cooling fraction the temperature does not fall with speed; give cooling_at_speed_m_s for cooling that grows as the wire slows); the motors and capstans alone would allow {:.2} m/s",
             run.binding_block, run.mechanical_speed_m_s
         )),
     }
