@@ -574,3 +574,41 @@ blocks:
     );
     assert!(!flagged(&fast, "too-hot").is_empty());
 }
+
+#[test]
+fn idle_blocks_on_a_non_slip_machine_and_a_single_draft_on_a_bull_block() {
+    // Three dies on a five-block non-slip machine: blocks 4 and 5 stand idle,
+    // said in a note; the figures are those of the three-block machine.
+    let five = machine::parse(
+        &("name: five\nkind: non-slip\ncooling_between_dies: 1\ndrive_efficiency: 0.9\nblocks:\n"
+            .to_string()
+            + &"  - {capstan_diameter_mm: 600, motor_kw: 10, max_capstan_rpm: 1000}\n".repeat(5)),
+    )
+    .unwrap();
+    let rep = on(&three_dies(""), &five);
+    assert_eq!(rep.machine.as_ref().unwrap().blocks.len(), 3);
+    assert!(rep
+        .notes
+        .iter()
+        .any(|n| n.contains("blocks 4 to 5 stand idle")));
+    let three = on(&three_dies(""), &non_slip([10.0; 3], [1000.0; 3], 1.0));
+    assert_eq!(
+        rep.summary.attainable_speed_m_s,
+        three.summary.attainable_speed_m_s
+    );
+    // One 38 % draft (5.0 -> 3.95 mm, 1 - 0.79^2 = 37.6 %) on a single-block
+    // machine is within the single-draft practice of up to 45 % (Kalpakjian &
+    // Schmid, from memory); the same draft is heavy on a multi-die line.
+    let one = three_dies("")
+        .replace("  - exit: 4.5\n", "  - exit: 3.95\n")
+        .replace(
+            "  - exit: 4.0\n    back_tension_mpa: 40\n  - exit: 3.6\n    back_tension_mpa: 50\n",
+            "",
+        );
+    let bull = machine::parse(
+        "kind: single-block\ncooling_between_dies: 0\nblocks:\n  - {capstan_diameter_mm: 900, motor_kw: 40, max_capstan_rpm: 60}\n",
+    )
+    .unwrap();
+    assert!(flagged(&on(&one, &bull), "heavy-reduction").is_empty());
+    assert_eq!(flagged(&check(&one), "heavy-reduction"), vec![1]);
+}
