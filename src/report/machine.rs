@@ -7,19 +7,31 @@
 use coldpass::evaluation::{ScheduleReport, StepKind, StepReport};
 use tabled::builder::Builder;
 use tabled::settings::object::Columns;
-use tabled::settings::{Alignment, Style};
+use tabled::settings::peaker::PriorityMax;
+use tabled::settings::{Alignment, Style, Width};
 
 use super::fixed;
 
-fn build(header: &[&str], rows: Vec<Vec<String>>) -> String {
+/// A table fitted to `width`, each header word on its own line so that a
+/// column is as wide as its figures.
+fn build(header: &[&str], rows: Vec<Vec<String>>, width: usize) -> String {
     let mut b = Builder::default();
-    b.push_record(header.iter().map(|s| s.to_string()));
+    b.push_record(
+        header
+            .iter()
+            .map(|s| s.split(' ').collect::<Vec<_>>().join("\n")),
+    );
     for r in rows {
         b.push_record(r);
     }
     let mut t = b.build();
     t.with(Style::sharp());
     t.modify(Columns::new(1..), Alignment::right());
+    t.with(
+        Width::wrap(width)
+            .keep_words(true)
+            .priority(PriorityMax::right()),
+    );
     t.to_string()
 }
 
@@ -28,8 +40,8 @@ fn pct(x: f64) -> String {
 }
 
 /// The temperature and strength table of every draw, then the machine's
-/// block table and summary when the schedule runs on one.
-pub fn table(rep: &ScheduleReport) -> String {
+/// block table and summary when the schedule runs on one, fitted to `width`.
+pub fn table(rep: &ScheduleReport, width: usize) -> String {
     let draws: Vec<&StepReport> = rep
         .passes
         .iter()
@@ -59,6 +71,7 @@ pub fn table(rep: &ScheduleReport) -> String {
             "tensile strength MPa",
         ],
         rows,
+        width,
     ));
     out.push_str("\n\n");
     let Some(m) = &rep.machine else {
@@ -103,6 +116,7 @@ pub fn table(rep: &ScheduleReport) -> String {
             "wire temperature out C",
         ],
         rows,
+        width,
     ));
     out.push_str("\n\n");
     let s = &rep.summary;
