@@ -612,3 +612,25 @@ fn idle_blocks_on_a_non_slip_machine_and_a_single_draft_on_a_bull_block() {
     assert!(flagged(&on(&one, &bull), "heavy-reduction").is_empty());
     assert_eq!(flagged(&check(&one), "heavy-reduction"), vec![1]);
 }
+
+#[test]
+fn the_page_carries_the_machine_tables_in_the_table_words() {
+    let o = coldpass(&[
+        "check",
+        "schedules-demo/copper-line-3-speed.yaml",
+        "--format",
+        "html",
+    ]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let page = stdout(&o);
+    for want in [
+        "Wire temperature and strength",
+        "Machine summary",
+        "<th>capstan rpm</th>",
+        "<th>load %</th>",
+        "binding block and limit",
+        "Caution: ",
+    ] {
+        assert!(page.contains(want), "page lacks {want}");
+    }
+}

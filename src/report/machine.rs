@@ -5,12 +5,13 @@
 //! block and limit, tonnes per shift). Names match the JSON keys.
 
 use coldpass::evaluation::{ScheduleReport, StepKind, StepReport};
+use coldpass::machine::MachineRun;
 use tabled::builder::Builder;
 use tabled::settings::object::Columns;
 use tabled::settings::peaker::PriorityMax;
 use tabled::settings::{Alignment, Style, Width};
 
-use super::fixed;
+use super::{fixed, html};
 
 /// A table fitted to `width`, each header word on its own line so that a
 /// column is as wide as its figures.
@@ -39,16 +40,32 @@ fn pct(x: f64) -> String {
     format!("{:.1}", 100.0 * x)
 }
 
-/// The temperature and strength table of every draw, then the machine's
-/// block table and summary when the schedule runs on one, fitted to `width`.
-pub fn table(rep: &ScheduleReport, width: usize) -> String {
-    let draws: Vec<&StepReport> = rep
-        .passes
+const TEMPERATURE_HEADER: [&str; 6] = [
+    "step",
+    "wire temperature in C",
+    "wire temperature out C",
+    "no cooling C",
+    "entry yield MPa",
+    "tensile strength MPa",
+];
+
+const BLOCK_HEADER: [&str; 10] = [
+    "block",
+    "step",
+    "capstan rpm",
+    "surface speed m/s",
+    "slip %",
+    "net pull kN",
+    "net power kW",
+    "load %",
+    "wire temperature in C",
+    "wire temperature out C",
+];
+
+fn temperature_rows(rep: &ScheduleReport) -> Vec<Vec<String>> {
+    rep.passes
         .iter()
         .filter(|r| r.kind == StepKind::Draw)
-        .collect();
-    let rows = draws
-        .iter()
         .map(|r| {
             vec![
                 r.step.to_string(),
@@ -59,26 +76,11 @@ pub fn table(rep: &ScheduleReport, width: usize) -> String {
                 fixed(r.tensile_strength_mpa, 0),
             ]
         })
-        .collect();
-    let mut out = String::from("Wire temperature and strength\n");
-    out.push_str(&build(
-        &[
-            "step",
-            "wire temperature in C",
-            "wire temperature out C",
-            "no cooling C",
-            "entry yield MPa",
-            "tensile strength MPa",
-        ],
-        rows,
-        width,
-    ));
-    out.push_str("\n\n");
-    let Some(m) = &rep.machine else {
-        return out;
-    };
-    let rows = m
-        .blocks
+        .collect()
+}
+
+fn block_rows(m: &MachineRun) -> Vec<Vec<String>> {
+    m.blocks
         .iter()
         .map(|b| {
             vec![
@@ -94,63 +96,105 @@ pub fn table(rep: &ScheduleReport, width: usize) -> String {
                 format!("{:.0}", b.wire_temperature_out_c),
             ]
         })
-        .collect();
-    out.push_str(&format!(
-        "Machine: {}; {}, {} blocks; figures at {:.2} m/s finish speed\n",
+        .collect()
+}
+
+fn machine_heading(m: &MachineRun) -> String {
+    format!(
+        "Machine: {}; {}, {} blocks; figures at {:.2} m/s finish speed",
         if m.name.is_empty() { "-" } else { &m.name },
         m.kind.name(),
         m.blocks_available,
         m.running_speed_m_s
-    ));
-    out.push_str(&build(
-        &[
-            "block",
-            "step",
-            "capstan rpm",
-            "surface speed m/s",
-            "slip %",
-            "net pull kN",
-            "net power kW",
-            "load %",
-            "wire temperature in C",
-            "wire temperature out C",
-        ],
-        rows,
-        width,
-    ));
-    out.push_str("\n\n");
+    )
+}
+
+fn machine_summary(rep: &ScheduleReport, m: &MachineRun) -> Vec<[String; 2]> {
     let s = &rep.summary;
+    vec![
+        [
+            "attainable speed".to_string(),
+            match s.attainable_speed_m_s {
+                Some(v) => format!("{v:.2} m/s ({:.0} m/min)", v * 60.0),
+                None => format!(
+                    "- (too hot at any speed; motors and capstans alone: {:.2} m/s)",
+                    m.mechanical_speed_m_s
+                ),
+            },
+        ],
+        [
+            "binding block and limit".to_string(),
+            match (s.binding_block, s.binding_limit) {
+                (Some(k), Some(l)) => format!("block {k}, {}", l.name()),
+                _ => "-".into(),
+            },
+        ],
+        [
+            "tonnes per shift at it".to_string(),
+            fixed(s.attainable_t_per_shift, 1),
+        ],
+        [
+            "total motor load".to_string(),
+            format!("{:.1} kW", m.total_motor_load_kw),
+        ],
+    ]
+}
+
+/// The temperature and strength table of every draw, then the machine's
+/// block table and summary when the schedule runs on one, fitted to `width`.
+pub fn table(rep: &ScheduleReport, width: usize) -> String {
+    let mut out = String::from("Wire temperature and strength\n");
+    out.push_str(&build(&TEMPERATURE_HEADER, temperature_rows(rep), width));
+    out.push_str("\n\n");
+    let Some(m) = &rep.machine else {
+        return out;
+    };
+    out.push_str(&machine_heading(m));
+    out.push('\n');
+    out.push_str(&build(&BLOCK_HEADER, block_rows(m), width));
+    out.push_str("\n\n");
     let mut b = Builder::default();
-    b.push_record([
-        "attainable speed".to_string(),
-        match s.attainable_speed_m_s {
-            Some(v) => format!("{v:.2} m/s ({:.0} m/min)", v * 60.0),
-            None => format!(
-                "- (too hot at any speed; motors and capstans alone: {:.2} m/s)",
-                m.mechanical_speed_m_s
-            ),
-        },
-    ]);
-    b.push_record([
-        "binding block and limit".to_string(),
-        match (s.binding_block, s.binding_limit) {
-            (Some(k), Some(l)) => format!("block {k}, {}", l.name()),
-            _ => "-".into(),
-        },
-    ]);
-    b.push_record([
-        "tonnes per shift at it".to_string(),
-        fixed(s.attainable_t_per_shift, 1),
-    ]);
-    b.push_record([
-        "total motor load".to_string(),
-        format!("{:.1} kW", m.total_motor_load_kw),
-    ]);
+    for r in machine_summary(rep, m) {
+        b.push_record(r);
+    }
     let mut t = b.build();
     t.with(Style::sharp());
     out.push_str("Machine summary\n");
     out.push_str(&t.to_string());
     out.push_str("\n\n");
+    out
+}
+
+/// The same tables for the printable page.
+pub fn html_tables(rep: &ScheduleReport) -> Vec<html::Table> {
+    let table = |heading: String, header: &[&str], rows: Vec<Vec<String>>| html::Table {
+        heading,
+        header: header.iter().map(|h| h.to_string()).collect(),
+        rows: rows
+            .into_iter()
+            .map(|cells| html::Row {
+                cells,
+                status: html::Status::None,
+            })
+            .collect(),
+        page_break_before: false,
+    };
+    let mut out = vec![table(
+        "Wire temperature and strength".into(),
+        &TEMPERATURE_HEADER,
+        temperature_rows(rep),
+    )];
+    if let Some(m) = &rep.machine {
+        out.push(table(machine_heading(m), &BLOCK_HEADER, block_rows(m)));
+        out.push(table(
+            "Machine summary".into(),
+            &["figure", "value"],
+            machine_summary(rep, m)
+                .into_iter()
+                .map(|r| r.to_vec())
+                .collect(),
+        ));
+    }
     out
 }
 
