@@ -44,6 +44,17 @@ pub const DEFAULT_DRIVE_EFFICIENCY: f64 = 0.9;
 /// memory; machine makers design the cone steps for a few per cent per step).
 pub const DEFAULT_SLIP_MAX: f64 = 0.15;
 
+/// Largest capstan diameter accepted, mm (physical range: bull blocks run
+/// to about 1.5 m; the bound only keeps typing errors out).
+pub const MAX_CAPSTAN_DIAMETER_MM: f64 = 5000.0;
+/// Largest motor rating accepted per block, kW.
+pub const MAX_MOTOR_KW: f64 = 10_000.0;
+/// Largest capstan speed accepted, rpm.
+pub const MAX_CAPSTAN_RPM: f64 = 100_000.0;
+/// Largest capstan surface speed accepted, m/s (fine-wire machines run to
+/// about 50 m/s).
+pub const MAX_SURFACE_SPEED_M_S: f64 = 500.0;
+
 /// Why a machine file cannot be used, or a schedule cannot run on it.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
 pub enum MachineError {
@@ -197,7 +208,13 @@ impl Machine {
         if let Some(v) = self.cooling_at_speed_m_s {
             value(
                 "cooling_at_speed_m_s".into(),
-                param::positive("cooling_at_speed_m_s", v),
+                param::within(
+                    "cooling_at_speed_m_s",
+                    v,
+                    0.0,
+                    MAX_SURFACE_SPEED_M_S,
+                    Ends::OpenClosed,
+                ),
             )?;
         }
         if let Some(e) = self.drive_efficiency {
@@ -222,9 +239,18 @@ impl Machine {
             let key = |k: &str| format!("blocks[{i}].{k} (block {})", i + 1);
             value(
                 key("capstan_diameter_mm"),
-                param::positive("capstan_diameter_mm", b.capstan_diameter_mm),
+                param::within(
+                    "capstan_diameter_mm",
+                    b.capstan_diameter_mm,
+                    0.0,
+                    MAX_CAPSTAN_DIAMETER_MM,
+                    Ends::OpenClosed,
+                ),
             )?;
-            value(key("motor_kw"), param::positive("motor_kw", b.motor_kw))?;
+            value(
+                key("motor_kw"),
+                param::within("motor_kw", b.motor_kw, 0.0, MAX_MOTOR_KW, Ends::OpenClosed),
+            )?;
             if b.max_capstan_rpm.is_none() && b.max_surface_speed_m_s.is_none() {
                 return Err(MachineError::Value {
                     key: key("max_capstan_rpm"),
@@ -238,13 +264,19 @@ impl Machine {
             if let Some(n) = b.max_capstan_rpm {
                 value(
                     key("max_capstan_rpm"),
-                    param::positive("max_capstan_rpm", n),
+                    param::within("max_capstan_rpm", n, 0.0, MAX_CAPSTAN_RPM, Ends::OpenClosed),
                 )?;
             }
             if let Some(v) = b.max_surface_speed_m_s {
                 value(
                     key("max_surface_speed_m_s"),
-                    param::positive("max_surface_speed_m_s", v),
+                    param::within(
+                        "max_surface_speed_m_s",
+                        v,
+                        0.0,
+                        MAX_SURFACE_SPEED_M_S,
+                        Ends::OpenClosed,
+                    ),
                 )?;
             }
             if let Some(e) = b.drive_efficiency {

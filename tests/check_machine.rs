@@ -634,3 +634,30 @@ fn the_page_carries_the_machine_tables_in_the_table_words() {
         assert!(page.contains(want), "page lacks {want}");
     }
 }
+
+proptest! {
+    #![proptest_config(ProptestConfig::with_cases(64))]
+
+    #[test]
+    fn any_numbers_in_a_machine_file_give_a_machine_or_an_error_never_a_panic(
+        d in prop::num::f64::ANY,
+        kw in prop::num::f64::ANY,
+        rpm in prop::num::f64::ANY,
+        c in prop::num::f64::ANY,
+        r in prop::num::f64::ANY,
+    ) {
+        let text = format!(
+            "kind: slip\ncooling_between_dies: {c:?}\nblocks:\n  - {{capstan_diameter_mm: {d:?}, motor_kw: {kw:?}, max_capstan_rpm: {rpm:?}}}\n  - {{capstan_diameter_mm: {d:?}, motor_kw: {kw:?}, max_capstan_rpm: {rpm:?}, step_ratio: {r:?}}}\n"
+        );
+        if let Ok(m) = machine::parse(&text) {
+            // A machine that parses runs two dies without a panic or a non-finite figure.
+            let two = three_dies("").replace("  - exit: 3.6\n    back_tension_mpa: 50\n", "");
+            let file = schedule::parse(&two).unwrap();
+            if let Ok(rep) = evaluate_on(&file, &EvaluateOptions::default(), Some(&m)) {
+                for b in &rep.machine.unwrap().blocks {
+                    prop_assert!(b.motor_load.is_finite() && b.capstan_rpm.is_finite());
+                }
+            }
+        }
+    }
+}
