@@ -376,8 +376,8 @@ proptest! {
         prop_assert!(v2 >= v * (1.0 - 1e-12));
         // Where power binds, the speed scales with the motor rating.
         if rep.summary.binding_limit.unwrap().name() == "motor-rating" {
-            let stronger = non_slip(kw.map(|k| k * factor), [1e7; 3], 0.5);
-            let base = non_slip(kw, [1e7; 3], 0.5);
+            let stronger = non_slip(kw.map(|k| k * factor), [1e5; 3], 0.5);
+            let base = non_slip(kw, [1e5; 3], 0.5);
             let vs = on(&text, &stronger).summary.attainable_speed_m_s.unwrap();
             let vb = on(&text, &base).summary.attainable_speed_m_s.unwrap();
             prop_assert!((vs / vb - factor).abs() < 1e-9 * factor);
