@@ -624,7 +624,6 @@ fn the_page_carries_the_machine_tables_in_the_table_words() {
     assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
     let page = stdout(&o);
     for want in [
-        "Wire temperature and strength",
         "Machine summary",
         "<th>capstan rpm</th>",
         "<th>load %</th>",

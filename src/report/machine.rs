@@ -165,7 +165,7 @@ pub fn table(rep: &ScheduleReport, width: usize) -> String {
     out
 }
 
-/// The same tables for the printable page.
+/// The machine's tables for the printable page (none without a machine).
 pub fn html_tables(rep: &ScheduleReport) -> Vec<html::Table> {
     let table = |heading: String, header: &[&str], rows: Vec<Vec<String>>| html::Table {
         heading,
@@ -179,11 +179,9 @@ pub fn html_tables(rep: &ScheduleReport) -> Vec<html::Table> {
             .collect(),
         page_break_before: false,
     };
-    let mut out = vec![table(
-        "Wire temperature and strength".into(),
-        &TEMPERATURE_HEADER,
-        temperature_rows(rep),
-    )];
+    // The per-pass temperature table stays off the page: a 25-pass page must
+    // print on two sheets, and the block table carries the temperatures.
+    let mut out = Vec::new();
     if let Some(m) = &rep.machine {
         out.push(table(machine_heading(m), &BLOCK_HEADER, block_rows(m)));
         out.push(table(
