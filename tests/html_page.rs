@@ -45,7 +45,8 @@ fn check_page_puts_the_summary_first_and_every_step_in_the_pass_table() {
     assert_eq!(passes.matches("<tr class=").count(), steps.len());
     // Passes 4 and 5 are over the draw limit (see the check snapshot): marked in words.
     assert_eq!(passes.matches(">OVER</td>").count(), 2, "{passes}");
-    assert_eq!(passes.matches(">WARN</td>").count(), 1, "{passes}");
+    // Passes 1-3 carry warnings only (heavy-reduction, over 30 %; pass 3 also angle-off-optimum).
+    assert_eq!(passes.matches(">WARN</td>").count(), 3, "{passes}");
     let title = json["title"].as_str().unwrap();
     assert!(html.contains(&format!("<h1>{title}</h1>")));
 }
