@@ -19,7 +19,7 @@ use rand_chacha::ChaCha8Rng;
 use rand_core::{RngCore, SeedableRng};
 use serde::Serialize;
 
-use super::distribution::normal_quantile;
+use super::distribution::normal_quantile_approx;
 
 /// How the samples are placed.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Default)]
@@ -58,7 +58,7 @@ fn mix(mut x: u64) -> u64 {
 pub struct Permutation {
     n: u64,
     half_bits: u32,
-    key: u64,
+    round_keys: [u64; 6],
 }
 
 impl Permutation {
@@ -66,14 +66,22 @@ impl Permutation {
     pub fn new(n: u64, key: u64) -> Self {
         let bits = 64 - (n.max(2) - 1).leading_zeros();
         let half_bits = bits.div_ceil(2).max(1);
-        Self { n, half_bits, key }
+        let mut round_keys = [0; 6];
+        for (r, k) in round_keys.iter_mut().enumerate() {
+            *k = mix(key ^ r as u64);
+        }
+        Self {
+            n,
+            half_bits,
+            round_keys,
+        }
     }
 
     fn round(&self, x: u64) -> u64 {
         let mask = (1u64 << self.half_bits) - 1;
         let (mut l, mut r) = (x >> self.half_bits, x & mask);
-        for round in 0..6u64 {
-            let f = mix(r ^ mix(self.key ^ round)) & mask;
+        for k in self.round_keys {
+            let f = mix(r ^ k) & mask;
             (l, r) = (r, l ^ f);
         }
         (l << self.half_bits) | r
@@ -139,7 +147,7 @@ impl Plan {
                 Sampling::MonteCarlo => v,
                 Sampling::LatinHypercube => (self.permutations[k].at(index) as f64 + v) / n,
             };
-            *z = normal_quantile(u);
+            *z = normal_quantile_approx(u);
         }
     }
 }
