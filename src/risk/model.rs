@@ -42,14 +42,15 @@ pub struct DieInput {
     pub common_dim: Option<usize>,
     /// Index of the first pass's own score, when `between_dies < 1`.
     pub own_dim: Option<usize>,
+    /// `(sqrt(r), sqrt(1 - r))`.
+    pub weights: (f64, f64),
 }
 
 impl DieInput {
     /// The standard normal score of pass `j`: `sqrt(r) z0 + sqrt(1 - r) e_j`.
     fn score(&self, z: &[f64], j: usize) -> f64 {
-        let r = self.spread.between_dies;
-        let common = self.common_dim.map_or(0.0, |k| r.sqrt() * z[k]);
-        let own = self.own_dim.map_or(0.0, |k| (1.0 - r).sqrt() * z[k + j]);
+        let common = self.common_dim.map_or(0.0, |k| self.weights.0 * z[k]);
+        let own = self.own_dim.map_or(0.0, |k| self.weights.1 * z[k + j]);
         common + own
     }
 }
@@ -119,6 +120,7 @@ pub struct SampleOut {
     /// Per draw pass, the score of each driver (`drivers` order), flattened.
     pub driver_scores: Vec<f64>,
     exits: Vec<f64>,
+    die_z: Vec<f64>,
     flow_dev: Vec<f64>,
 }
 
@@ -231,6 +233,7 @@ impl Model {
                     samplers,
                     common_dim,
                     own_dim,
+                    weights: (r.sqrt(), (1.0 - r).sqrt()),
                 }
             })
         }
@@ -325,6 +328,7 @@ impl Model {
             power_kw: vec![0.0; self.draws],
             driver_scores: vec![0.0; self.draws * self.drivers.len()],
             exits: vec![0.0; self.draws],
+            die_z: vec![0.0; self.draws],
             flow_dev: vec![0.0; self.flow_spread.as_ref().map_or(0, |f| f.0.keys.len())],
         }
     }
@@ -389,9 +393,9 @@ impl Model {
                 exit_diameter_mm, ..
             } = s
             {
-                out.exits[j] = match per_die(z, &self.die_diameter, j) {
-                    Some((zj, sampler)) => sampler.value(zj),
-                    None => *exit_diameter_mm,
+                (out.exits[j], out.die_z[j]) = match per_die(z, &self.die_diameter, j) {
+                    Some((zj, sampler)) => (sampler.value(zj), zj),
+                    None => (*exit_diameter_mm, 0.0),
                 };
                 j += 1;
             }
@@ -475,12 +479,10 @@ impl Model {
                             if j == 0 {
                                 rod_z
                             } else {
-                                per_die(z, &self.die_diameter, j - 1).map_or(0.0, |x| x.0)
+                                out.die_z[j - 1]
                             }
                         }
-                        Driver::DieDiameter => {
-                            per_die(z, &self.die_diameter, j).map_or(0.0, |x| x.0)
-                        }
+                        Driver::DieDiameter => out.die_z[j],
                         Driver::Friction => fr.map_or(0.0, |x| x.0),
                         Driver::SemiAngle => an.map_or(0.0, |x| x.0),
                         Driver::BackTension => bt.map_or(0.0, |x| x.0),
