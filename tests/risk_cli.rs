@@ -320,3 +320,39 @@ fn samples_the_model_refuses_are_counted_and_warned_about() {
     );
     assert!(stdout(&o).contains("narrow or truncate the scatter"));
 }
+
+#[test]
+fn ctrl_c_stops_the_run_and_writes_nothing() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("risk.json");
+    let svg = dir.path().join("risk.svg");
+    let mut child = std::process::Command::new(assert_cmd::cargo::cargo_bin("coldpass"))
+        .current_dir(root(""))
+        .args([
+            "risk",
+            DEMO,
+            "--samples",
+            "50000000",
+            "--format",
+            "json",
+            "-o",
+            out.to_str().unwrap(),
+            "--plot",
+            svg.to_str().unwrap(),
+        ])
+        .stderr(std::process::Stdio::piped())
+        .spawn()
+        .unwrap();
+    std::thread::sleep(std::time::Duration::from_millis(1500));
+    let sent = std::process::Command::new("kill")
+        .args(["-INT", &child.id().to_string()])
+        .status()
+        .unwrap();
+    assert!(sent.success());
+    let o = child.wait_with_output().unwrap();
+    assert_eq!(o.status.code(), Some(130), "{}", stderr(&o));
+    assert!(stderr(&o).contains("nothing was written"), "{}", stderr(&o));
+    assert!(!out.exists() && !svg.exists());
+    // No temporary file left beside the targets either.
+    assert_eq!(std::fs::read_dir(dir.path()).unwrap().count(), 0);
+}
