@@ -28,7 +28,7 @@ fn main() -> ExitCode {
         std::process::exit(EXIT_INTERRUPTED);
     });
     let cli = cli::Cli::parse();
-    match commands::run(cli) {
+    match commands::run(cli.command) {
         Ok(status) => ExitCode::from(status),
         Err(err) => {
             if output::is_broken_pipe(&err) {

@@ -8,8 +8,8 @@ use coldpass::evaluation::{evaluate, EvaluateOptions};
 use coldpass::schedule;
 use coldpass::Method;
 
+use super::options::{ReportArgs, ViewArgs};
 use super::{EXIT_OK, EXIT_OVER};
-use crate::cli::ReportArgs;
 use crate::{output, report};
 
 /// Arguments of `coldpass check`.
@@ -22,6 +22,8 @@ pub struct CheckArgs {
     pub method: Option<Method>,
     #[command(flatten)]
     pub report: ReportArgs,
+    #[command(flatten)]
+    pub view: ViewArgs,
 }
 
 /// Parses a method name for clap, listing the allowed names on error.
@@ -42,7 +44,7 @@ pub fn run(args: &CheckArgs) -> Result<u8> {
     )
     .with_context(|| format!("checking schedule '{}'", args.file.display()))?;
     output::ensure_finite("report", &rep)?;
-    let body = report::render_schedule(&rep, args.report.format)?;
+    let body = report::render_schedule(&rep, &file, args.report.format, &args.view.look())?;
     // Render everything before writing anything, so a failure leaves no partial output.
     let chart = match &args.report.plot {
         Some(_) => Some(report::svg::schedule(&rep, &file)?),

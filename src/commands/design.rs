@@ -11,8 +11,8 @@ use coldpass::schedule;
 use coldpass::Method;
 
 use super::check::parse_method;
+use super::options::{ReportArgs, ViewArgs};
 use super::{EXIT_OK, EXIT_OVER};
-use crate::cli::ReportArgs;
 use crate::{output, report};
 
 /// Arguments of `coldpass design`.
@@ -25,6 +25,8 @@ pub struct DesignArgs {
     pub method: Option<Method>,
     #[command(flatten)]
     pub report: ReportArgs,
+    #[command(flatten)]
+    pub view: ViewArgs,
     /// Also write the designed schedule to this file, for `coldpass check`
     /// (diameters at full precision; written whole or not at all).
     #[arg(long, value_name = "FILE.yaml")]
@@ -46,7 +48,7 @@ pub fn run(args: &DesignArgs) -> Result<u8> {
     .with_context(|| format!("designing '{name}'"))?;
     // Render everything before writing anything, so a failure leaves no partial output.
     output::ensure_finite("design's report", &d.report)?;
-    let body = report::design::render(&d, args.report.format)?;
+    let body = report::design::render(&d, args.report.format, &args.view.look())?;
     let chart = match &args.report.plot {
         Some(_) => Some(report::svg::schedule(&d.report, &d.schedule)?),
         None => None,

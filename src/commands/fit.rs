@@ -11,10 +11,11 @@ use clap::{Args, ValueEnum};
 
 use coldpass::fit::{self, DataKind, FitError, FitLaw, FitOptions};
 
-use crate::cli::{Format, ReportArgs};
+use crate::commands::options::ReportArgs;
 use crate::commands::EXIT_OK;
 use crate::output;
 use crate::report::fit as report;
+use crate::report::Format;
 
 /// Arguments of `coldpass fit`.
 #[derive(Debug, Args)]
@@ -347,6 +348,7 @@ pub fn run(args: &FitArgs) -> Result<u8> {
         Format::Json => report::json(&result, &source)?,
         Format::Yaml => report::yaml(&result, &source)?,
         Format::Csv => report::csv(&result, &source)?,
+        Format::Html => crate::report::html::fit_page(&result, &source)?,
     };
     let chart = match &args.report.plot {
         Some(_) => Some(report::svg(&result, &source)?),
