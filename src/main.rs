@@ -23,10 +23,8 @@ fn main() -> ExitCode {
     // A signal during a write would otherwise leave `.name.<pid>.<n>.tmp`
     // files behind: remove them, then end (the lock stays held, so no new
     // temporary file appears after the sweep).
-    let _ = ctrlc::set_handler(|| {
-        let _held = output::remove_temporaries();
-        std::process::exit(EXIT_INTERRUPTED);
-    });
+    // A long computation may ask to be told instead (output::stop_on_interrupt).
+    let _ = ctrlc::set_handler(|| output::on_interrupt(EXIT_INTERRUPTED));
     let cli = cli::Cli::parse();
     match commands::run(cli.command) {
         Ok(status) => ExitCode::from(status),
