@@ -15,8 +15,11 @@ use crate::{output, report};
 /// Arguments of `coldpass check`.
 #[derive(Debug, Args)]
 pub struct CheckArgs {
-    /// The schedule file (YAML).
+    /// The schedule file (YAML), or a folder of them.
     pub file: PathBuf,
+    /// More schedule files or folders: one summary row per product (the catalogue).
+    #[arg(value_name = "MORE")]
+    pub more: Vec<PathBuf>,
     /// Governing method, overriding the file's `limits.method`.
     #[arg(long, value_name = "NAME", value_parser = parse_method)]
     pub method: Option<Method>,
@@ -33,7 +36,10 @@ pub fn parse_method(s: &str) -> Result<Method, String> {
 
 /// Runs `coldpass check`: exit 0 within limits, 3 over a limit.
 pub fn run(args: &CheckArgs) -> Result<u8> {
-    let text = output::read_to_string(&args.file)?;
+    if !args.more.is_empty() || args.file.is_dir() {
+        return super::catalogue::run(args);
+    }
+    let text = read_schedule_text(&args.file)?;
     let file = schedule::parse(&text)
         .with_context(|| format!("reading schedule '{}'", args.file.display()))?;
     let rep = evaluate(
@@ -54,4 +60,31 @@ pub fn run(args: &CheckArgs) -> Result<u8> {
     }
     output::emit(args.report.output.as_deref(), &body)?;
     Ok(if rep.is_over() { EXIT_OVER } else { EXIT_OK })
+}
+
+/// Reads a schedule (or design) file's text: a UTF-8 byte-order mark is
+/// dropped, and a CSV file is refused in one line, pointing to `fit`.
+pub fn read_schedule_text(path: &std::path::Path) -> Result<String> {
+    let text = output::read_to_string(path)?;
+    let text = text
+        .strip_prefix('\u{feff}')
+        .map(str::to_string)
+        .unwrap_or(text);
+    let is_csv_name = path
+        .extension()
+        .and_then(|e| e.to_str())
+        .is_some_and(|e| e.eq_ignore_ascii_case("csv"));
+    let first = text
+        .lines()
+        .map(str::trim)
+        .find(|l| !l.is_empty() && !l.starts_with('#'))
+        .unwrap_or("");
+    let looks_csv = first.contains(',') && !first.contains(':');
+    if is_csv_name || looks_csv {
+        anyhow::bail!(
+            "'{}' looks like a CSV table, not a schedule: check and design read YAML (title:, material:, passes: ...); a tensile record goes to `coldpass fit`",
+            path.display()
+        );
+    }
+    Ok(text)
 }

@@ -37,7 +37,7 @@ pub struct DesignArgs {
 /// none can (the message names the binding constraint) or the file is bad.
 pub fn run(args: &DesignArgs) -> Result<u8> {
     let name = args.file.display().to_string();
-    let text = output::read_to_string(&args.file)?;
+    let text = super::check::read_schedule_text(&args.file)?;
     let file = schedule::parse(&text).with_context(|| format!("reading design '{name}'"))?;
     let d = design(
         &file,

@@ -1,6 +1,7 @@
 //! One file per subcommand: read the input, call the core, hand the neutral
 //! result to a report format, and return the exit status.
 
+pub mod catalogue;
 pub mod check;
 pub mod design;
 pub mod fit;
