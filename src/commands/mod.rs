@@ -3,6 +3,7 @@
 
 pub mod catalogue;
 pub mod check;
+pub mod compare;
 pub mod design;
 pub mod fit;
 pub mod options;
@@ -19,6 +20,8 @@ pub enum Command {
     Design(design::DesignArgs),
     /// Fit hardening laws to a tensile-test record.
     Fit(fit::FitArgs),
+    /// Put two schedules (or a schedule and a design file) side by side.
+    Compare(compare::CompareArgs),
 }
 
 /// Exit status when every figure is within the limits.
@@ -32,5 +35,6 @@ pub fn run(command: Command) -> Result<u8> {
         Command::Check(args) => check::run(&args),
         Command::Design(args) => design::run(&args),
         Command::Fit(args) => fit::run(&args),
+        Command::Compare(args) => compare::run(&args),
     }
 }

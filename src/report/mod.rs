@@ -3,6 +3,7 @@
 
 pub mod catalogue;
 pub mod columns;
+pub mod compare;
 pub mod csv;
 pub mod design;
 pub mod fit;
