@@ -15,7 +15,7 @@ use clap::Parser;
 
 fn main() -> ExitCode {
     let cli = cli::Cli::parse();
-    match commands::run(cli.command) {
+    match commands::run(cli.command, <cli::Cli as clap::CommandFactory>::command) {
         Ok(status) => ExitCode::from(status),
         Err(err) => {
             if output::is_broken_pipe(&err) {

@@ -61,3 +61,20 @@ pub fn is_broken_pipe(err: &anyhow::Error) -> bool {
             .is_some_and(|io| io.kind() == io::ErrorKind::BrokenPipe)
     })
 }
+
+/// Writes `bytes` to a new file at `path`, refusing (with the path named) when
+/// a file is already there: the check and the creation are one step
+/// (`create_new`), so nothing is ever overwritten.
+pub fn write_new_file(path: &Path, bytes: &[u8]) -> Result<()> {
+    let mut f = std::fs::OpenOptions::new()
+        .write(true)
+        .create_new(true)
+        .open(path)
+        .with_context(|| format!("creating '{}'", path.display()))?;
+    let result = f.write_all(bytes).and_then(|()| f.sync_all());
+    if let Err(e) = result {
+        let _ = std::fs::remove_file(path);
+        return Err(e).with_context(|| format!("writing '{}'", path.display()));
+    }
+    Ok(())
+}

@@ -21,7 +21,7 @@ pub struct CheckArgs {
     #[arg(value_name = "MORE")]
     pub more: Vec<PathBuf>,
     /// Governing method, overriding the file's `limits.method`.
-    #[arg(long, value_name = "NAME", value_parser = parse_method)]
+    #[arg(long, value_name = "NAME", value_parser = method_parser())]
     pub method: Option<Method>,
     #[command(flatten)]
     pub report: ReportArgs,
@@ -29,9 +29,12 @@ pub struct CheckArgs {
     pub view: ViewArgs,
 }
 
-/// Parses a method name for clap, listing the allowed names on error.
-pub fn parse_method(s: &str) -> Result<Method, String> {
-    s.parse::<Method>().map_err(|e| e.allowed)
+/// `--method`: one of the core's method names ([`Method::name`]), so that
+/// `--help`, completions and a wrong name list them all.
+pub fn method_parser() -> impl clap::builder::TypedValueParser<Value = Method> {
+    use clap::builder::TypedValueParser;
+    clap::builder::PossibleValuesParser::new(Method::ALL.map(Method::name))
+        .try_map(|name| name.parse::<Method>().map_err(|e| e.allowed))
 }
 
 /// Runs `coldpass check`: exit 0 within limits, 3 over a limit.

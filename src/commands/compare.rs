@@ -10,7 +10,7 @@ use coldpass::evaluation::{evaluate, EvaluateOptions, ScheduleReport};
 use coldpass::schedule;
 use coldpass::Method;
 
-use super::check::parse_method;
+use super::check::method_parser;
 use super::options::{ReportArgs, ViewArgs};
 use super::EXIT_OK;
 use crate::{output, report};
@@ -23,7 +23,7 @@ pub struct CompareArgs {
     /// The second schedule (or design) file.
     pub second: PathBuf,
     /// Governing method for both, overriding the files' `limits.method`.
-    #[arg(long, value_name = "NAME", value_parser = parse_method)]
+    #[arg(long, value_name = "NAME", value_parser = method_parser())]
     pub method: Option<Method>,
     #[command(flatten)]
     pub report: ReportArgs,

@@ -6,7 +6,9 @@ pub mod check;
 pub mod compare;
 pub mod design;
 pub mod fit;
+pub mod init;
 pub mod options;
+pub mod shell;
 
 use anyhow::Result;
 use clap::Subcommand;
@@ -22,6 +24,12 @@ pub enum Command {
     Fit(fit::FitArgs),
     /// Put two schedules (or a schedule and a design file) side by side.
     Compare(compare::CompareArgs),
+    /// Write a commented starter schedule, design or machine file.
+    Init(init::InitArgs),
+    /// Print a shell completion script (bash, zsh, fish, elvish, powershell).
+    Completions(shell::CompletionsArgs),
+    /// Print the man page (roff) of coldpass.
+    Man(shell::ManArgs),
 }
 
 /// Exit status when every figure is within the limits.
@@ -29,12 +37,17 @@ pub const EXIT_OK: u8 = 0;
 /// Exit status when a checked schedule is over a limit.
 pub const EXIT_OVER: u8 = 3;
 
-/// Runs the chosen subcommand and returns its exit status.
-pub fn run(command: Command) -> Result<u8> {
+/// Runs the chosen subcommand and returns its exit status. `cli` builds the
+/// whole command-line definition, for completions and the man page (passed
+/// in, so that commands/ does not depend on cli.rs).
+pub fn run(command: Command, cli: fn() -> clap::Command) -> Result<u8> {
     match command {
         Command::Check(args) => check::run(&args),
         Command::Design(args) => design::run(&args),
         Command::Fit(args) => fit::run(&args),
         Command::Compare(args) => compare::run(&args),
+        Command::Init(args) => init::run(&args),
+        Command::Completions(args) => shell::completions(&args, cli()),
+        Command::Man(args) => shell::man(&args, cli()),
     }
 }
