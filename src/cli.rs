@@ -5,15 +5,7 @@
 
 use clap::Parser;
 
-use crate::commands::Command;
-
-/// The exit codes, shown at the foot of `--help` and in the man page.
-pub const EXIT_CODES: &str = "Exit status:
-  0  every figure within the limits (check, design, compare, fit, init, completions, man)
-  1  bad input (the message names the file, field, value and what is allowed), or a design
-     that cannot meet the limits, or a catalogue with a file that could not be checked
-  2  bad usage (an unknown option or value; clap's own)
-  3  a checked schedule (or any product of a catalogue) is over a limit or due an anneal";
+use crate::commands::{Command, EXIT_CODES};
 
 /// Plan the cold drawing of round wire and bar: strain, flow stress, drawing
 /// stress, limits, anneals, speeds and power. Figures are planning estimates

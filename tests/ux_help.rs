@@ -19,6 +19,10 @@ fn help_lists_the_methods_formats_units_and_exit_codes() {
         assert!(top.contains(code), "{code} missing:\n{top}");
     }
     let check = stdout(&coldpass(&["check", "--help"]));
+    assert!(
+        check.contains("3  a checked schedule"),
+        "check --help gives the exit codes"
+    );
     for value in [
         "ideal",
         "efficiency",

@@ -17,12 +17,16 @@ use clap::Subcommand;
 #[derive(Debug, Subcommand)]
 pub enum Command {
     /// Evaluate a pass schedule pass by pass against the mill's limits.
+    #[command(after_help = EXIT_CODES)]
     Check(check::CheckArgs),
     /// Lay out reductions, die angles and anneals that meet the mill's limits.
+    #[command(after_help = EXIT_CODES)]
     Design(design::DesignArgs),
     /// Fit hardening laws to a tensile-test record.
+    #[command(after_help = EXIT_CODES)]
     Fit(fit::FitArgs),
     /// Put two schedules (or a schedule and a design file) side by side.
+    #[command(after_help = EXIT_CODES)]
     Compare(compare::CompareArgs),
     /// Write a commented starter schedule, design or machine file.
     Init(init::InitArgs),
@@ -31,6 +35,14 @@ pub enum Command {
     /// Print the man page (roff) of coldpass.
     Man(shell::ManArgs),
 }
+
+/// The exit codes, shown at the foot of `--help` and in the man page.
+pub const EXIT_CODES: &str = "Exit status:
+  0  every figure within the limits (check, design, compare, fit, init, completions, man)
+  1  bad input (the message names the file, field, value and what is allowed), or a design
+     that cannot meet the limits, or a catalogue with a file that could not be checked
+  2  bad usage (an unknown option or value; clap's own)
+  3  a checked schedule (or any product of a catalogue) is over a limit or due an anneal";
 
 /// Exit status when every figure is within the limits.
 pub const EXIT_OK: u8 = 0;
