@@ -33,7 +33,7 @@ pub fn files(args: &CheckArgs) -> Result<Vec<PathBuf>> {
                     })
                 })
                 .filter(|f| {
-                    std::fs::read_to_string(f)
+                    crate::input::read_text(f)
                         .is_ok_and(|t| t.lines().any(|l| l.starts_with("passes:")))
                 })
                 .collect();
@@ -76,9 +76,13 @@ pub fn run(args: &CheckArgs) -> Result<u8> {
     if args.report.plot.is_some() {
         bail!("--plot draws one schedule's chart; give one file to draw it, not several");
     }
-    let products: Vec<Product> = files(args)?.iter().map(|p| check_one(p, args)).collect();
+    let paths = files(args)?;
+    let products: Vec<Product> = paths.iter().map(|p| check_one(p, args)).collect();
     let body = catalogue::render(&products, args.report.format, &args.view.look())?;
-    output::emit(args.report.output.as_deref(), &body)?;
+    let inputs: Vec<&Path> = paths.iter().map(PathBuf::as_path).collect();
+    let mut outputs = output::Outputs::new(&inputs);
+    outputs.report(args.report.output.as_deref(), body);
+    outputs.write()?;
     Ok(if products.iter().any(|p| p.error.is_some()) {
         EXIT_BAD
     } else if products.iter().any(|p| p.over) {

@@ -52,23 +52,26 @@ pub fn run(args: &CheckArgs) -> Result<u8> {
         },
     )
     .with_context(|| format!("checking schedule '{}'", args.file.display()))?;
+    output::ensure_finite("report", &rep)?;
     let body = report::render_schedule(&rep, &file, args.report.format, &args.view.look())?;
     // Render everything before writing anything, so a failure leaves no partial output.
     let chart = match &args.report.plot {
         Some(_) => Some(report::svg::schedule(&rep, &file)?),
         None => None,
     };
-    if let (Some(path), Some(svg)) = (&args.report.plot, &chart) {
-        output::write_file(path, svg)?;
+    let mut outputs = output::Outputs::new(&[&args.file]);
+    if let (Some(path), Some(svg)) = (&args.report.plot, chart) {
+        outputs.file("--plot", path, svg);
     }
-    output::emit(args.report.output.as_deref(), &body)?;
+    outputs.report(args.report.output.as_deref(), body);
+    outputs.write()?;
     Ok(if rep.is_over() { EXIT_OVER } else { EXIT_OK })
 }
 
 /// Reads a schedule (or design) file's text: a UTF-8 byte-order mark is
 /// dropped, and a CSV file is refused in one line, pointing to `fit`.
 pub fn read_schedule_text(path: &std::path::Path) -> Result<String> {
-    let text = output::read_to_string(path)?;
+    let text = crate::input::read_text(path)?;
     let text = text
         .strip_prefix('\u{feff}')
         .map(str::to_string)
@@ -85,7 +88,7 @@ pub fn read_schedule_text(path: &std::path::Path) -> Result<String> {
     let looks_csv = first.contains(',') && !first.contains(':');
     if is_csv_name || looks_csv {
         anyhow::bail!(
-            "'{}' looks like a CSV table, not a schedule: check and design read YAML (title:, material:, passes: ...); a tensile record goes to `coldpass fit`",
+            "'{}' looks like a CSV table, not a schedule file: check and design read YAML (title:, material:, passes: ...); a tensile record goes to `coldpass fit`",
             path.display()
         );
     }

@@ -54,6 +54,8 @@ pub fn run(args: &CompareArgs) -> Result<u8> {
         args.second.display().to_string(),
     ];
     let body = report::compare::render(&a, &b, &names, args.report.format, &args.view.look())?;
-    output::emit(args.report.output.as_deref(), &body)?;
+    let mut outputs = output::Outputs::new(&[&args.first, &args.second]);
+    outputs.report(args.report.output.as_deref(), body);
+    outputs.write()?;
     Ok(EXIT_OK)
 }

@@ -47,6 +47,7 @@ pub fn run(args: &DesignArgs) -> Result<u8> {
     )
     .with_context(|| format!("designing '{name}'"))?;
     // Render everything before writing anything, so a failure leaves no partial output.
+    output::ensure_finite("design's report", &d.report)?;
     let body = report::design::render(&d, args.report.format, &args.view.look())?;
     let chart = match &args.report.plot {
         Some(_) => Some(report::svg::schedule(&d.report, &d.schedule)?),
@@ -59,13 +60,15 @@ pub fn run(args: &DesignArgs) -> Result<u8> {
         )?),
         None => None,
     };
-    if let (Some(path), Some(yaml)) = (&args.emit_schedule, &emitted) {
-        output::write_file(path, yaml.as_bytes())?;
+    let mut outputs = output::Outputs::new(&[&args.file]);
+    if let (Some(path), Some(yaml)) = (&args.emit_schedule, emitted) {
+        outputs.file("--emit-schedule", path, yaml.into_bytes());
     }
-    if let (Some(path), Some(svg)) = (&args.report.plot, &chart) {
-        output::write_file(path, svg)?;
+    if let (Some(path), Some(svg)) = (&args.report.plot, chart) {
+        outputs.file("--plot", path, svg);
     }
-    output::emit(args.report.output.as_deref(), &body)?;
+    outputs.report(args.report.output.as_deref(), body);
+    outputs.write()?;
     // A design is checked before it is returned; an over-limit verdict would be a fault.
     Ok(if d.report.is_over() {
         EXIT_OVER

@@ -122,7 +122,7 @@ struct Table {
 }
 
 fn read_table(path: &Path) -> Result<Table> {
-    let text = output::read_to_string(path)?;
+    let text = crate::input::read_text(path)?;
     let mut reader = csv::ReaderBuilder::new()
         .comment(Some(b'#'))
         .trim(csv::Trim::All)
@@ -365,13 +365,15 @@ pub fn run(args: &FitArgs) -> Result<u8> {
         None => None,
     };
     // Everything is built: now write.
-    if let (Some(p), Some(bytes)) = (&args.report.plot, &chart) {
-        output::write_file(p, bytes.as_bytes())?;
+    let mut outputs = output::Outputs::new(&[path]);
+    if let (Some(p), Some(bytes)) = (&args.report.plot, chart) {
+        outputs.file("--plot", p, bytes.into_bytes());
     }
-    if let (Some(p), Some(bytes)) = (&args.emit_law, &law_file) {
-        output::write_file(p, bytes.as_bytes())?;
+    if let (Some(p), Some(bytes)) = (&args.emit_law, law_file) {
+        outputs.file("--emit-law", p, bytes.into_bytes());
     }
-    output::emit(args.report.output.as_deref(), body.as_bytes())?;
+    outputs.report(args.report.output.as_deref(), body.into_bytes());
+    outputs.write()?;
     Ok(EXIT_OK)
 }
 

@@ -8,6 +8,7 @@ pub mod design;
 pub mod fit;
 pub mod init;
 pub mod options;
+pub mod risk;
 pub mod shell;
 
 use anyhow::Result;
@@ -34,6 +35,8 @@ pub enum Command {
     Completions(shell::CompletionsArgs),
     /// Print the man page (roff) of coldpass.
     Man(shell::ManArgs),
+    /// How likely each pass is to break when friction, material and sizes scatter.
+    Risk(risk::RiskArgs),
 }
 
 /// The exit codes, shown at the foot of `--help` and in the man page.
@@ -61,5 +64,6 @@ pub fn run(command: Command, cli: fn() -> clap::Command) -> Result<u8> {
         Command::Init(args) => init::run(&args),
         Command::Completions(args) => shell::completions(&args, cli()),
         Command::Man(args) => shell::man(&args, cli()),
+        Command::Risk(args) => risk::run(&args),
     }
 }

@@ -31,7 +31,9 @@ pub struct ManArgs {
 pub fn completions(args: &CompletionsArgs, mut cli: clap::Command) -> Result<u8> {
     let mut buf = Vec::new();
     clap_complete::generate(args.shell, &mut cli, "coldpass", &mut buf);
-    output::emit(None, &buf)?;
+    let mut outputs = output::Outputs::new(&[]);
+    outputs.report(None, buf);
+    outputs.write()?;
     Ok(EXIT_OK)
 }
 
@@ -47,6 +49,8 @@ pub fn man(args: &ManArgs, cli: clap::Command) -> Result<u8> {
         buf.extend_from_slice(b"\n");
         clap_mangen::Man::new(sub).render(&mut buf)?;
     }
-    output::emit(args.output.as_deref(), &buf)?;
+    let mut outputs = output::Outputs::new(&[]);
+    outputs.report(args.output.as_deref(), buf);
+    outputs.write()?;
     Ok(EXIT_OK)
 }

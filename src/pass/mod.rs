@@ -449,8 +449,10 @@ pub const LAND_LONG_RATIO: f64 = 0.6;
 /// Whether a die land of `land_length_mm` is long for an exit diameter of
 /// `exit_diameter_mm`: `L/d` above [`LAND_LONG_RATIO`] (common practice).
 /// A long land adds friction on the drawn section without helping the draw.
+/// Exactly 0.6 d (to a part in a billion, so that a land written as 0.6 d is
+/// not called long by rounding) is not long.
 pub fn land_is_long(land_length_mm: f64, exit_diameter_mm: f64) -> bool {
-    land_length_mm > LAND_LONG_RATIO * exit_diameter_mm
+    land_length_mm > LAND_LONG_RATIO * exit_diameter_mm * (1.0 + 1e-9)
 }
 
 /// The drawing stress at the end of a parallel die land (bearing), MPa:
