@@ -227,6 +227,46 @@ impl Ctx<'_> {
         v
     }
 
+    /// How far a pass is inside its limits, as fractions of each limit
+    /// (negative: over): `(ratio, heavy, light)`, where heavy is the least of
+    /// the `reduction_max`, wire-temperature and block-power margins and
+    /// light the least of the `reduction_min` and `Delta` ones. They guide the
+    /// level solves; `breaches` decides.
+    pub(super) fn margins(&self, p: &PassPick) -> (f64, f64, f64) {
+        let ratio = (self.ratio_cap - p.ratio) / self.ratio_cap;
+        let mut heavy = f64::INFINITY;
+        let mut light = f64::INFINITY;
+        if let Some(r) = self.r_max {
+            heavy = heavy.min((r - p.reduction) / r);
+        }
+        if let Some(r) = self.r_min {
+            light = light.min((p.reduction - r) / r);
+        }
+        if let Some(d) = self.delta_max {
+            light = light.min((d - p.delta) / d);
+        }
+        let m = &self.file.material;
+        let l = &self.file.limits;
+        if let Some(tmax) = l.wire_temperature_max_c {
+            let rise = pass::temperature_rise_c(
+                p.stress_mpa.max(0.0),
+                m.density_kg_m3,
+                m.specific_heat_j_kg_k,
+                m.heat_fraction.unwrap_or(schedule::DEFAULT_HEAT_FRACTION),
+            );
+            let t = l.ambient_c.unwrap_or(schedule::DEFAULT_AMBIENT_C) + rise;
+            heavy = heavy.min((tmax - t) / tmax.abs().max(1.0));
+        }
+        if let Some(line) = &self.file.line {
+            if let Some(pmax) = line.block_power_kw {
+                let speed = line.finish_speed_m_s * (self.finish_mm / p.exit_mm).powi(2);
+                let power = pass::power_kw(pass::force_kn(p.stress_mpa, p.exit_mm), speed);
+                heavy = heavy.min((pmax - power) / pmax);
+            }
+        }
+        (ratio, heavy, light)
+    }
+
     /// Draw ratio minus `rho` of a pass of strain `x` from `d_in`.
     #[allow(clippy::too_many_arguments)]
     pub(super) fn ratio_gap(

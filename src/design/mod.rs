@@ -1033,8 +1033,16 @@ fn explain(
                 }
             }
             binding.push(format!(
-                "no count of passes up to {PASSES_ALLOWED}, split into such runs, adds up to it"
+                "no count of passes up to {PASSES_ALLOWED}, split into such runs{}, adds up to it",
+                input
+                    .target
+                    .max_anneals
+                    .map(|k| format!(" with at most {k} anneals (target.max_anneals)"))
+                    .unwrap_or_default()
             ));
+            if let Some(k) = input.target.max_anneals {
+                remedy.push(format!("raise target.max_anneals (now {k})"));
+            }
             if let Some(r) = ctx.r_min {
                 remedy.push(format!("lower target.reduction_min (now {r})"));
             }

@@ -225,13 +225,14 @@ impl<'c, 'f> Tables<'c, 'f> {
             }
             None => {
                 for k in 0..=(hi as usize + 1) {
-                    if k > 0 && self.row_empty(self.row_of(k), hi as usize)? {
-                        break;
-                    }
                     for n in lo..=hi {
                         if let Some(s) = self.check(n, k)? {
                             return Ok(Some(s));
                         }
+                    }
+                    // A row empty up to the bound stays empty with more anneals.
+                    if k > 0 && self.row_empty(self.row_of(k), hi as usize)? {
+                        break;
                     }
                 }
             }
@@ -252,6 +253,15 @@ impl<'c, 'f> Tables<'c, 'f> {
     fn check(&mut self, n: u32, k: usize) -> Result<Option<Split>, DesignError> {
         let e = self.total;
         let eps = tol(e);
+        // Capacity: the first run carries at most its cap, each later run at
+        // most the annealed cap; fewer anneals than that sum allows cannot work.
+        let (c0, ca) = (
+            self.first.class.strain_cap.max(0.0),
+            self.annealed.class.strain_cap.max(0.0),
+        );
+        if c0 + k as f64 * ca < e - eps {
+            return Ok(None);
+        }
         let windowed = self.window.is_some();
         if k == 0 {
             if windowed && !self.straight_ok {

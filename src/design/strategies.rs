@@ -70,6 +70,9 @@ struct Shot {
     heavy_stop: Option<usize>,
     /// Index of the first pass under a light limit.
     light_fail: Option<usize>,
+    /// Heavy and light margins of each pass shot (the heavy stop's included).
+    heavy_margin: Vec<f64>,
+    light_margin: Vec<f64>,
     /// The limits the heavy stop and the first light failure break.
     stop_breaches: Vec<Breach>,
     light_breaches: Vec<Breach>,
@@ -296,32 +299,14 @@ impl<'c, 'f> RunTable<'c, 'f> {
         let top = self.level_top(1);
         // Heavy side: the new pass may bind below the running minimum.
         if !self.shot(self.t_b, ku)?.heavy(ku) {
-            let (mut lo, mut hi) = (0.0, self.t_b);
-            for _ in 0..BISECTIONS {
-                let m = 0.5 * (lo + hi);
-                if self.shot(m, ku)?.heavy(ku) {
-                    lo = m;
-                } else {
-                    hi = m;
-                }
-            }
-            self.t_b = lo;
+            self.t_b = self.switch(0.0, self.t_b, ku, true)?;
         }
         // Light side: the new pass may bind above the running maximum.
         if !self.shot(self.t_a, ku)?.light(ku) {
             if !self.shot(top, ku)?.light(ku) {
                 self.blocked = true;
             } else {
-                let (mut lo, mut hi) = (self.t_a, top);
-                for _ in 0..BISECTIONS {
-                    let m = 0.5 * (lo + hi);
-                    if self.shot(m, ku)?.light(ku) {
-                        hi = m;
-                    } else {
-                        lo = m;
-                    }
-                }
-                self.t_a = hi;
+                self.t_a = self.switch(self.t_a, top, ku, false)?;
             }
         }
         if self.blocked || self.t_a > self.t_b {
@@ -385,6 +370,70 @@ impl<'c, 'f> RunTable<'c, 'f> {
         Ok(out)
     }
 
+    /// The level in `[lo, hi]` where the first `n` passes switch: on the
+    /// heavy side (`heavy`: ok at `lo`, over at `hi`, the last ok level
+    /// returned) or the light side (under at `lo`, ok at `hi`, the first ok
+    /// level returned). Regula falsi (Illinois) on pass `n`'s margin with
+    /// the bracket kept by the limits themselves, and a halving whenever the
+    /// bracket fails to halve in three steps; to 1e-10 of the level range.
+    fn switch(&mut self, lo: f64, hi: f64, n: usize, heavy: bool) -> Result<f64, DesignError> {
+        let tol = 1e-10 * self.level_top(1).max(1e-12);
+        let margin = |s: &Shot| -> (bool, f64) {
+            let ok = if heavy { s.heavy(n) } else { s.light(n) };
+            let m = if heavy {
+                &s.heavy_margin
+            } else {
+                &s.light_margin
+            };
+            let v = m.get(n - 1).copied().unwrap_or(if ok { 1.0 } else { -1.0 });
+            // Keep the sign the limits decide.
+            (ok, if ok { v.max(0.0) } else { v.min(-1e-300) })
+        };
+        // Orient so that `g` rises from the failing end to the ok end.
+        let (mut a, mut b) = if heavy { (hi, lo) } else { (lo, hi) };
+        let (_, mut ga) = margin(self.shot(a, n)?);
+        let (_, mut gb) = margin(self.shot(b, n)?);
+        let mut side = 0i8;
+        let mut width_ref = (b - a).abs();
+        for it in 0..200 {
+            if (b - a).abs() <= tol {
+                break;
+            }
+            let mut x = if ga.is_finite() && gb.is_finite() && gb > ga {
+                a - ga * (b - a) / (gb - ga)
+            } else {
+                0.5 * (a + b)
+            };
+            if it % 3 == 2 {
+                if (b - a).abs() > 0.5 * width_ref {
+                    x = 0.5 * (a + b);
+                }
+                width_ref = (b - a).abs();
+            }
+            let (lo_x, hi_x) = (a.min(b), a.max(b));
+            if !(x > lo_x && x < hi_x) {
+                x = 0.5 * (a + b);
+            }
+            let (ok, g) = margin(self.shot(x, n)?);
+            if ok {
+                b = x;
+                gb = g;
+                if side == 1 {
+                    ga *= 0.5;
+                }
+                side = 1;
+            } else {
+                a = x;
+                ga = g;
+                if side == -1 {
+                    gb *= 0.5;
+                }
+                side = -1;
+            }
+        }
+        Ok(b)
+    }
+
     /// The run strain of `n` passes at level `t` (infinite past the heavy side).
     pub(super) fn strain_at(&mut self, n: u32, t: f64) -> Result<f64, DesignError> {
         Ok(if self.shared() {
@@ -413,6 +462,8 @@ impl<'c, 'f> RunTable<'c, 'f> {
             cum: Vec::new(),
             heavy_stop: None,
             light_fail: None,
+            heavy_margin: Vec::new(),
+            light_margin: Vec::new(),
             stop_breaches: Vec::new(),
             light_breaches: Vec::new(),
             floored: false,
@@ -451,10 +502,13 @@ impl<'c, 'f> RunTable<'c, 'f> {
                 // No pass from here is light enough to be at this level.
                 shot.light_fail.get_or_insert(i);
                 shot.floored = true;
+                shot.light_margin.push(-1.0);
+                shot.heavy_margin.push(1.0);
                 break;
             }
             let d_out = d * (-0.5 * x).exp();
             let p = ctx.pick(c.law, d, d_out, e, true).map_err(fail(d))?;
+            let (mr, mh, ml) = ctx.margins(&p);
             let mut heavy = false;
             let mut light_here = Vec::new();
             let mut heavy_here = Vec::new();
@@ -473,6 +527,15 @@ impl<'c, 'f> RunTable<'c, 'f> {
                     heavy = true;
                     heavy_here.push(b);
                 }
+            }
+            // The ratio's margin goes with the side its breach was put on.
+            let ratio_light = light_here.iter().any(|b| matches!(b, Breach::Ratio(_)));
+            if by_ratio || !ratio_light {
+                shot.heavy_margin.push(mh.min(mr));
+                shot.light_margin.push(ml);
+            } else {
+                shot.heavy_margin.push(mh);
+                shot.light_margin.push(ml.min(mr));
             }
             if !light_here.is_empty() && shot.light_fail.is_none() {
                 shot.light_fail = Some(i);
