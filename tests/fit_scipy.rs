@@ -1,7 +1,11 @@
 //! coldpass's fits of the demo tensile records against
 //! scipy.optimize.curve_fit (tests/scipy/fit_reference.py writes the
 //! reference file; .ci/run regenerates it and fails on any change).
-//! Parameters within 0.5 %, RMS within 1 %, standard errors within 2 %.
+//! The record analysis (modulus, Rp0.2, maximum force) is computed there
+//! from the definitions of ISO 6892-1 in its own way (linregress over the
+//! band, brentq on the interpolated curve), so it agrees to 1e-9; the fits
+//! are curve_fit's own iterations, so they agree to what two converged
+//! solvers reach: parameters 1e-6, standard errors 1e-4, RMS 1e-9.
 
 use std::path::Path;
 
@@ -60,11 +64,17 @@ fn every_fit_of_every_demo_record_agrees_with_scipy() {
     assert_eq!(records.len(), 3, "three demo records");
     for (name, want) in records {
         let got = analyse(name);
-        // The record analysis is the same algorithm on the same numbers.
+        // Same definitions, independent code: exact to rounding.
         close(
             &format!("{name} E"),
             got.youngs_modulus_gpa.unwrap(),
             want["youngs_modulus_gpa"].as_f64().unwrap(),
+            1e-9,
+        );
+        close(
+            &format!("{name} E std error"),
+            got.modulus.as_ref().unwrap().std_error_mpa / 1000.0,
+            want["youngs_modulus_std_error_gpa"].as_f64().unwrap(),
             1e-9,
         );
         close(
@@ -101,19 +111,19 @@ fn every_fit_of_every_demo_record_agrees_with_scipy() {
             assert!(f.converged, "{name} {law} converged");
             for p in &f.params {
                 let what = format!("{name} {law} {}", p.name);
-                close(&what, p.value, w["params"][p.name].as_f64().unwrap(), 0.005);
+                close(&what, p.value, w["params"][p.name].as_f64().unwrap(), 1e-6);
                 close(
                     &format!("{what} std error"),
                     p.std_error.unwrap(),
                     w["std_errors"][p.name].as_f64().unwrap(),
-                    0.02,
+                    1e-4,
                 );
             }
             close(
                 &format!("{name} {law} RMS"),
                 f.rms_mpa,
                 w["rms_mpa"].as_f64().unwrap(),
-                0.01,
+                1e-9,
             );
         }
     }
