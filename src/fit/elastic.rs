@@ -22,8 +22,9 @@
 //!   later rises again above the plateau (work hardening resumes). The lower
 //!   yield strength ReL is the lowest stress of the plateau; the yield point
 //!   extension (Lueders strain, ISO's Ae) is the strain from ReH to the start
-//!   of uniform work hardening, taken as the last point of the plateau, whose
-//!   stress is within [`PLATEAU_BAND`] of its median (or 4 noise deviations).
+//!   of uniform work hardening: where the plateau's level (the median of the
+//!   points within [`PLATEAU_BAND`] of it, or 4 noise deviations) meets a
+//!   line through the rising curve just after the plateau.
 //! - **Maximum force Fm** and tensile strength Rm: the highest stress after
 //!   work hardening has begun (after the plateau for discontinuous yielding).
 
@@ -352,11 +353,32 @@ fn lueders(
         .iter()
         .copied()
         .fold(f64::INFINITY, f64::min);
+    // Start of work hardening: where the plateau level meets a line through
+    // the rising curve just after the plateau (its first 4 band widths), as a
+    // lab draws it on the chart.
+    let mut sums = LineSums::default();
+    for j in end + 1..=imax2 {
+        if stress[j] > level + 4.0 * band {
+            break;
+        }
+        sums.add(strain[j], stress[j]);
+    }
+    let mut hardening_from = strain[end];
+    if let Some((a, b)) = sums.line() {
+        let at = (level - a) / b;
+        if b > 0.0 && at.is_finite() && at > strain[id] && at < strain[imax2] {
+            hardening_from = at;
+        }
+    }
+    let end = (id..=imax2)
+        .rev()
+        .find(|&i| strain[i] <= hardening_from)
+        .unwrap_or(end);
     Ok(Some((
         Yielding::Discontinuous {
             upper_mpa: stress[ip],
             lower_mpa: lower,
-            lueders_strain: strain[end] - strain[ip],
+            lueders_strain: hardening_from - strain[ip],
             plateau_end: end,
         },
         imax2,

@@ -39,6 +39,10 @@ pub const FRACTURE_FRACTION: f64 = 0.1;
 /// is in the wrong unit or not a tensile test.
 pub const MAX_STRESS_MPA: f64 = 20_000.0;
 
+/// Most negative strain a record may hold: an extensometer zeroed at the
+/// start reads a few microstrain below 0 (0.1 % allows far more).
+pub const MAX_NEGATIVE_STRAIN: f64 = 0.001;
+
 /// Highest engineering strain a record may hold (2000 %).
 pub const MAX_STRAIN: f64 = 20.0;
 
@@ -151,7 +155,8 @@ impl Cleaning {
     }
 }
 
-/// Checks every value: finite, not negative, not above the limits.
+/// Checks every value: finite, not negative (strain down to
+/// -[`MAX_NEGATIVE_STRAIN`]).
 pub fn validate(strain: &[f64], stress_mpa: &[f64]) -> Result<(), FitError> {
     super::same_length("stress", stress_mpa, "strain", strain)?;
     for (i, (&e, &s)) in strain.iter().zip(stress_mpa).enumerate() {
@@ -164,7 +169,14 @@ pub fn validate(strain: &[f64], stress_mpa: &[f64]) -> Result<(), FitError> {
                     value,
                 });
             }
-            if value < 0.0 {
+            // An extensometer zeroed at the start reads a little below 0
+            // (common practice accepts it); anything more is refused.
+            let floor = if field == "strain" {
+                -MAX_NEGATIVE_STRAIN
+            } else {
+                0.0
+            };
+            if value < floor {
                 return Err(FitError::Negative {
                     point,
                     field,
