@@ -645,7 +645,7 @@ fn law_blocks(flow: &FlowLaw, valid_to: f64, scatter: Option<&Scatter>) -> Resul
     m.insert(Value::from("flow"), serde_yaml::to_value(&rounded)?);
     m.insert(
         Value::from("flow_valid_to_strain"),
-        Value::from(sig(valid_to, 4).parse::<f64>().unwrap_or(valid_to)),
+        Value::from(sig(valid_to, 6).parse::<f64>().unwrap_or(valid_to)),
     );
     if let Some(sc) = scatter {
         m.insert(Value::from("flow_scatter"), scatter_yaml(sc)?);
