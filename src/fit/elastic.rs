@@ -17,7 +17,8 @@
 //!   offset by 0.2 % strain (linear interpolation between the points around
 //!   the first crossing).
 //! - **Yield drop**: the stress falls from a peak (the upper yield strength
-//!   ReH) by more than [`DROP_FRACTION`] of it (and 6 noise deviations) at a
+//!   ReH) by more than [`DROP_FRACTION`] of it (and 8 noise deviations), and
+//!   stays down (see [`DROP_PERSISTENCE`]), at a
 //!   plastic strain below [`YIELD_DROP_MAX_PLASTIC_STRAIN`], and the curve
 //!   later rises again above the plateau (work hardening resumes). The lower
 //!   yield strength ReL is the lowest stress of the plateau; the yield point
@@ -41,6 +42,8 @@ pub const YIELD_OFFSET_STRAIN: f64 = 0.002;
 pub const MIN_ELASTIC_POINTS: usize = 5;
 /// A fall of this fraction of the peak stress counts as a yield drop.
 pub const DROP_FRACTION: f64 = 0.01;
+/// Fraction of the record's points a drop must stay down for (5 at least).
+pub const DROP_PERSISTENCE: f64 = 0.002;
 /// A yield drop happens at the end of the elastic line: a peak at a larger
 /// plastic strain is not an upper yield point.
 pub const YIELD_DROP_MAX_PLASTIC_STRAIN: f64 = 0.01;
@@ -208,14 +211,23 @@ fn proof_strength(
     Some((stress[iy - 1] + t * (stress[iy] - stress[iy - 1]), iy))
 }
 
-/// The first peak after which the stress falls by the drop threshold:
-/// `(peak index, index of the first point below the threshold)`.
+/// The first peak after which the stress falls by the drop threshold and
+/// stays down: `(peak index, index of the first point below the threshold)`.
+/// Staying down (the median of the next [`DROP_PERSISTENCE`] points, at
+/// least 5, below the threshold too) tells a yield drop from the noise of a
+/// densely sampled elastic line, whose running maximum rides on the noise's
+/// extremes.
 fn first_drop(stress: &[f64], noise: f64) -> Option<(usize, usize)> {
+    let n = stress.len();
+    let k = ((n as f64 * DROP_PERSISTENCE) as usize).max(5);
     let mut ip = 0;
-    for i in 1..stress.len() {
+    for i in 1..n {
         if stress[i] > stress[ip] {
             ip = i;
-        } else if stress[i] < stress[ip] - (DROP_FRACTION * stress[ip]).max(6.0 * noise) {
+            continue;
+        }
+        let thr = stress[ip] - (DROP_FRACTION * stress[ip]).max(8.0 * noise);
+        if stress[i] < thr && i + k <= n && median(&stress[i..i + k]) < thr {
             return Some((ip, i));
         }
     }

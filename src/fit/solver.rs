@@ -200,17 +200,27 @@ pub struct Outcome<const N: usize> {
 /// `(J^T J + lambda diag(J^T J)) d = J^T r`, accept a step that lowers SSR
 /// (lambda / 10), else raise lambda tenfold. Converged when an accepted step
 /// lowers SSR by less than 1e-12 of itself and moves no parameter by more
-/// than 1e-9 (transformed), or when no step can lower SSR at all.
+/// than 1e-9 (transformed), when the Gauss-Newton step predicts a drop below
+/// 1e-12 of SSR, or when no step can lower SSR at all.
 fn iterate<const N: usize, M: Model<N>>(
     model: &M,
     start: [f64; N],
     p: &Points<'_>,
     max_iterations: usize,
+    lambda0: f64,
 ) -> Option<(Normal<N>, [f64; N], bool, usize)> {
     let mut t = start;
     let mut cur = normal(model, &t, p)?;
-    let mut lambda = 1e-3;
+    let mut lambda = lambda0;
     for it in 1..=max_iterations {
+        // Converged when even the undamped (Gauss-Newton) step predicts an
+        // SSR drop below 1e-12 of SSR: no trial pass over the data is needed.
+        if let Some(d) = solve(cur.a, cur.g) {
+            let predicted: f64 = d.iter().zip(&cur.g).map(|(a, b)| a * b).sum();
+            if predicted.abs() <= 1e-12 * cur.ssr || cur.ssr == 0.0 {
+                return Some((cur, t, true, it - 1));
+            }
+        }
         let mut accepted = None;
         while lambda <= 1e16 {
             let mut damped = cur.a;
@@ -218,6 +228,12 @@ fn iterate<const N: usize, M: Model<N>>(
                 row[i] += lambda * cur.a[i][i].max(1e-300);
             }
             if let Some(d) = solve(damped, cur.g) {
+                if d.iter().all(|v| {
+                    v.abs() <= 1e-15 * (1.0 + t.iter().fold(0.0f64, |m, x| m.max(x.abs())))
+                }) {
+                    // The step vanishes before SSR falls: t is a minimum to working precision.
+                    return Some((cur, t, true, it));
+                }
                 let mut trial = t;
                 for i in 0..N {
                     trial[i] += d[i];
@@ -262,12 +278,15 @@ pub fn levenberg_marquardt<const N: usize, M: Model<N>>(
     let stride = Stride::of(p);
     let (mut t, mut iterations) = (start, 0);
     if stride.x.len() < p.x.len() {
-        if let Some((_, ts, _, it)) = iterate(model, start, &stride.points(), MAX_ITERATIONS) {
+        if let Some((_, ts, _, it)) = iterate(model, start, &stride.points(), MAX_ITERATIONS, 1e-3)
+        {
             t = ts;
             iterations = it;
         }
     }
-    match iterate(model, t, p, MAX_ITERATIONS) {
+    // From the stride's minimum the whole record needs a Gauss-Newton step or two.
+    let lambda0 = if iterations > 0 { 1e-6 } else { 1e-3 };
+    match iterate(model, t, p, MAX_ITERATIONS, lambda0) {
         Some((n, t, converged, it)) => Outcome {
             t,
             converged,

@@ -834,7 +834,13 @@ fn colour(law: FitLaw) -> RGBColor {
 pub fn svg(r: &FitReport, src: &Source) -> Result<String> {
     let mut buf = String::new();
     {
-        let wide = r.reach_strain.is_some_and(|x| x > r.strain_to());
+        // The run-out panel reaches the schedule's strain or the farthest drawn point.
+        let far = r
+            .drawn
+            .iter()
+            .map(|d| d.strain * 1.05)
+            .fold(r.reach_strain.unwrap_or(0.0), f64::max);
+        let wide = far > r.strain_to();
         let size = if wide { (1200, 620) } else { (760, 620) };
         // The caution in as many lines as the width needs, so none runs off the edge.
         let caution = wrap_words(CAUTION, (size.0 as usize - 32) / CAUTION_CHAR_PX);
@@ -865,7 +871,7 @@ pub fn svg(r: &FitReport, src: &Source) -> Result<String> {
         if wide {
             let (left, right) = body.split_horizontally(size.0 / 2);
             panel(&left, r, &laws, r.strain_to() * 1.05, false)?;
-            panel(&right, r, &laws, r.reach_strain.unwrap_or(1.0), true)?;
+            panel(&right, r, &laws, far, true)?;
         } else {
             panel(&body, r, &laws, r.strain_to() * 1.05, false)?;
         }
@@ -938,6 +944,9 @@ where
             }
         }
     }
+    for d in r.drawn.iter().filter(|d| d.strain <= x_max) {
+        y_max = y_max.max(d.tensile_strength_mpa);
+    }
     let y_max = (y_max * 1.12).max(1.0);
     let curve = |f: &LawFit, a: f64, b: f64| -> Vec<(f64, f64)> {
         curve(f, a, b)
@@ -996,6 +1005,60 @@ where
                 .draw_series(DashedLineSeries::new(curve(f, end, x_max), 8, 5, style))
                 .map_err(plot_err)?;
         }
+    }
+    // The best law's confidence band: +-2 standard errors of its predicted
+    // stress (delta method on the covariance; assumes the law is right).
+    if let Some(best) = r.best.and_then(|b| r.fit(b)) {
+        let c = colour(best.law);
+        let n = 120;
+        let pts: Vec<(f64, f64, f64)> = (0..=n)
+            .filter_map(|i| {
+                let x = x_max * (i as f64 / n as f64).max(1e-4);
+                best.stress_with_error_mpa(x).map(|(f, se)| (x, f, se))
+            })
+            .collect();
+        if !pts.is_empty() {
+            let mut poly: Vec<(f64, f64)> = pts
+                .iter()
+                .map(|&(x, f, se)| (x, (f + 2.0 * se).min(y_max)))
+                .collect();
+            poly.extend(
+                pts.iter()
+                    .rev()
+                    .map(|&(x, f, se)| (x, (f - 2.0 * se).clamp(0.0, y_max))),
+            );
+            chart
+                .draw_series(std::iter::once(Polygon::new(poly, c.mix(0.18).filled())))
+                .map_err(plot_err)?
+                .label(format!("{} ±2 std errors (law assumed right)", best.law))
+                .legend(move |(x, y)| {
+                    Rectangle::new([(x, y - 4), (x + 20, y + 4)], c.mix(0.18).filled())
+                });
+        }
+    }
+    // With drawn-wire points: their best law (black, dashed) and the points (triangles).
+    if let Some(wd) = r.best_with_drawn.and_then(|b| r.drawn_fit(b)) {
+        let black = ShapeStyle::from(&BLACK).stroke_width(2);
+        chart
+            .draw_series(DashedLineSeries::new(curve(wd, 0.0, x_max), 6, 4, black))
+            .map_err(plot_err)?
+            .label(format!("{} with drawn-wire points", wd.law))
+            .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], black));
+        let inside: Vec<(f64, f64)> = r
+            .drawn
+            .iter()
+            .map(|d| (d.strain, d.tensile_strength_mpa))
+            .filter(|&(x, y)| x <= x_max && y <= y_max)
+            .collect();
+        chart
+            .draw_series(
+                inside
+                    .iter()
+                    .map(|&p| TriangleMarker::new(p, 6, BLACK.filled())),
+            )
+            .map_err(plot_err)?
+            .label("drawn-wire tensile strength")
+            .legend(|(x, y)| TriangleMarker::new((x + 10, y), 6, BLACK.filled()));
     }
     // The data over the laws, a white rim round each dot so that it stands
     // out on a curve, thinned to one dot per few pixels along the record.
