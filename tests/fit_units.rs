@@ -171,16 +171,16 @@ fn the_report_is_never_written_over_the_record() {
 
 #[test]
 fn several_specimens_give_the_set_law_with_its_scatter() {
-    // Three specimens: the demo copper with its stresses scaled by 0.97,
-    // 1.00 and 1.04 (demo values). The set's flow_scatter sd is the sample
+    // Three specimens: the demo copper with its stresses scaled by
+    // k (1 + c e) for (k, c) = (0.97, 0), (1.00, 0.05), (1.04, -0.04) (demo values). The set's flow_scatter sd is the sample
     // standard deviation (n - 1) of the three fits' parameters, and its mean
     // the law written.
     let dir = TempDir::new().unwrap();
     let mut files = Vec::new();
-    for (i, k) in [0.97, 1.0, 1.04].iter().enumerate() {
+    for (i, (k, c)) in [(0.97, 0.0), (1.0, 0.05), (1.04, -0.04)].iter().enumerate() {
         let mut text = String::from("strain,stress (MPa)\n");
         for r in rows(COPPER) {
-            text.push_str(&format!("{},{:.6}\n", r[0], r[1] * k));
+            text.push_str(&format!("{},{:.6}\n", r[0], r[1] * k * (1.0 + c * r[0])));
         }
         files.push(write(&dir, &format!("s{i}.csv"), &text));
     }

@@ -123,6 +123,14 @@ pub enum FitWarning {
         /// G/100, MPa.
         high_mpa: f64,
     },
+    /// A drawn-wire point below the record's uniform strain: its tensile
+    /// strength is above its flow stress (Considere), so it reads the law high.
+    DrawnBelowUniform {
+        /// The point's strain.
+        strain: f64,
+        /// The record's uniform strain.
+        uniform_strain: f64,
+    },
     /// The laws are fitted over a strain range that drawing goes far beyond.
     Extrapolated {
         /// Lowest fitted plastic strain.
@@ -224,6 +232,13 @@ impl fmt::Display for FitWarning {
             } => write!(
                 f,
                 "Hollomon K = {k_mpa:.1} MPa lies outside G/1000 to G/100 ({low_mpa:.1} to {high_mpa:.1} MPa); check the record and the shear modulus"
+            ),
+            FitWarning::DrawnBelowUniform {
+                strain,
+                uniform_strain,
+            } => write!(
+                f,
+                "drawn-wire point at strain {strain:.3} lies below the record's uniform strain {uniform_strain:.3}: such wire still hardens before it necks, so its tensile strength is above the flow stress at its strain (Considere) and reads the law high"
             ),
             FitWarning::Extrapolated {
                 strain_from,
@@ -380,6 +395,14 @@ pub(super) fn checks(report: &FitReport, options: &FitOptions) -> Vec<FitWarning
                     measured_mpa: measured,
                 });
             }
+        }
+    }
+    if let Some(eu) = report.uniform_strain {
+        for d in report.drawn.iter().filter(|d| d.strain < eu) {
+            out.push(FitWarning::DrawnBelowUniform {
+                strain: d.strain,
+                uniform_strain: eu,
+            });
         }
     }
     out.push(FitWarning::Extrapolated {
