@@ -309,19 +309,20 @@ fn open_record(path: &Path) -> Result<(BufReader<std::fs::File>, u64)> {
 }
 
 /// Reads the header row and chooses the two columns with `pick`, then
-/// reads those two columns as numbers.
+/// reads those two columns as numbers, line by line as bytes (no table of
+/// strings is kept: 16 bytes a point).
 fn read_columns(
     path: &Path,
     pick: impl FnOnce(&[String]) -> Result<(usize, usize)>,
 ) -> Result<Columns> {
     let (mut reader, size) = open_record(path)?;
-    let mut buf = String::new();
+    let mut buf: Vec<u8> = Vec::with_capacity(256);
     let mut line_no = 0u64;
-    let read_line = |reader: &mut BufReader<std::fs::File>, buf: &mut String| -> Result<usize> {
+    let read_line = |reader: &mut BufReader<std::fs::File>, buf: &mut Vec<u8>| -> Result<usize> {
         buf.clear();
         reader
-            .read_line(buf)
-            .with_context(|| format!("reading '{}' (is it text?)", path.display()))
+            .read_until(b'\n', buf)
+            .with_context(|| format!("reading '{}'", path.display()))
     };
     // The header: the first line that is not a note or blank.
     let header = loop {
@@ -329,25 +330,30 @@ fn read_columns(
             bail!("'{}' has no header row", path.display());
         }
         line_no += 1;
-        let t = buf.trim();
+        let t = String::from_utf8_lossy(&buf).trim().to_string();
         if !t.is_empty() && !t.starts_with('#') {
-            break t.to_string();
+            break t;
         }
     };
     let sep = separator(&header);
     let headers: Vec<String> = header.split(sep).map(|h| unquote(h).to_string()).collect();
     let (a, b) = pick(&headers)?;
     let decimal_comma = sep != ',';
+    let sep = sep as u8;
     let mut first = Vec::new();
     let mut second = Vec::new();
     let mut lines = LineMap::default();
     let mut bytes_seen = 0usize;
-    let cell_value = |cell: &str, line: u64, col: usize| -> Result<f64> {
-        let c = unquote(cell);
-        let parsed = if decimal_comma && c.contains(',') {
-            c.replace(',', ".").parse::<f64>()
+    let cell_value = |cell: &[u8], line: u64, col: usize| -> Result<f64> {
+        let mut c = cell.trim_ascii();
+        if c.len() >= 2 && c[0] == b'"' && c[c.len() - 1] == b'"' {
+            c = c[1..c.len() - 1].trim_ascii();
+        }
+        let text = std::str::from_utf8(c).unwrap_or("\u{fffd}");
+        let parsed = if decimal_comma && c.contains(&b',') {
+            text.replace(',', ".").parse::<f64>()
         } else {
-            c.parse::<f64>()
+            text.parse::<f64>()
         };
         parsed.map_err(|_| {
             if c.is_empty() {
@@ -361,7 +367,10 @@ fn read_columns(
                     "'{}' line {line}, column '{}': '{}' is not a number",
                     path.display(),
                     headers[col],
-                    c.chars().take(40).collect::<String>()
+                    String::from_utf8_lossy(c)
+                        .chars()
+                        .take(40)
+                        .collect::<String>()
                 )
             }
         })
@@ -372,8 +381,8 @@ fn read_columns(
             break;
         }
         line_no += 1;
-        let t = buf.trim();
-        if t.is_empty() || t.starts_with('#') {
+        let t = buf.trim_ascii();
+        if t.is_empty() || t[0] == b'#' {
             continue;
         }
         // Room for the whole record once the line length is known.
@@ -385,7 +394,7 @@ fn read_columns(
             second.reserve(expect.saturating_sub(second.len()));
         }
         let (mut va, mut vb) = (None, None);
-        for (i, cell) in t.split(sep).enumerate() {
+        for (i, cell) in t.split(|&ch| ch == sep).enumerate() {
             if i == a {
                 va = Some(cell_value(cell, line_no, a)?);
             } else if i == b {
@@ -397,11 +406,11 @@ fn read_columns(
         }
         let va = match va {
             Some(v) => v,
-            None => cell_value("", line_no, a)?,
+            None => cell_value(b"", line_no, a)?,
         };
         let vb = match vb {
             Some(v) => v,
-            None => cell_value("", line_no, b)?,
+            None => cell_value(b"", line_no, b)?,
         };
         lines.note(first.len(), line_no);
         first.push(va);

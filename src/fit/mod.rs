@@ -553,10 +553,7 @@ fn compact(x: &mut Vec<f64>, y: &mut Vec<f64>, keep: impl Fn(f64, f64) -> bool) 
 }
 
 fn fit_all(report: &mut FitReport) -> Result<(), FitError> {
-    for law in FitLaw::PLASTIC {
-        let fit = fit_law(law, &report.plastic_strain, &report.true_stress_mpa)?;
-        report.fits.push(fit);
-    }
+    report.fits = fit_plastic_laws(&report.plastic_strain, &report.true_stress_mpa, &[])?;
     if let Some(e_gpa) = report.youngs_modulus_gpa {
         for law in [FitLaw::ElasticPerfectlyPlastic, FitLaw::ElasticLinear] {
             let fit = fit_elastic_form(law, &report.total_strain, &report.total_stress_mpa, e_gpa)?;
@@ -571,11 +568,8 @@ fn fit_all(report: &mut FitReport) -> Result<(), FitError> {
             .iter()
             .map(|d| (d.strain, d.tensile_strength_mpa, w))
             .collect();
-        for law in FitLaw::PLASTIC {
-            let fit =
-                fit_law_weighted(law, &report.plastic_strain, &report.true_stress_mpa, &extra)?;
-            report.drawn_fits.push(fit);
-        }
+        report.drawn_fits =
+            fit_plastic_laws(&report.plastic_strain, &report.true_stress_mpa, &extra)?;
     }
     let reach = report.reach_strain;
     for fit in report.fits.iter_mut().chain(report.drawn_fits.iter_mut()) {
@@ -586,6 +580,34 @@ fn fit_all(report: &mut FitReport) -> Result<(), FitError> {
     report.best = best_of(&report.fits);
     report.best_with_drawn = best_of(&report.drawn_fits);
     Ok(())
+}
+
+/// Every plastic-strain law, in [`FitLaw::PLASTIC`] order; Swift and Voce
+/// on a second thread beside the others (the fits are independent, so the
+/// result is the same as one after the other).
+fn fit_plastic_laws(
+    x: &[f64],
+    y: &[f64],
+    extra: &[(f64, f64, f64)],
+) -> Result<Vec<LawFit>, FitError> {
+    let one = |laws: &[FitLaw]| -> Result<Vec<LawFit>, FitError> {
+        laws.iter()
+            .map(|&l| fit_law_weighted(l, x, y, extra))
+            .collect()
+    };
+    let (here, other) = std::thread::scope(|s| {
+        let other = s.spawn(|| one(&[FitLaw::Swift, FitLaw::Voce]));
+        let here = one(&[
+            FitLaw::PerfectlyPlastic,
+            FitLaw::Linear,
+            FitLaw::Hollomon,
+            FitLaw::Ludwik,
+        ]);
+        (here, other.join())
+    });
+    let mut fits = here?;
+    fits.extend(other.unwrap_or_else(|e| std::panic::resume_unwind(e))?);
+    Ok(fits)
 }
 
 /// The converged, valid plastic-strain law with the lowest finite AIC.
