@@ -264,3 +264,22 @@ fn drawn_wire_points_set_the_strain_the_emitted_law_is_good_for() {
         stderr(&o)
     );
 }
+
+#[test]
+fn no_chart_is_written_when_the_report_cannot_be() {
+    // Issue 15: side outputs were written although the run failed.
+    let dir = TempDir::new().unwrap();
+    let plot = dir.path().join("chart.svg");
+    let report = dir.path().join("no-such-folder").join("r.txt");
+    let o = coldpass(&[
+        "fit",
+        COPPER,
+        "--plot",
+        plot.to_str().unwrap(),
+        "-o",
+        report.to_str().unwrap(),
+    ]);
+    assert_eq!(o.status.code(), Some(1));
+    assert!(stderr(&o).contains("does not exist"), "{}", stderr(&o));
+    assert!(!plot.exists());
+}

@@ -771,6 +771,21 @@ fn check_paths(args: &FitArgs) -> Result<()> {
     .filter_map(|(n, p)| p.filter(|p| *p != Path::new("-")).map(|p| (n, p)))
     .collect();
     let canon = |p: &Path| std::fs::canonicalize(p).unwrap_or_else(|_| p.to_path_buf());
+    // Every output's folder must exist before anything is written, so that a
+    // run that cannot write its report leaves no chart or law behind.
+    for (name, p) in &outputs {
+        let dir = match p.parent() {
+            Some(d) if !d.as_os_str().is_empty() => d,
+            _ => Path::new("."),
+        };
+        if !dir.is_dir() {
+            bail!(
+                "{name} '{}': the folder '{}' does not exist; nothing was written",
+                p.display(),
+                dir.display()
+            );
+        }
+    }
     for (i, (name, p)) in outputs.iter().enumerate() {
         for input in &args.files {
             if canon(p) == canon(input) {
