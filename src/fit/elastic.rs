@@ -263,7 +263,21 @@ pub fn analyse(
         let plastic_at_peak = strain[ip] - pre.toe_strain - stress[ip] / pre.modulus_mpa;
         if plastic_at_peak < YIELD_DROP_MAX_PLASTIC_STRAIN {
             if let Some(found) = lueders(strain, stress, noise, ip, id, fractured)? {
-                let (modulus, _) = modulus_in_band(strain, stress, stress[ip], Some(line), ip)?;
+                // The band is fixed by ReH; iterate the line until its points stay put.
+                let (mut modulus, mut last) =
+                    modulus_in_band(strain, stress, stress[ip], Some(line), ip)?;
+                for _ in 0..20 {
+                    line = (
+                        -modulus.toe_strain * modulus.modulus_mpa,
+                        modulus.modulus_mpa,
+                    );
+                    let (m, range) = modulus_in_band(strain, stress, stress[ip], Some(line), ip)?;
+                    modulus = m;
+                    if range == last {
+                        break;
+                    }
+                    last = range;
+                }
                 return Ok(Analysis {
                     modulus,
                     yielding: found.0,

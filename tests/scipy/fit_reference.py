@@ -36,6 +36,15 @@ RECORDS = {
         "gauge_length_mm": 50.0,
         "diameter_mm": 5.5,
     },
+    "tensile-steel-lueders.csv": {
+        "extension": 0,
+        "force": 1,
+        "force_scale": 1000.0,
+        "gauge_length_mm": 50.0,
+        "diameter_mm": 6.5,
+        "sep": ";",
+        "yield_drop": True,
+    },
 }
 
 TIGHT = {"xtol": 1e-15, "ftol": 1e-15, "gtol": 1e-15, "maxfev": 100000}
@@ -61,7 +70,10 @@ def clean(obj):
 def read(name, cfg):
     lines = (ROOT / "schedules-demo" / name).read_text().splitlines()
     rows = [l for l in lines if l.strip() and not l.startswith("#")][1:]
-    data = np.array([[float(c) for c in l.split(",")] for l in rows])
+    sep = cfg.get("sep", ",")
+    # a semicolon export writes decimal commas
+    cell = (lambda c: float(c.replace(",", "."))) if sep != "," else float
+    data = np.array([[cell(c) for c in l.split(sep)] for l in rows])
     if "strain" in cfg:
         return data[:, cfg["strain"]] * cfg["strain_scale"], data[:, cfg["stress"]]
     area = math.pi * cfg["diameter_mm"] ** 2 / 4.0
@@ -125,6 +137,42 @@ def analyse(e, s):
     }
 
 
+def analyse_drop(e, s):
+    """A record with a yield drop, from ISO 6892-1's definitions: the upper
+    yield strength ReH is the highest stress before the force first falls,
+    here the highest within the first 0.5 % strain (the drop lies at the end
+    of the elastic line); the modulus is one linregress line over the points
+    whose strain puts them between 10 % and 40 % of ReH on the line
+    (iterated to a fixed point); the maximum force is the highest after the
+    plateau."""
+    early = np.flatnonzero(e < 0.005)
+    ih = int(early[np.argmax(s[early])])
+    reh = s[ih]
+    first = (s >= 0.05 * reh) & (s <= 0.20 * reh)
+    lr = modulus(e, s, ih, first)
+    chosen = None
+    for _ in range(50):
+        on_line = lr.intercept + lr.slope * e
+        band = (on_line >= 0.1 * reh) & (on_line <= 0.4 * reh)
+        lr = modulus(e, s, ih, band)
+        key = tuple(np.flatnonzero(band[:ih]))
+        if key == chosen:
+            break
+        chosen = key
+    E, toe = lr.slope, -lr.intercept / lr.slope
+    later = np.flatnonzero(e >= 0.005)
+    im = int(later[np.argmax(s[later])])
+    ec = e[im] - toe
+    et, st = math.log1p(ec), s[im] * (1.0 + ec)
+    return {
+        "youngs_modulus_gpa": E / 1000.0,
+        "youngs_modulus_std_error_gpa": lr.stderr / 1000.0,
+        "upper_yield_mpa": reh,
+        "uts_mpa": s[im],
+        "uniform_strain": et - st / E,
+    }
+
+
 def result(names, popt, pcov, y, model):
     res = y - model
     return {
@@ -182,6 +230,9 @@ def fits(r):
 def main():
     records = {}
     for name, cfg in RECORDS.items():
+        if cfg.get("yield_drop"):
+            records[name] = analyse_drop(*read(name, cfg))
+            continue
         r = analyse(*read(name, cfg))
         records[name] = {
             "youngs_modulus_gpa": r["E"] / 1000.0,
