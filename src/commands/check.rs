@@ -4,12 +4,13 @@ use std::path::PathBuf;
 
 use anyhow::{Context, Result};
 use clap::Args;
-use coldpass::evaluation::{evaluate, EvaluateOptions};
-use coldpass::schedule;
+use coldpass::evaluation::{evaluate_on, EvaluateOptions};
+use coldpass::machine::{self, Machine};
+use coldpass::schedule::{self, ScheduleFile};
 use coldpass::Method;
 
+use super::options::{ReportArgs, ViewArgs};
 use super::{EXIT_OK, EXIT_OVER};
-use crate::cli::ReportArgs;
 use crate::{output, report};
 
 /// Arguments of `coldpass check`.
@@ -20,8 +21,13 @@ pub struct CheckArgs {
     /// Governing method, overriding the file's `limits.method`.
     #[arg(long, value_name = "NAME", value_parser = parse_method)]
     pub method: Option<Method>,
+    /// Run the schedule on this machine file (YAML), overriding the file's `machine:`.
+    #[arg(long, value_name = "FILE")]
+    pub machine: Option<PathBuf>,
     #[command(flatten)]
     pub report: ReportArgs,
+    #[command(flatten)]
+    pub view: ViewArgs,
 }
 
 /// Parses a method name for clap, listing the allowed names on error.
@@ -31,25 +37,63 @@ pub fn parse_method(s: &str) -> Result<Method, String> {
 
 /// Runs `coldpass check`: exit 0 within limits, 3 over a limit.
 pub fn run(args: &CheckArgs) -> Result<u8> {
-    let text = output::read_to_string(&args.file)?;
+    let text = crate::input::read_text(&args.file)?;
     let file = schedule::parse(&text)
         .with_context(|| format!("reading schedule '{}'", args.file.display()))?;
-    let rep = evaluate(
+    let machine = read_machine(args, &file)?;
+    let rep = evaluate_on(
         &file,
         &EvaluateOptions {
             method: args.method,
         },
+        machine.as_ref().map(|(_, m)| m),
     )
     .with_context(|| format!("checking schedule '{}'", args.file.display()))?;
-    let body = report::render_schedule(&rep, args.report.format)?;
+    output::ensure_finite("report", &rep)?;
+    let body = report::render_schedule(&rep, &file, args.report.format, &args.view.look())?;
     // Render everything before writing anything, so a failure leaves no partial output.
     let chart = match &args.report.plot {
         Some(_) => Some(report::svg::schedule(&rep, &file)?),
         None => None,
     };
-    if let (Some(path), Some(svg)) = (&args.report.plot, &chart) {
-        output::write_file(path, svg)?;
+    // Neither the schedule nor its machine file may be overwritten by an output.
+    let mut inputs = vec![args.file.as_path()];
+    if let Some((path, _)) = &machine {
+        inputs.push(path.as_path());
     }
-    output::emit(args.report.output.as_deref(), &body)?;
+    let mut outputs = output::Outputs::new(&inputs);
+    if let (Some(path), Some(svg)) = (&args.report.plot, chart) {
+        outputs.file("--plot", path, svg);
+    }
+    outputs.report(args.report.output.as_deref(), body);
+    outputs.write()?;
     Ok(if rep.is_over() { EXIT_OVER } else { EXIT_OK })
+}
+
+/// The machine: `--machine FILE`, else the schedule's `machine:` path
+/// (relative to the schedule file), else none.
+pub fn read_machine(args: &CheckArgs, file: &ScheduleFile) -> Result<Option<(PathBuf, Machine)>> {
+    let path = match (&args.machine, &file.machine) {
+        (Some(p), _) => p.clone(),
+        (None, Some(rel)) => args
+            .file
+            .parent()
+            .unwrap_or_else(|| std::path::Path::new(""))
+            .join(rel),
+        (None, None) => return Ok(None),
+    };
+    let text = crate::input::read_text(&path).with_context(|| {
+        if args.machine.is_some() {
+            "reading the --machine file".to_string()
+        } else {
+            format!(
+                "reading the machine file that '{}' names (machine: {})",
+                args.file.display(),
+                file.machine.as_deref().unwrap_or_default()
+            )
+        }
+    })?;
+    let m =
+        machine::parse(&text).with_context(|| format!("reading machine '{}'", path.display()))?;
+    Ok(Some((path, m)))
 }

@@ -11,10 +11,11 @@ use clap::{Args, ValueEnum};
 
 use coldpass::fit::{self, DataKind, FitError, FitLaw, FitOptions};
 
-use crate::cli::{Format, ReportArgs};
+use crate::commands::options::ReportArgs;
 use crate::commands::EXIT_OK;
 use crate::output;
 use crate::report::fit as report;
+use crate::report::Format;
 
 /// Arguments of `coldpass fit`.
 #[derive(Debug, Args)]
@@ -121,7 +122,7 @@ struct Table {
 }
 
 fn read_table(path: &Path) -> Result<Table> {
-    let text = output::read_to_string(path)?;
+    let text = crate::input::read_text(path)?;
     let mut reader = csv::ReaderBuilder::new()
         .comment(Some(b'#'))
         .trim(csv::Trim::All)
@@ -347,6 +348,7 @@ pub fn run(args: &FitArgs) -> Result<u8> {
         Format::Json => report::json(&result, &source)?,
         Format::Yaml => report::yaml(&result, &source)?,
         Format::Csv => report::csv(&result, &source)?,
+        Format::Html => crate::report::html::fit_page(&result, &source)?,
     };
     let chart = match &args.report.plot {
         Some(_) => Some(report::svg(&result, &source)?),
@@ -362,14 +364,21 @@ pub fn run(args: &FitArgs) -> Result<u8> {
         }
         None => None,
     };
+    if let Some(text) = &law_file {
+        // The law file feeds a schedule: no figure in it may be inf or NaN.
+        let tree: serde_yaml::Value = serde_yaml::from_str(text)?;
+        output::ensure_finite("law file", &tree)?;
+    }
     // Everything is built: now write.
-    if let (Some(p), Some(bytes)) = (&args.report.plot, &chart) {
-        output::write_file(p, bytes.as_bytes())?;
+    let mut outputs = output::Outputs::new(&[path]);
+    if let (Some(p), Some(bytes)) = (&args.report.plot, chart) {
+        outputs.file("--plot", p, bytes.into_bytes());
     }
-    if let (Some(p), Some(bytes)) = (&args.emit_law, &law_file) {
-        output::write_file(p, bytes.as_bytes())?;
+    if let (Some(p), Some(bytes)) = (&args.emit_law, law_file) {
+        outputs.file("--emit-law", p, bytes.into_bytes());
     }
-    output::emit(args.report.output.as_deref(), body.as_bytes())?;
+    outputs.report(args.report.output.as_deref(), body.into_bytes());
+    outputs.write()?;
     Ok(EXIT_OK)
 }
 

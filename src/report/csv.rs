@@ -51,8 +51,15 @@ fn num(x: Option<f64>) -> String {
 
 /// The steps as CSV.
 pub fn schedule(rep: &ScheduleReport) -> Result<Vec<u8>> {
-    let mut w = csv::Writer::from_writer(Vec::new());
-    w.write_record(HEADER)?;
+    // The writer scans a quoted field's whole remaining text for quotes on
+    // every buffer refill, so a field longer than its buffer costs time
+    // quadratic in its length (a 16 MB title: seconds per row). A buffer
+    // that holds the longest field (quotes doubled) keeps it linear.
+    let longest = rep.title.len().max(rep.caution.len());
+    let mut w = csv::WriterBuilder::new()
+        .buffer_capacity((2 * longest + 64).max(8 * 1024))
+        .from_writer(Vec::new());
+    w.write_record(super::machine::csv_header(&HEADER))?;
     for r in &rep.passes {
         let d = r.draw_stress_mpa;
         let record: Vec<String> = vec![
@@ -105,7 +112,7 @@ pub fn schedule(rep: &ScheduleReport) -> Result<Vec<u8>> {
             rep.title.clone(),
             rep.caution.clone(),
         ];
-        w.write_record(&record)?;
+        w.write_record(super::machine::csv_record(rep, r, record))?;
     }
     Ok(w.into_inner()?)
 }
