@@ -259,7 +259,7 @@ impl<'a> PreparedPass<'a> {
     fn sachs_cone(&self, t: &DieTerms, alpha: f64) -> Result<f64, PassError> {
         let b = t.mu / alpha.tan();
         let decay = (-b * self.eps).exp();
-        let integral = match self.form.integral(b, self.eps) {
+        let integral = match self.form.integral(b, self.eps, decay) {
             Some(v) => v,
             None => sachs::integral_by_quadrature(self.law, self.strain_before, self.eps, b)?,
         };
