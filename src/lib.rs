@@ -14,6 +14,7 @@ pub mod machine;
 pub mod param;
 pub mod pass;
 pub mod quad;
+pub mod risk;
 pub mod schedule;
 pub mod size;
 

@@ -29,7 +29,8 @@ use std::collections::HashMap;
 use std::fs::{self, File, OpenOptions};
 use std::io::{self, Write};
 use std::path::{Path, PathBuf};
-use std::sync::Mutex;
+use std::sync::atomic::{AtomicBool, Ordering};
+use std::sync::{Arc, Mutex};
 
 use anyhow::{anyhow, bail, Context, Result};
 use serde::Serialize;
@@ -46,6 +47,36 @@ pub fn remove_temporaries() -> std::sync::MutexGuard<'static, Vec<PathBuf>> {
         let _ = fs::remove_file(&p);
     }
     list
+}
+
+/// A long computation's stop flag: the first SIGINT/SIGTERM sets it (when no
+/// file is being written) instead of ending the process.
+static STOP_FLAG: Mutex<Option<Arc<AtomicBool>>> = Mutex::new(None);
+
+/// Asks that the next SIGINT or SIGTERM set `flag` rather than end the
+/// process, so a long computation can stop by itself and say so; a second
+/// signal ends the process as usual.
+pub fn stop_on_interrupt(flag: Arc<AtomicBool>) {
+    *STOP_FLAG.lock().unwrap_or_else(|p| p.into_inner()) = Some(flag);
+}
+
+/// What SIGINT/SIGTERM does: set the stop flag of a computation that asked
+/// for one, once, while no file is being written; otherwise remove every
+/// temporary file and end with `status`.
+pub fn on_interrupt(status: i32) {
+    let flag = STOP_FLAG.lock().unwrap_or_else(|p| p.into_inner()).take();
+    if let Some(flag) = flag {
+        let writing = !TEMPORARIES
+            .lock()
+            .unwrap_or_else(|p| p.into_inner())
+            .is_empty();
+        if !writing {
+            flag.store(true, Ordering::Relaxed);
+            return;
+        }
+    }
+    let _held = remove_temporaries();
+    std::process::exit(status);
 }
 
 fn forget_temporary(path: &Path) {
@@ -346,6 +377,23 @@ pub fn is_broken_pipe(err: &anyhow::Error) -> bool {
         e.downcast_ref::<io::Error>()
             .is_some_and(|io| io.kind() == io::ErrorKind::BrokenPipe)
     })
+}
+
+/// Writes `bytes` to a new file at `path`, refusing (with the path named) when
+/// a file is already there: the check and the creation are one step
+/// (`create_new`), so nothing is ever overwritten.
+pub fn write_new_file(path: &Path, bytes: &[u8]) -> Result<()> {
+    let mut f = std::fs::OpenOptions::new()
+        .write(true)
+        .create_new(true)
+        .open(path)
+        .with_context(|| format!("creating '{}'", path.display()))?;
+    let result = f.write_all(bytes).and_then(|()| f.sync_all());
+    if let Err(e) = result {
+        let _ = std::fs::remove_file(path);
+        return Err(e).with_context(|| format!("writing '{}'", path.display()));
+    }
+    Ok(())
 }
 
 /// Refuses a result holding a number that is not finite (an overflow or a

@@ -151,8 +151,12 @@ fn compute(case: &Case, column: Column) -> Option<f64> {
     })
 }
 
+/// A case with its value by each column and its error, percent (`None`
+/// where the method cannot answer or the case does not score it).
+type Row = (Case, Vec<Option<f64>>, Vec<Option<f64>>);
+
 /// Error of each case by each column, percent; `None` where not scored.
-fn table() -> Vec<(Case, Vec<Option<f64>>, Vec<Option<f64>>)> {
+fn table() -> Vec<Row> {
     cases()
         .into_iter()
         .map(|case| {
@@ -172,7 +176,7 @@ fn table() -> Vec<(Case, Vec<Option<f64>>, Vec<Option<f64>>)> {
         .collect()
 }
 
-fn print_table(rows: &[(Case, Vec<Option<f64>>, Vec<Option<f64>>)]) {
+fn print_table(rows: &[Row]) {
     let mut head = "| case | basis | quantity | published |".to_string();
     for (_, name) in COLUMNS {
         head.push_str(&format!(" {name} |"));
@@ -196,7 +200,7 @@ fn print_table(rows: &[(Case, Vec<Option<f64>>, Vec<Option<f64>>)]) {
 }
 
 /// Mean and largest absolute error of column `j` over the scored cases, percent.
-fn summary(rows: &[(Case, Vec<Option<f64>>, Vec<Option<f64>>)], j: usize) -> (f64, f64, usize) {
+fn summary(rows: &[Row], j: usize) -> (f64, f64, usize) {
     let errs: Vec<f64> = rows.iter().filter_map(|r| r.2[j]).map(f64::abs).collect();
     let n = errs.len();
     let mean = errs.iter().sum::<f64>() / n.max(1) as f64;

@@ -16,10 +16,13 @@ use crate::{output, report};
 /// Arguments of `coldpass check`.
 #[derive(Debug, Args)]
 pub struct CheckArgs {
-    /// The schedule file (YAML).
+    /// The schedule file (YAML), or a folder of them.
     pub file: PathBuf,
+    /// More schedule files or folders: one summary row per product (the catalogue).
+    #[arg(value_name = "MORE")]
+    pub more: Vec<PathBuf>,
     /// Governing method, overriding the file's `limits.method`.
-    #[arg(long, value_name = "NAME", value_parser = parse_method)]
+    #[arg(long, value_name = "NAME", value_parser = method_parser())]
     pub method: Option<Method>,
     /// Run the schedule on this machine file (YAML), overriding the file's `machine:`.
     #[arg(long, value_name = "FILE")]
@@ -30,14 +33,20 @@ pub struct CheckArgs {
     pub view: ViewArgs,
 }
 
-/// Parses a method name for clap, listing the allowed names on error.
-pub fn parse_method(s: &str) -> Result<Method, String> {
-    s.parse::<Method>().map_err(|e| e.allowed)
+/// `--method`: one of the core's method names ([`Method::name`]), so that
+/// `--help`, completions and a wrong name list them all.
+pub fn method_parser() -> impl clap::builder::TypedValueParser<Value = Method> {
+    use clap::builder::TypedValueParser;
+    clap::builder::PossibleValuesParser::new(Method::ALL.map(Method::name))
+        .try_map(|name| name.parse::<Method>().map_err(|e| e.allowed))
 }
 
 /// Runs `coldpass check`: exit 0 within limits, 3 over a limit.
 pub fn run(args: &CheckArgs) -> Result<u8> {
-    let text = crate::input::read_text(&args.file)?;
+    if !args.more.is_empty() || args.file.is_dir() {
+        return super::catalogue::run(args);
+    }
+    let text = read_schedule_text(&args.file)?;
     let file = schedule::parse(&text)
         .with_context(|| format!("reading schedule '{}'", args.file.display()))?;
     let machine = read_machine(args, &file)?;
@@ -96,4 +105,31 @@ pub fn read_machine(args: &CheckArgs, file: &ScheduleFile) -> Result<Option<(Pat
     let m =
         machine::parse(&text).with_context(|| format!("reading machine '{}'", path.display()))?;
     Ok(Some((path, m)))
+}
+
+/// Reads a schedule (or design) file's text: a UTF-8 byte-order mark is
+/// dropped, and a CSV file is refused in one line, pointing to `fit`.
+pub fn read_schedule_text(path: &std::path::Path) -> Result<String> {
+    let text = crate::input::read_text(path)?;
+    let text = text
+        .strip_prefix('\u{feff}')
+        .map(str::to_string)
+        .unwrap_or(text);
+    let is_csv_name = path
+        .extension()
+        .and_then(|e| e.to_str())
+        .is_some_and(|e| e.eq_ignore_ascii_case("csv"));
+    let first = text
+        .lines()
+        .map(str::trim)
+        .find(|l| !l.is_empty() && !l.starts_with('#'))
+        .unwrap_or("");
+    let looks_csv = first.contains(',') && !first.contains(':');
+    if is_csv_name || looks_csv {
+        anyhow::bail!(
+            "'{}' looks like a CSV table, not a schedule file: check and design read YAML (title:, material:, passes: ...); a tensile record goes to `coldpass fit`",
+            path.display()
+        );
+    }
+    Ok(text)
 }

@@ -203,7 +203,7 @@ impl SachsForm {
                 c_n1,
             } => {
                 let z = b * upper;
-                if !(z <= SERIES_Z_MAX) {
+                if z.is_nan() || z > SERIES_Z_MAX {
                     return None;
                 }
                 constant_mpa * g + k_mpa * power_series(z, *n, *c, *upper, eps, *d0, *c_n1)
