@@ -6,7 +6,7 @@
 use std::path::{Path, PathBuf};
 
 use anyhow::{bail, Context, Result};
-use coldpass::evaluation::{evaluate, EvaluateOptions};
+use coldpass::evaluation::{evaluate_on, EvaluateOptions};
 use coldpass::schedule;
 
 use super::check::CheckArgs;
@@ -57,11 +57,13 @@ fn check_one(path: &Path, args: &CheckArgs) -> Product {
     let result = (|| -> Result<_> {
         let text = super::check::read_schedule_text(path)?;
         let file = schedule::parse(&text).with_context(|| format!("reading schedule '{name}'"))?;
-        evaluate(
+        let machine = super::check::machine_of(path, args.machine.as_deref(), &file)?;
+        evaluate_on(
             &file,
             &EvaluateOptions {
                 method: args.method,
             },
+            machine.as_ref().map(|(_, m)| m),
         )
         .with_context(|| format!("checking schedule '{name}'"))
     })();

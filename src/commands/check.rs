@@ -82,22 +82,32 @@ pub fn run(args: &CheckArgs) -> Result<u8> {
 /// The machine: `--machine FILE`, else the schedule's `machine:` path
 /// (relative to the schedule file), else none.
 pub fn read_machine(args: &CheckArgs, file: &ScheduleFile) -> Result<Option<(PathBuf, Machine)>> {
-    let path = match (&args.machine, &file.machine) {
-        (Some(p), _) => p.clone(),
-        (None, Some(rel)) => args
-            .file
+    machine_of(&args.file, args.machine.as_deref(), file)
+}
+
+/// The machine a schedule at `schedule_path` runs on: `given` (the
+/// `--machine` option) when there is one, else the file's `machine:` path,
+/// relative to the schedule file's folder, else none.
+pub fn machine_of(
+    schedule_path: &std::path::Path,
+    given: Option<&std::path::Path>,
+    file: &ScheduleFile,
+) -> Result<Option<(PathBuf, Machine)>> {
+    let path = match (given, &file.machine) {
+        (Some(p), _) => p.to_path_buf(),
+        (None, Some(rel)) => schedule_path
             .parent()
             .unwrap_or_else(|| std::path::Path::new(""))
             .join(rel),
         (None, None) => return Ok(None),
     };
     let text = crate::input::read_text(&path).with_context(|| {
-        if args.machine.is_some() {
+        if given.is_some() {
             "reading the --machine file".to_string()
         } else {
             format!(
                 "reading the machine file that '{}' names (machine: {})",
-                args.file.display(),
+                schedule_path.display(),
                 file.machine.as_deref().unwrap_or_default()
             )
         }

@@ -292,6 +292,13 @@ fn unquote(s: &str) -> &str {
 
 fn open_record(path: &Path) -> Result<(BufReader<std::fs::File>, u64)> {
     let meta = std::fs::metadata(path).with_context(|| format!("reading '{}'", path.display()))?;
+    if meta.is_dir() {
+        bail!(
+            "'{}' is a folder: fit reads a tensile record file (CSV); name the files, e.g. '{}/*.csv'",
+            path.display(),
+            path.display()
+        );
+    }
     if !meta.is_file() {
         bail!(
             "'{}' is not a regular file: fit reads tensile records from files only",
