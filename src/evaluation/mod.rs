@@ -1,16 +1,20 @@
 //! Evaluating a schedule pass by pass: strain accumulation, flow stress,
 //! drawing stress, limits, anneals, speeds, power and throughput.
 //!
-//! [`evaluate`] is a pipeline of five stages, each in a file named for it:
+//! [`evaluate`] is a pipeline of stages, each in a file named for it:
 //! `geometry` (sizes, dies and strain), `mechanics` (each pass by every
-//! method), `line` (speeds, power, temperatures), `flags` (each pass against
-//! the limits) and `summary` (totals and the verdict).
+//! method, with `strength`: Considere and the entry yield), `line` (speeds,
+//! net power, temperatures, and the machine run of [`crate::machine`]),
+//! `flags` and `rows` (each pass against the limits), `summary` (totals and
+//! the verdict) and `notes` (what the report says in words).
 //!
 //! Speeds follow volume constancy on a continuous line, `v_i A_i = v_f A_f`
 //! (common practice), from the finish speed through every pass; mass
-//! throughput is `rho A_f v_f`. The wire is taken to enter every die at the
-//! ambient temperature (cooled on the capstan between dies), so its exit
-//! temperature is ambient plus the pass's mean adiabatic rise.
+//! throughput is `rho A_f v_f`. Without a machine the wire is taken to enter
+//! every die at the ambient temperature (cooled on the capstan between
+//! dies), so its exit temperature is ambient plus the pass's mean adiabatic
+//! rise; the no-cooling upper bound sums the rises. On a machine the
+//! temperature is carried die to die through its cooling.
 
 use serde::Serialize;
 
@@ -18,6 +22,8 @@ mod flags;
 mod geometry;
 mod line;
 mod mechanics;
+mod notes;
+mod rows;
 pub mod strength;
 mod summary;
 
@@ -27,9 +33,8 @@ use crate::pass::{self, DrawStresses, Method, Settings};
 use crate::schedule::{self, ScheduleError, ScheduleFile, Step};
 
 use flags::FlagLimits;
-use geometry::{Planned, PlannedDraw};
-use line::LineFigures;
-use mechanics::{Heat, PassFigures};
+use geometry::Planned;
+use mechanics::Heat;
 
 /// The caution every report carries.
 pub const CAUTION: &str = "Planning estimates only: confirm every figure by trial. Wire under tension whips when it breaks and running capstans trap hands; the machine maker's limits, local codes and licensed practice govern.";
@@ -459,10 +464,10 @@ pub fn evaluate_on(
         .or(run.as_ref().map(|r| r.running_speed_m_s));
     let line_figures = line::run_line(&planned, &figures, speed, finish_d, ambient, run.as_ref());
     // 4. Flags.
-    let rows = build_rows(file, flag_limits, &planned, &figures, &line_figures);
-    notes.extend(flag_notes(file, &rows, &flag_limits));
+    let rows = rows::build_rows(file, flag_limits, &planned, &figures, &line_figures);
+    notes.extend(notes::flag_notes(file, &rows, &flag_limits));
     // 5. Summary.
-    notes.extend(closing_notes(
+    notes.extend(notes::closing_notes(
         &rows,
         ambient,
         line.is_some() || run.is_some(),
@@ -470,7 +475,7 @@ pub fn evaluate_on(
         run.as_ref(),
     ));
     if let Some(r) = &run {
-        notes.extend(machine_notes(r, line.map(|l| l.finish_speed_m_s)));
+        notes.extend(notes::machine_notes(r, line.map(|l| l.finish_speed_m_s)));
         if line.is_some_and(|l| l.block_power_kw.is_some()) {
             notes.push(
                 "line.block_power_kw is not used on a machine: each block's motor_kw applies"
@@ -492,7 +497,7 @@ pub fn evaluate_on(
             )
         });
     }
-    let strength_checks = strength_checks(file, &considere);
+    let strength_checks = notes::strength_checks(file, &considere);
     if let Some(worst) = strength_checks
         .iter()
         .max_by(|a, b| a.difference.abs().total_cmp(&b.difference.abs()))
@@ -566,125 +571,6 @@ fn refuse_anneal_inside_run(file: &ScheduleFile) -> Result<(), ScheduleError> {
     Ok(())
 }
 
-/// The law's tensile strength at each of the mill's measured points.
-fn strength_checks(file: &ScheduleFile, considere: &Considere) -> Vec<StrengthCheck> {
-    let start_d = file.start.diameter.mm();
-    file.material
-        .drawn_strengths
-        .iter()
-        .filter_map(|p| {
-            let strain = p.strain.unwrap_or_else(|| {
-                file.start.strain
-                    + p.diameter
-                        .as_ref()
-                        .map_or(0.0, |d| pass::true_strain(start_d, d.mm()))
-            });
-            let predicted =
-                strength::tensile_strength_mpa(&file.material.flow, considere.flow, strain)?;
-            Some(StrengthCheck {
-                strain,
-                measured_mpa: p.tensile_strength_mpa,
-                predicted_mpa: predicted,
-                difference: (predicted - p.tensile_strength_mpa) / p.tensile_strength_mpa,
-            })
-        })
-        .collect()
-}
-
-/// Notes that explain flags raised once per schedule.
-fn flag_notes(file: &ScheduleFile, rows: &[StepReport], limits: &FlagLimits) -> Vec<String> {
-    let mut notes = Vec::new();
-    if let Some(limit) = file.material.cold_work_limit {
-        if let Some(r) = rows.iter().find(|r| r.flags.contains(&Flag::AnnealDue)) {
-            notes.push(format!(
-                "cold-work limit {limit} is passed at step {}: schedule an anneal before it",
-                r.step
-            ));
-        }
-    }
-    if let Some(r) = rows
-        .iter()
-        .find(|r| r.flags.contains(&Flag::HeavyReduction))
-    {
-        notes.push(format!(
-            "step {} takes {:.1} % in one pass, above the {:.0} % that common practice allows (Kalpakjian & Schmid; from memory; set limits.reduction_warn)",
-            r.step,
-            100.0 * r.area_reduction.unwrap_or(0.0),
-            100.0 * limits.reduction_warn
-        ));
-    }
-    if let Some(valid) = file.material.flow_valid_to_strain {
-        let past: Vec<&StepReport> = rows
-            .iter()
-            .filter(|r| r.flags.contains(&Flag::PastLawRange))
-            .collect();
-        if let (Some(first), Some(worst)) = (
-            past.first(),
-            past.iter()
-                .max_by(|a, b| a.strain_after.total_cmp(&b.strain_after)),
-        ) {
-            let law = &file.material.flow;
-            notes.push(format!(
-                "the flow law was fitted to strain {valid}; from step {} the schedule goes past it, to strain {:.3} ({:.3} beyond): the law gives {:.0} MPa there against {:.0} MPa at the end of its range, an extrapolation to confirm by test",
-                first.step,
-                worst.strain_after,
-                worst.strain_after - valid,
-                law.stress_mpa(worst.strain_after),
-                law.stress_mpa(valid)
-            ));
-        }
-    }
-    notes
-}
-
-/// Notes on the machine run: the assignment, the temperature model and the
-/// speed the file asks against the attainable one.
-fn machine_notes(run: &MachineRun, file_speed: Option<f64>) -> Vec<String> {
-    let name = if run.name.is_empty() {
-        "the machine".to_string()
-    } else {
-        format!("machine '{}'", run.name)
-    };
-    let used = run.blocks.len();
-    let mut notes = vec![format!(
-        "{name} ({}, {} blocks): die 1 on block 1 and so on in order{}",
-        run.kind.name(),
-        run.blocks_available,
-        if used < run.blocks_available {
-            format!(
-                "; blocks {} to {} stand idle",
-                used + 1,
-                run.blocks_available
-            )
-        } else {
-            String::new()
-        }
-    )];
-    match run.attainable_speed_m_s {
-        Some(v) => notes.push(format!(
-            "attainable finish speed {v:.2} m/s ({:.0} m/min), bound by block {} ({})",
-            v * 60.0,
-            run.binding_block,
-            run.binding_limit.name()
-        )),
-        None => notes.push(format!(
-            "no speed is attainable: the wire is above the temperature limit at block {} however slowly it runs (with a fixed cooling fraction the temperature does not fall with speed; give cooling_at_speed_m_s for cooling that grows as the wire slows); the motors and capstans alone would allow {:.2} m/s",
-            run.binding_block, run.mechanical_speed_m_s
-        )),
-    }
-    match (file_speed, run.attainable_speed_m_s) {
-        (Some(f), Some(a)) if f > a * (1.0 + 1e-9) => notes.push(format!(
-            "the file's finish speed {f} m/s is above the attainable {a:.2} m/s: block figures are at the file's speed and the blocks over a limit are flagged"
-        )),
-        (None, _) => notes.push(format!(
-            "no line.finish_speed_m_s: block figures are at the highest speed the motors and capstans allow ({:.2} m/s)",
-            run.running_speed_m_s
-        )),
-        _ => {}
-    }
-    notes
-}
-
 /// A schedule needs a draw; a design file given to `check` is named as such.
 fn refuse_without_draws(file: &ScheduleFile) -> Result<(), ScheduleError> {
     if file.passes.iter().all(|s| matches!(s, Step::Anneal)) {
@@ -709,164 +595,6 @@ fn governing_method(file: &ScheduleFile, options: &EvaluateOptions) -> (Method, 
         (None, Some(m)) => (m, "file"),
         (None, None) => (schedule::DEFAULT_METHOD, "default"),
     }
-}
-
-/// One report row per step, with its flags.
-fn build_rows(
-    file: &ScheduleFile,
-    flag_limits: FlagLimits,
-    planned: &[Planned<'_>],
-    figures: &[Option<PassFigures>],
-    line_figures: &[Option<LineFigures>],
-) -> Vec<StepReport> {
-    planned
-        .iter()
-        .zip(figures)
-        .zip(line_figures)
-        .map(|((p, f), l)| match (p, f, l) {
-            (Planned::Draw(d), Some(f), Some(l)) => {
-                draw_row(d, f, l, flags::pass_flags(file, flag_limits, f, l))
-            }
-            (
-                Planned::Anneal {
-                    index,
-                    diameter_mm,
-                    strain_before,
-                    law,
-                },
-                _,
-                _,
-            ) => anneal_row(*index, *diameter_mm, *strain_before, law),
-            _ => unreachable!("stages 2 and 3 give figures for every draw"),
-        })
-        .collect()
-}
-
-fn draw_row(d: &PlannedDraw<'_>, f: &PassFigures, l: &LineFigures, flags: Vec<Flag>) -> StepReport {
-    let mech = &f.mech;
-    let dp = &d.pass;
-    StepReport {
-        step: d.index + 1,
-        kind: StepKind::Draw,
-        die_size: d.die_size.clone(),
-        entry_diameter_mm: dp.entry_diameter_mm,
-        exit_diameter_mm: dp.exit_diameter_mm,
-        area_reduction: Some(mech.area_reduction),
-        elongation: Some(mech.elongation),
-        cumulative_reduction: d.cumulative_reduction,
-        pass_strain: Some(mech.pass_strain),
-        strain_before: mech.strain_before,
-        strain_after: mech.strain_after,
-        flow_stress_entry_mpa: Some(mech.flow_stress_entry_mpa),
-        mean_flow_stress_mpa: Some(mech.mean_flow_stress_mpa),
-        flow_stress_exit_mpa: mech.flow_stress_exit_mpa,
-        delta: Some(mech.delta),
-        semi_angle_deg: Some(dp.die.semi_angle_deg),
-        friction: Some(dp.die.friction),
-        friction_factor: Some(mech.friction_factor),
-        back_tension_mpa: Some(dp.back_tension_mpa),
-        draw_stress_mpa: Some(mech.draw_stress_mpa),
-        governing_draw_stress_mpa: Some(f.governing_mpa),
-        draw_ratio: Some(f.draw_ratio),
-        optimum_semi_angle_deg: f.optimum.map(|o| o.semi_angle_deg),
-        force_kn: Some(f.force_kn),
-        exit_speed_m_s: l.exit_speed_m_s,
-        net_pull_kn: Some(l.net_pull_kn),
-        power_kw: l.power_kw,
-        temperature_rise_c: Some(f.temperature_rise_c),
-        wire_temperature_c: Some(l.wire_temperature_c),
-        wire_temperature_entry_c: Some(l.wire_temperature_entry_c),
-        wire_temperature_no_cooling_c: Some(l.wire_temperature_no_cooling_c),
-        entry_yield_mpa: Some(f.entry_yield_mpa),
-        tensile_strength_mpa: f.tensile_strength_mpa,
-        block: l.block.as_ref().map(|b| b.block),
-        flags,
-    }
-}
-
-fn anneal_row(index: usize, diameter_mm: f64, strain_before: f64, law: &FlowLaw) -> StepReport {
-    StepReport {
-        step: index + 1,
-        kind: StepKind::Anneal,
-        die_size: None,
-        entry_diameter_mm: diameter_mm,
-        exit_diameter_mm: diameter_mm,
-        area_reduction: None,
-        elongation: None,
-        cumulative_reduction: 0.0,
-        pass_strain: None,
-        strain_before,
-        strain_after: 0.0,
-        flow_stress_entry_mpa: None,
-        mean_flow_stress_mpa: None,
-        flow_stress_exit_mpa: law.stress_mpa(0.0),
-        delta: None,
-        semi_angle_deg: None,
-        friction: None,
-        friction_factor: None,
-        back_tension_mpa: None,
-        draw_stress_mpa: None,
-        governing_draw_stress_mpa: None,
-        draw_ratio: None,
-        optimum_semi_angle_deg: None,
-        force_kn: None,
-        exit_speed_m_s: None,
-        net_pull_kn: None,
-        power_kw: None,
-        temperature_rise_c: None,
-        wire_temperature_c: None,
-        wire_temperature_entry_c: None,
-        wire_temperature_no_cooling_c: None,
-        entry_yield_mpa: None,
-        tensile_strength_mpa: None,
-        block: None,
-        flags: Vec::new(),
-    }
-}
-
-/// The notes every report ends with: the finished strength, the temperature
-/// model and the speed model.
-fn closing_notes(
-    rows: &[StepReport],
-    ambient: f64,
-    has_speed: bool,
-    eps_u: Option<f64>,
-    run: Option<&MachineRun>,
-) -> Vec<String> {
-    let mut notes = Vec::new();
-    if let Some(last) = rows.last() {
-        // Considere: wire drawn past the law's necking strain has no uniform
-        // elongation left, so its tensile strength is its flow stress; below
-        // it the wire still work-hardens in the test.
-        notes.push(match (eps_u, last.tensile_strength_mpa) {
-            (Some(eu), Some(uts)) if last.strain_after >= eu => format!(
-                "finished flow stress {:.0} MPa: drawn past the law's Considere strain {eu:.3} (strain {:.2} since anneal), so the tensile strength is the flow stress, {uts:.0} MPa",
-                last.flow_stress_exit_mpa, last.strain_after
-            ),
-            (Some(eu), Some(uts)) => format!(
-                "finished flow stress {:.0} MPa: the wire is drawn to strain {:.2} since anneal, short of the law's Considere strain {eu:.3}, so it still hardens in a tensile test: tensile strength about {uts:.0} MPa",
-                last.flow_stress_exit_mpa, last.strain_after
-            ),
-            _ => format!(
-                "finished flow stress {:.0} MPa: the law does not neck (Considere) within strain 20, so no tensile strength is estimated",
-                last.flow_stress_exit_mpa
-            ),
-        });
-    }
-    notes.push(match run {
-        Some(r) => format!(
-            "wire temperature: carried die to die; the wire enters die 1 at ambient ({ambient} C) and the machine's cooling takes {:.0} % of its heat above ambient off between dies (lumped heat balance; Wright, Wire Technology, from memory); bulk mean at each exit (the surface runs hotter); the no-cooling upper bound (every rise summed) is reported with it",
-            100.0 * r.cooling_between_dies
-        ),
-        None => format!(
-            "wire temperature: the wire enters every die at ambient ({ambient} C), cooled between dies; the figure is the bulk mean at the die exit (the surface runs hotter); the no-cooling upper bound (every rise since the last anneal summed) is reported with it"
-        ),
-    });
-    if has_speed {
-        notes.push("speeds by volume constancy from the finish speed through every pass (one continuous line)".into());
-        notes.push("power: each capstan's net pull (its front pull less the back pull it holds on the next die) times its speed; the total counts each back pull once".into());
-    }
-    notes
 }
 
 fn method_uses_m(method: Method) -> bool {
