@@ -322,6 +322,9 @@ impl<'f> Input<'f> {
             self.total,
         );
         t.aim = self.window.map(|w| w.aim);
+        if e0 == 0.0 && file.material.annealed_flow.is_none() {
+            t.share();
+        }
         t
     }
 
@@ -933,7 +936,7 @@ fn set_by(
         let table = if i == 0 {
             &mut tables.first
         } else {
-            &mut tables.annealed
+            tables.annealed()
         };
         let mut keys = match table.interval(fewer)? {
             Some(iv) if strain < iv.lo => table.binding(fewer, false)?,
@@ -979,12 +982,12 @@ fn explain(
     let total = input.total;
     let mut binding = Vec::new();
     let mut remedy = Vec::new();
-    let one = tables.annealed.interval(1)?;
+    let one = tables.annealed().interval(1)?;
     let one_first = tables.first.interval(1)?;
     match one.or(one_first) {
         None => {
             // No single pass meets the limits: say what each light-to-heavy pass breaks.
-            let class = tables.annealed.class;
+            let class = tables.annealed().class;
             let mut seen = Vec::new();
             for r in [0.02, 0.1, 0.2, 0.35, 0.5] {
                 let x = -f64::ln(1.0 - r);
