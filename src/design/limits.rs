@@ -411,34 +411,10 @@ impl Ctx<'_> {
         if f0 == 0.0 {
             return Ok(g0);
         }
-        // Secant from the guess: the ratio is smooth in the pass strain, so
-        // from a near guess it converges in a few steps. Accepted only on the
-        // rising side of the ratio (positive slope) and inside the bracket
-        // of the strains tried; otherwise the bracketed solve below decides.
-        {
-            let (mut x0, mut y0) = (g0, f0);
-            let mut x1 = (g0 * if f0 > 0.0 { 0.98 } else { 1.02 })
-                .clamp(PASS_STRAIN_FLOOR, PASS_STRAIN_CEILING);
-            let mut y1 = f(x1)?;
-            for _ in 0..12 {
-                let slope = (y1 - y0) / (x1 - x0);
-                if !(slope > 0.0) || !slope.is_finite() {
-                    break;
-                }
-                let x2 = (x1 - y1 / slope).clamp(0.5 * x1, 2.0 * x1);
-                if !(PASS_STRAIN_FLOOR..=PASS_STRAIN_CEILING).contains(&x2) {
-                    break;
-                }
-                if (x2 - x1).abs() <= tol * x2 {
-                    return Ok(x2);
-                }
-                (x0, y0) = (x1, y1);
-                x1 = x2;
-                y1 = f(x1)?;
-                if y1 == 0.0 {
-                    return Ok(x1);
-                }
-            }
+        // Secant from the guess with the full pick (the angle may change
+        // along the way); the bracketed solve below decides when it fails.
+        if let Some(x) = secant(&f, g0, tol)? {
+            return Ok(x);
         }
         // Step away from the guess by factors of 1.25 until the sign changes.
         let (mut lo, mut hi, mut flo, mut fhi) = (g0, g0, f0, f0);
@@ -508,7 +484,7 @@ fn secant(
     let mut y1 = f(x1)?;
     for _ in 0..12 {
         let slope = (y1 - y0) / (x1 - x0);
-        if !(slope > 0.0) || !slope.is_finite() {
+        if slope.is_nan() || slope <= 0.0 || slope.is_infinite() {
             return Ok(None);
         }
         let x2 = (x1 - y1 / slope).clamp(0.5 * x1, 2.0 * x1);
