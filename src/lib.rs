@@ -10,9 +10,11 @@ pub mod design;
 pub mod evaluation;
 pub mod fit;
 pub mod flow;
+pub mod machine;
 pub mod param;
 pub mod pass;
 pub mod quad;
+pub mod risk;
 pub mod schedule;
 pub mod size;
 
