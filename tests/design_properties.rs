@@ -197,7 +197,9 @@ proptest! {
             prop_assert!(f >= w.min * (1.0 - 1e-9) && f <= w.max * (1.0 + 1e-9), "{f} outside {w:?}");
         }
         // Equal ratio within 0.5 % in each run.
-        if c.strategy == "equal-ratio" {
+        // (Unless a die land moved the strains: the notes say so.)
+        let land_note = d.summary.notes.iter().any(|n| n.contains("with the die land"));
+        if c.strategy == "equal-ratio" && !land_note {
             for run in &d.summary.runs {
                 let s = (run.draw_ratio_max - run.draw_ratio_min) / run.draw_ratio_max;
                 prop_assert!(s <= EQUAL_RATIO_SPREAD_MAX, "run {} spread {s}", run.run);

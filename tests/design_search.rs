@@ -215,3 +215,28 @@ fn every_small_case_agrees_with_the_exhaustive_search() {
     // The grid holds both outcomes, so neither side is vacuous.
     assert!(infeasible > 0 && infeasible < agreed, "{infeasible}");
 }
+
+proptest::proptest! {
+    #![proptest_config(proptest::prelude::ProptestConfig { cases: 48, ..proptest::prelude::ProptestConfig::default() })]
+
+    /// Random small cases: no design reported infeasible when the
+    /// enumeration finds one, and the counts agree when both find one.
+    #[test]
+    fn random_small_cases_agree_with_the_exhaustive_search(
+        df in 0.8f64..5.0,
+        r_min in 0.05f64..0.35,
+        width in 0.005f64..0.15,
+        limit in 0.8f64..3.0,
+        max_passes in 4u32..11,
+        max_anneals in proptest::option::of(0u32..4),
+    ) {
+        let c = Case { d0: 8.0, df, r_min, r_max: (r_min + width).min(0.6), limit, max_passes, max_anneals };
+        let want = exhaustive(&c);
+        let got = designed(&c);
+        match (&want, &got) {
+            (Some(w), Ok(g)) => proptest::prop_assert_eq!(w, g),
+            (None, Err(_)) => {}
+            _ => proptest::prop_assert!(false, "exhaustive {want:?}, design {got:?}"),
+        }
+    }
+}

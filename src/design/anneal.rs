@@ -223,6 +223,6 @@ fn table<'a, 'c, 'f>(tables: &'a mut Tables<'c, 'f>, i: usize) -> &'a mut RunTab
     if i == 0 {
         &mut tables.first
     } else {
-        &mut tables.annealed
+        tables.annealed()
     }
 }

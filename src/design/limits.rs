@@ -183,6 +183,46 @@ impl Ctx<'_> {
         best.or(best_any).map_or_else(unreachable_pick, Ok)
     }
 
+    /// The pass with one stock angle (`semi_angle_deg`, one of `angles`).
+    pub(super) fn pick_at(
+        &self,
+        law: &FlowLaw,
+        d_in: f64,
+        d_out: f64,
+        strain_before: f64,
+        worst_land: bool,
+        semi_angle_deg: f64,
+    ) -> Result<PassPick, PassError> {
+        let i = self
+            .angles
+            .iter()
+            .position(|a| *a == semi_angle_deg)
+            .unwrap_or(0);
+        let mut die = self.dies[i];
+        if worst_land {
+            die.land_length_mm *= d_out / self.finish_mm;
+        }
+        let dp = DrawPass {
+            entry_diameter_mm: d_in,
+            exit_diameter_mm: d_out,
+            strain_before,
+            back_tension_mpa: 0.0,
+            die,
+        };
+        let m = analyse_pass(law, &dp, &self.settings)?;
+        let stress = m.draw_stress_mpa.get(self.method)?;
+        Ok(PassPick {
+            exit_mm: d_out,
+            semi_angle_deg,
+            ratio: stress / m.flow_stress_exit_mpa,
+            reduction: m.area_reduction,
+            delta: m.delta,
+            stress_mpa: stress,
+            strain_after: m.strain_after,
+            delta_ok: self.delta_max.is_none_or(|x| m.delta <= x),
+        })
+    }
+
     /// The limits the pass breaks, with the comparisons `check` makes.
     pub(super) fn breaches(&self, p: &PassPick) -> Vec<Breach> {
         let mut v = Vec::new();
@@ -310,38 +350,71 @@ impl Ctx<'_> {
                 })
         };
         let g0 = guess.clamp(PASS_STRAIN_FLOOR, PASS_STRAIN_CEILING);
+        // Fast path: solve with one die angle (a smooth ratio, a sixth of
+        // the work with six angles), then check that the stock's pick at the
+        // root is that angle, so the root is the full pick's root.
+        let mut angle = None;
+        for _ in 0..4 {
+            let a = match angle {
+                Some(a) => a,
+                None => {
+                    self.pick(
+                        law,
+                        d_in,
+                        d_in * (-0.5 * g0).exp(),
+                        strain_before,
+                        worst_land,
+                    )
+                    .map_err(|problem| DesignError::Pass {
+                        pass: format!("a pass from {d_in:.4} mm"),
+                        problem,
+                    })?
+                    .semi_angle_deg
+                }
+            };
+            let one = |x: f64| -> Result<f64, DesignError> {
+                self.pick_at(
+                    law,
+                    d_in,
+                    d_in * (-0.5 * x).exp(),
+                    strain_before,
+                    worst_land,
+                    a,
+                )
+                .map(|p| p.ratio - rho)
+                .map_err(|problem| DesignError::Pass {
+                    pass: format!("a pass from {d_in:.4} mm"),
+                    problem,
+                })
+            };
+            let Some(x) = secant(one, g0, tol)? else {
+                break;
+            };
+            let p = self
+                .pick(
+                    law,
+                    d_in,
+                    d_in * (-0.5 * x).exp(),
+                    strain_before,
+                    worst_land,
+                )
+                .map_err(|problem| DesignError::Pass {
+                    pass: format!("a pass from {d_in:.4} mm"),
+                    problem,
+                })?;
+            if p.semi_angle_deg == a {
+                return Ok(x);
+            }
+            angle = Some(p.semi_angle_deg);
+        }
         let f0 = f(g0)?;
         if f0 == 0.0 {
             return Ok(g0);
         }
-        // Secant from the guess: the ratio is smooth in the pass strain, so
-        // from a near guess it converges in a few steps. Accepted only on the
-        // rising side of the ratio (positive slope) and inside the bracket
-        // of the strains tried; otherwise the bracketed solve below decides.
-        {
-            let (mut x0, mut y0) = (g0, f0);
-            let mut x1 = (g0 * if f0 > 0.0 { 0.98 } else { 1.02 })
-                .clamp(PASS_STRAIN_FLOOR, PASS_STRAIN_CEILING);
-            let mut y1 = f(x1)?;
-            for _ in 0..12 {
-                let slope = (y1 - y0) / (x1 - x0);
-                if !(slope > 0.0) || !slope.is_finite() {
-                    break;
-                }
-                let x2 = (x1 - y1 / slope).clamp(0.5 * x1, 2.0 * x1);
-                if !(PASS_STRAIN_FLOOR..=PASS_STRAIN_CEILING).contains(&x2) {
-                    break;
-                }
-                if (x2 - x1).abs() <= tol * x2 {
-                    return Ok(x2);
-                }
-                (x0, y0) = (x1, y1);
-                x1 = x2;
-                y1 = f(x1)?;
-                if y1 == 0.0 {
-                    return Ok(x1);
-                }
-            }
+        // Secant from the guess with the full pick (the angle may change
+        // along the way); the bracketed solve below decides when it fails.
+        if let Some(x) = secant(&f, g0, tol)? {
+            return Ok(x);
         }
         // Step away from the guess by factors of 1.25 until the sign changes.
         let (mut lo, mut hi, mut flo, mut fhi) = (g0, g0, f0, f0);
@@ -394,6 +467,43 @@ fn unreachable_pick() -> Result<PassPick, PassError> {
 /// Root of an increasing function on `[lo, hi]` with `f(lo) <= 0 <= f(hi)`:
 /// regula falsi with the Illinois modification, and a bisection step whenever
 /// the bracket fails to halve in three steps; at most 200 evaluations.
+/// Root of a rising `f` by the secant method from `g0`, on the rising side
+/// only and within the solvers' strain range; `None` when it does not settle
+/// in 12 steps (the caller then brackets).
+fn secant(
+    mut f: impl FnMut(f64) -> Result<f64, DesignError>,
+    g0: f64,
+    tol: f64,
+) -> Result<Option<f64>, DesignError> {
+    let (mut x0, mut y0) = (g0, f(g0)?);
+    if y0 == 0.0 {
+        return Ok(Some(g0));
+    }
+    let mut x1 =
+        (g0 * if y0 > 0.0 { 0.98 } else { 1.02 }).clamp(PASS_STRAIN_FLOOR, PASS_STRAIN_CEILING);
+    let mut y1 = f(x1)?;
+    for _ in 0..12 {
+        let slope = (y1 - y0) / (x1 - x0);
+        if slope.is_nan() || slope <= 0.0 || slope.is_infinite() {
+            return Ok(None);
+        }
+        let x2 = (x1 - y1 / slope).clamp(0.5 * x1, 2.0 * x1);
+        if !(PASS_STRAIN_FLOOR..=PASS_STRAIN_CEILING).contains(&x2) {
+            return Ok(None);
+        }
+        if (x2 - x1).abs() <= tol * x2 {
+            return Ok(Some(x2));
+        }
+        (x0, y0) = (x1, y1);
+        x1 = x2;
+        y1 = f(x1)?;
+        if y1 == 0.0 {
+            return Ok(Some(x1));
+        }
+    }
+    Ok(None)
+}
+
 pub(super) fn solve_increasing(
     mut f: impl FnMut(f64) -> Result<f64, DesignError>,
     mut lo: f64,

@@ -322,6 +322,9 @@ impl<'f> Input<'f> {
             self.total,
         );
         t.aim = self.window.map(|w| w.aim);
+        if e0 == 0.0 && file.material.annealed_flow.is_none() {
+            t.share();
+        }
         t
     }
 
@@ -364,11 +367,13 @@ type RunPasses<'f> = Vec<(Run<'f>, Vec<PassPick>)>;
 fn lay_out<'f>(
     input: &Input<'f>,
     chooser: &Chooser<'f>,
+    tables: &mut Tables<'_, 'f>,
     counts: &[u32],
     strains: &[f64],
-) -> Result<RunPasses<'f>, DesignError> {
+) -> Result<(RunPasses<'f>, Vec<usize>), DesignError> {
     let file = input.file;
     let r = counts.len();
+    let mut by_table = Vec::new();
     let mut ends = vec![0.0; r];
     let mut d = input.finish_mm;
     for i in (0..r).rev() {
@@ -400,16 +405,31 @@ fn lay_out<'f>(
             Vec::new()
         } else {
             let s = chooser.strains(&run, counts[i])?;
-            chooser.passes_of(&run, &s)?
+            let p = chooser.passes_of(&run, &s)?;
+            if p.iter().all(|p| chooser.ctx.breaches(p).is_empty()) {
+                p
+            } else {
+                // Laid out with the real die land the equal-ratio solve moves
+                // strain between passes; the table's passes (worst land,
+                // checked) hold every limit wherever the run falls.
+                let table = if i == 0 {
+                    &mut tables.first
+                } else {
+                    tables.annealed()
+                };
+                let s = table.pass_strains(counts[i], run.strain())?;
+                by_table.push(i + 1);
+                chooser.passes_of(&run, &s)?
+            }
         };
         out.push((run, passes));
         from = to;
     }
-    Ok(out)
+    Ok((out, by_table))
 }
 
 /// The limits the laid-out passes break, in words (empty: none).
-fn broken(chooser: &Chooser, runs: &RunPasses) -> Vec<String> {
+fn broken(chooser: &Chooser, runs: &RunPasses, by_table: &[usize]) -> Vec<String> {
     let mut v = Vec::new();
     for (run, passes) in runs {
         for (j, p) in passes.iter().enumerate() {
@@ -422,7 +442,10 @@ fn broken(chooser: &Chooser, runs: &RunPasses) -> Vec<String> {
                 ));
             }
         }
-        if chooser.strategy == Strategy::EqualRatio && passes.len() > 1 {
+        if chooser.strategy == Strategy::EqualRatio
+            && passes.len() > 1
+            && !by_table.contains(&run.index)
+        {
             let s = spread(passes.iter().map(|p| p.ratio));
             if s > EQUAL_RATIO_SPREAD_MAX {
                 v.push(format!(
@@ -467,8 +490,8 @@ fn assemble<'f>(
     if let Some(n) = split.temper {
         counts.push(n);
     }
-    let mut runs = lay_out(input, chooser, &counts, &strains)?;
-    let bad = broken(chooser, &runs);
+    let (mut runs, by_table) = lay_out(input, chooser, tables, &counts, &strains)?;
+    let bad = broken(chooser, &runs, &by_table);
     if !bad.is_empty() {
         return Err(DesignError::NoDesign {
             max_passes: input.max_passes,
@@ -933,7 +956,7 @@ fn set_by(
         let table = if i == 0 {
             &mut tables.first
         } else {
-            &mut tables.annealed
+            tables.annealed()
         };
         let mut keys = match table.interval(fewer)? {
             Some(iv) if strain < iv.lo => table.binding(fewer, false)?,
@@ -979,12 +1002,12 @@ fn explain(
     let total = input.total;
     let mut binding = Vec::new();
     let mut remedy = Vec::new();
-    let one = tables.annealed.interval(1)?;
+    let one = tables.annealed().interval(1)?;
     let one_first = tables.first.interval(1)?;
     match one.or(one_first) {
         None => {
             // No single pass meets the limits: say what each light-to-heavy pass breaks.
-            let class = tables.annealed.class;
+            let class = tables.annealed().class;
             let mut seen = Vec::new();
             for r in [0.02, 0.1, 0.2, 0.35, 0.5] {
                 let x = -f64::ln(1.0 - r);

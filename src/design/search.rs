@@ -54,7 +54,10 @@ impl Split {
 /// What the search works on: the run tables and the whole reduction.
 pub(super) struct Tables<'c, 'f> {
     pub(super) first: RunTable<'c, 'f>,
-    pub(super) annealed: RunTable<'c, 'f>,
+    annealed_own: RunTable<'c, 'f>,
+    /// The first run is of the same kind as an annealed one (no start strain,
+    /// the same law): one table serves both.
+    same: bool,
     /// Strain range of the temper run, when there is a window.
     pub(super) window: Option<Interval>,
     /// The stock may be annealed before the first die (it arrives with cold work).
@@ -99,13 +102,28 @@ impl<'c, 'f> Tables<'c, 'f> {
     ) -> Self {
         Tables {
             first,
-            annealed,
+            annealed_own: annealed,
+            same: false,
             window,
             anneal_first,
             straight_ok,
             total,
             aim: None,
             rows: Vec::new(),
+        }
+    }
+
+    /// Let the first run share the annealed table (when the two are of one kind).
+    pub(super) fn share(&mut self) {
+        self.same = true;
+    }
+
+    /// The table of annealed runs.
+    pub(super) fn annealed(&mut self) -> &mut RunTable<'c, 'f> {
+        if self.same {
+            &mut self.first
+        } else {
+            &mut self.annealed_own
         }
     }
 
@@ -127,7 +145,7 @@ impl<'c, 'f> Tables<'c, 'f> {
         let iv = if n == 0 {
             Some(Interval { lo: 0.0, hi: 0.0 })
         } else {
-            self.annealed.interval(n)?
+            self.annealed().interval(n)?
         };
         Ok(iv.and_then(|iv| {
             let lo = iv.lo.max(w.lo);
@@ -145,7 +163,7 @@ impl<'c, 'f> Tables<'c, 'f> {
         let iv = if i == 0 {
             self.first_iv(split.first)?
         } else if i <= split.middle.len() {
-            self.annealed.interval(split.middle[i - 1])?
+            self.annealed().interval(split.middle[i - 1])?
         } else {
             self.temper_iv(split.temper.unwrap_or(0))?
         };
@@ -170,7 +188,7 @@ impl<'c, 'f> Tables<'c, 'f> {
             } else {
                 let mut acc: Set = Vec::new();
                 for m in 1..=p.saturating_sub(j - 1) {
-                    let Some(iv) = self.annealed.interval(m as u32)? else {
+                    let Some(iv) = self.annealed().interval(m as u32)? else {
                         continue;
                     };
                     let prev = self.cell(j - 1, p - m)?.clone();
@@ -257,7 +275,7 @@ impl<'c, 'f> Tables<'c, 'f> {
         // most the annealed cap; fewer anneals than that sum allows cannot work.
         let (c0, ca) = (
             self.first.class.strain_cap.max(0.0),
-            self.annealed.class.strain_cap.max(0.0),
+            self.annealed().class.strain_cap.max(0.0),
         );
         if c0 + k as f64 * ca < e - eps {
             return Ok(None);
@@ -335,7 +353,7 @@ impl<'c, 'f> Tables<'c, 'f> {
             });
             let mut found = None;
             for m in ms {
-                let Some(iv) = self.annealed.interval(m as u32)? else {
+                let Some(iv) = self.annealed().interval(m as u32)? else {
                     continue;
                 };
                 let (l2, h2) = (lo - iv.hi, hi - iv.lo);

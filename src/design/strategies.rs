@@ -434,6 +434,46 @@ impl<'c, 'f> RunTable<'c, 'f> {
         Ok(b)
     }
 
+    /// The pass strains of `n` passes carrying run strain `s`, as the table
+    /// evaluates them (worst die land): the level solved by bisection on `S(t)`.
+    pub(super) fn pass_strains(&mut self, n: u32, s: f64) -> Result<Vec<f64>, DesignError> {
+        let (mut lo, mut hi) = (0.0, self.level_top(n));
+        for _ in 0..60 {
+            let m = 0.5 * (lo + hi);
+            if self.strain_at(n, m)? < s {
+                lo = m;
+            } else {
+                hi = m;
+            }
+        }
+        let t = hi;
+        Ok(if self.shared() {
+            let shot = self.shot(t, n as usize)?;
+            let mut prev = 0.0;
+            let mut out: Vec<f64> = shot
+                .cum
+                .iter()
+                .take(n as usize)
+                .map(|c| {
+                    let x = c - prev;
+                    prev = *c;
+                    x
+                })
+                .collect();
+            // The last pass lands on the run's end exactly.
+            let sum: f64 = out.iter().sum();
+            if let Some(last) = out.last_mut() {
+                *last += s - sum;
+            }
+            out
+        } else {
+            weights(self.chooser.strategy, self.chooser.taper, n)
+                .iter()
+                .map(|w| w * s / n as f64)
+                .collect()
+        })
+    }
+
     /// The run strain of `n` passes at level `t` (infinite past the heavy side).
     pub(super) fn strain_at(&mut self, n: u32, t: f64) -> Result<f64, DesignError> {
         Ok(if self.shared() {
