@@ -1,8 +1,20 @@
-//! Benchmark of `check`'s core: evaluating a 25-pass schedule, every method
-//! and every pass's optimum angle included. Target: under 2 ms.
+//! Benchmarks of a 25-pass schedule.
+//!
+//! `schedule/25-passes/*` evaluates the whole `check` core (every method,
+//! every pass's optimum angle, limits and notes). `core-25/*` times the
+//! pass mechanics alone over the same 25 passes (8 mm down by 19 % area a
+//! pass, an anneal after pass 13; bench data only), the cases of issue 14:
+//!
+//! - `core-25/fixed-angle/voce`: every method at the die's own angle
+//!   (target under 3 us);
+//! - `core-25/optimum-upper-bound/voce` and `core-25/optimum-max/voce`: the
+//!   same plus each pass's optimum angle (target under 20 us);
+//! - `core-25/optimum-max/hollomon`: a law without a closed Sachs form, from
+//!   strain 0 after the anneal (target under 100 us).
 
 use coldpass::evaluation::{evaluate, EvaluateOptions};
 use coldpass::schedule;
+use coldpass::{analyse_pass, optimum_semi_angle, Die, DrawPass, FlowLaw, Method, Settings};
 use criterion::{black_box, criterion_group, criterion_main, Criterion};
 
 /// A 25-pass copper schedule, 8 mm down by 19 % area a pass (bench data only).
@@ -41,7 +53,66 @@ passes:
     text
 }
 
+/// The same 25 passes as [`twenty_five_passes`], as core pass inputs.
+fn core_passes() -> Vec<DrawPass> {
+    let mut die = Die::new(6.0, 0.05).unwrap();
+    die.efficiency = Some(0.65);
+    let mut passes = Vec::new();
+    let (mut d, mut strain) = (8.0f64, 0.0f64);
+    for i in 0..25 {
+        let exit = d * 0.9;
+        passes.push(DrawPass {
+            entry_diameter_mm: d,
+            exit_diameter_mm: exit,
+            strain_before: strain,
+            back_tension_mpa: 0.0,
+            die,
+        });
+        strain += 2.0 * (d / exit).ln();
+        d = exit;
+        if i == 12 {
+            strain = 0.0;
+        }
+    }
+    passes
+}
+
+fn run_core(law: &FlowLaw, passes: &[DrawPass], optimum: Option<Method>) -> f64 {
+    let settings = Settings::default();
+    let mut total = 0.0;
+    for p in passes {
+        let m = analyse_pass(law, p, &settings).unwrap();
+        total += m.draw_stress_mpa.sachs;
+        if let Some(method) = optimum {
+            let o = optimum_semi_angle(law, p, &settings, method)
+                .unwrap()
+                .unwrap();
+            total += o.semi_angle_deg;
+        }
+    }
+    total
+}
+
 fn bench(c: &mut Criterion) {
+    let voce = FlowLaw::voce(80.0, 470.0, 0.8).unwrap();
+    let hollomon = FlowLaw::hollomon(530.0, 0.44).unwrap();
+    let passes = core_passes();
+    for (name, law, optimum) in [
+        ("fixed-angle/voce", &voce, None),
+        ("optimum-upper-bound/voce", &voce, Some(Method::UpperBound)),
+        ("optimum-max/voce", &voce, Some(Method::Max)),
+        ("fixed-angle/hollomon", &hollomon, None),
+        (
+            "optimum-upper-bound/hollomon",
+            &hollomon,
+            Some(Method::UpperBound),
+        ),
+        ("optimum-max/hollomon", &hollomon, Some(Method::Max)),
+    ] {
+        c.bench_function(&format!("core-25/{name}"), |b| {
+            b.iter(|| run_core(black_box(law), black_box(&passes), optimum))
+        });
+    }
     for (name, law) in [
         (
             "voce",

@@ -494,8 +494,13 @@ fn validate_points(points: &[[f64; 2]], beyond: Beyond) -> Result<(), ParamError
         ));
     }
     for (i, p) in points.iter().enumerate() {
-        param::finite(&format!("points[{i}] strain"), p[0])?;
-        param::positive(&format!("points[{i}] stress_mpa"), p[1])?;
+        // Name the point only when it is bad: valid tables format nothing.
+        if !p[0].is_finite() {
+            param::finite(&format!("points[{i}] strain"), p[0])?;
+        }
+        if !(p[1].is_finite() && p[1] > 0.0) {
+            param::positive(&format!("points[{i}] stress_mpa"), p[1])?;
+        }
     }
     if points[0][0] != 0.0 {
         return Err(ParamError::new(

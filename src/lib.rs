@@ -13,6 +13,7 @@ pub mod flow;
 pub mod param;
 pub mod pass;
 pub mod quad;
+pub mod risk;
 pub mod schedule;
 pub mod size;
 

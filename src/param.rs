@@ -35,6 +35,7 @@ impl ParamError {
 }
 
 /// `value` must be a finite number.
+#[inline]
 pub fn finite(name: &str, value: f64) -> Result<f64, ParamError> {
     if value.is_finite() {
         Ok(value)
@@ -44,6 +45,7 @@ pub fn finite(name: &str, value: f64) -> Result<f64, ParamError> {
 }
 
 /// `value` must be finite and strictly positive.
+#[inline]
 pub fn positive(name: &str, value: f64) -> Result<f64, ParamError> {
     finite(name, value)?;
     if value > 0.0 {
@@ -54,6 +56,7 @@ pub fn positive(name: &str, value: f64) -> Result<f64, ParamError> {
 }
 
 /// `value` must be finite and zero or positive.
+#[inline]
 pub fn non_negative(name: &str, value: f64) -> Result<f64, ParamError> {
     finite(name, value)?;
     if value >= 0.0 {
@@ -77,19 +80,36 @@ pub enum Ends {
 }
 
 /// `value` must be finite and lie in the range `lo..hi` with the given ends.
+///
+/// The message is built only when the check fails: valid input costs two
+/// comparisons, no formatting (this check runs on every pass of every
+/// candidate in design and risk runs).
+#[inline]
 pub fn within(name: &str, value: f64, lo: f64, hi: f64, ends: Ends) -> Result<f64, ParamError> {
-    finite(name, value)?;
-    let (lo_ok, hi_ok, text) = match ends {
-        Ends::Closed => (value >= lo, value <= hi, format!("must be in [{lo}, {hi}]")),
-        Ends::ClosedOpen => (value >= lo, value < hi, format!("must be in [{lo}, {hi})")),
-        Ends::OpenClosed => (value > lo, value <= hi, format!("must be in ({lo}, {hi}]")),
-        Ends::Open => (value > lo, value < hi, format!("must be in ({lo}, {hi})")),
-    };
-    if lo_ok && hi_ok {
-        Ok(value)
-    } else {
-        Err(ParamError::new(name, value, text))
+    let ok = value.is_finite()
+        && match ends {
+            Ends::Closed => value >= lo && value <= hi,
+            Ends::ClosedOpen => value >= lo && value < hi,
+            Ends::OpenClosed => value > lo && value <= hi,
+            Ends::Open => value > lo && value < hi,
+        };
+    if ok {
+        return Ok(value);
     }
+    finite(name, value)?;
+    Err(out_of_range(name, value, lo, hi, ends))
+}
+
+#[cold]
+#[inline(never)]
+fn out_of_range(name: &str, value: f64, lo: f64, hi: f64, ends: Ends) -> ParamError {
+    let text = match ends {
+        Ends::Closed => format!("must be in [{lo}, {hi}]"),
+        Ends::ClosedOpen => format!("must be in [{lo}, {hi})"),
+        Ends::OpenClosed => format!("must be in ({lo}, {hi}]"),
+        Ends::Open => format!("must be in ({lo}, {hi})"),
+    };
+    ParamError::new(name, value, text)
 }
 
 #[cfg(test)]

@@ -8,8 +8,8 @@ use coldpass::evaluation::{evaluate, EvaluateOptions};
 use coldpass::schedule;
 use coldpass::Method;
 
+use super::options::{ReportArgs, ViewArgs};
 use super::{EXIT_OK, EXIT_OVER};
-use crate::cli::ReportArgs;
 use crate::{output, report};
 
 /// Arguments of `coldpass check`.
@@ -22,6 +22,8 @@ pub struct CheckArgs {
     pub method: Option<Method>,
     #[command(flatten)]
     pub report: ReportArgs,
+    #[command(flatten)]
+    pub view: ViewArgs,
 }
 
 /// Parses a method name for clap, listing the allowed names on error.
@@ -31,7 +33,7 @@ pub fn parse_method(s: &str) -> Result<Method, String> {
 
 /// Runs `coldpass check`: exit 0 within limits, 3 over a limit.
 pub fn run(args: &CheckArgs) -> Result<u8> {
-    let text = output::read_to_string(&args.file)?;
+    let text = crate::input::read_text(&args.file)?;
     let file = schedule::parse(&text)
         .with_context(|| format!("reading schedule '{}'", args.file.display()))?;
     let rep = evaluate(
@@ -41,15 +43,18 @@ pub fn run(args: &CheckArgs) -> Result<u8> {
         },
     )
     .with_context(|| format!("checking schedule '{}'", args.file.display()))?;
-    let body = report::render_schedule(&rep, args.report.format)?;
+    output::ensure_finite("report", &rep)?;
+    let body = report::render_schedule(&rep, &file, args.report.format, &args.view.look())?;
     // Render everything before writing anything, so a failure leaves no partial output.
     let chart = match &args.report.plot {
         Some(_) => Some(report::svg::schedule(&rep, &file)?),
         None => None,
     };
-    if let (Some(path), Some(svg)) = (&args.report.plot, &chart) {
-        output::write_file(path, svg)?;
+    let mut outputs = output::Outputs::new(&[&args.file]);
+    if let (Some(path), Some(svg)) = (&args.report.plot, chart) {
+        outputs.file("--plot", path, svg);
     }
-    output::emit(args.report.output.as_deref(), &body)?;
+    outputs.report(args.report.output.as_deref(), body);
+    outputs.write()?;
     Ok(if rep.is_over() { EXIT_OVER } else { EXIT_OK })
 }

@@ -11,8 +11,8 @@ use coldpass::schedule;
 use coldpass::Method;
 
 use super::check::parse_method;
+use super::options::{ReportArgs, ViewArgs};
 use super::{EXIT_OK, EXIT_OVER};
-use crate::cli::ReportArgs;
 use crate::{output, report};
 
 /// Arguments of `coldpass design`.
@@ -25,6 +25,8 @@ pub struct DesignArgs {
     pub method: Option<Method>,
     #[command(flatten)]
     pub report: ReportArgs,
+    #[command(flatten)]
+    pub view: ViewArgs,
     /// Also write the designed schedule to this file, for `coldpass check`
     /// (diameters at full precision; written whole or not at all).
     #[arg(long, value_name = "FILE.yaml")]
@@ -35,7 +37,7 @@ pub struct DesignArgs {
 /// none can (the message names the binding constraint) or the file is bad.
 pub fn run(args: &DesignArgs) -> Result<u8> {
     let name = args.file.display().to_string();
-    let text = output::read_to_string(&args.file)?;
+    let text = crate::input::read_text(&args.file)?;
     let file = schedule::parse(&text).with_context(|| format!("reading design '{name}'"))?;
     let d = design(
         &file,
@@ -45,7 +47,8 @@ pub fn run(args: &DesignArgs) -> Result<u8> {
     )
     .with_context(|| format!("designing '{name}'"))?;
     // Render everything before writing anything, so a failure leaves no partial output.
-    let body = report::design::render(&d, args.report.format)?;
+    output::ensure_finite("design's report", &d.report)?;
+    let body = report::design::render(&d, args.report.format, &args.view.look())?;
     let chart = match &args.report.plot {
         Some(_) => Some(report::svg::schedule(&d.report, &d.schedule)?),
         None => None,
@@ -57,13 +60,15 @@ pub fn run(args: &DesignArgs) -> Result<u8> {
         )?),
         None => None,
     };
-    if let (Some(path), Some(yaml)) = (&args.emit_schedule, &emitted) {
-        output::write_file(path, yaml.as_bytes())?;
+    let mut outputs = output::Outputs::new(&[&args.file]);
+    if let (Some(path), Some(yaml)) = (&args.emit_schedule, emitted) {
+        outputs.file("--emit-schedule", path, yaml.into_bytes());
     }
-    if let (Some(path), Some(svg)) = (&args.report.plot, &chart) {
-        output::write_file(path, svg)?;
+    if let (Some(path), Some(svg)) = (&args.report.plot, chart) {
+        outputs.file("--plot", path, svg);
     }
-    output::emit(args.report.output.as_deref(), &body)?;
+    outputs.report(args.report.output.as_deref(), body);
+    outputs.write()?;
     // A design is checked before it is returned; an over-limit verdict would be a fault.
     Ok(if d.report.is_over() {
         EXIT_OVER

@@ -18,12 +18,15 @@ use coldpass::fit::{
     self, DataKind, DrawnPoint, FitError, FitLaw, FitOptions, FitReport, MaterialClass,
 };
 
-use crate::cli::{Format, ReportArgs};
+use crate::commands::options::ReportArgs;
 use crate::commands::EXIT_OK;
 use crate::output;
 use crate::report::fit as report;
+use crate::report::Format;
 
-/// Largest record file `fit` reads, bytes (about 50 million points).
+/// Largest record file `fit` reads, bytes (about 50 million points): a
+/// regular file is streamed, so it may be larger than the 16 MiB other
+/// inputs are held to; a pipe or device goes through the bounded reader.
 pub const MAX_RECORD_BYTES: u64 = 1 << 30;
 
 /// Arguments of `coldpass fit`.
@@ -289,13 +292,13 @@ fn unquote(s: &str) -> &str {
         .trim()
 }
 
-fn open_record(path: &Path) -> Result<(BufReader<std::fs::File>, u64)> {
+fn open_record(path: &Path) -> Result<(Box<dyn BufRead>, u64)> {
     let meta = std::fs::metadata(path).with_context(|| format!("reading '{}'", path.display()))?;
     if !meta.is_file() {
-        bail!(
-            "'{}' is not a regular file: fit reads tensile records from files only",
-            path.display()
-        );
+        // A pipe or a device: the project's bounded reader (at most 16 MiB, text only).
+        let text = crate::input::read_text(path)?;
+        let n = text.len() as u64;
+        return Ok((Box::new(std::io::Cursor::new(text.into_bytes())), n));
     }
     if meta.len() > MAX_RECORD_BYTES {
         bail!(
@@ -305,7 +308,7 @@ fn open_record(path: &Path) -> Result<(BufReader<std::fs::File>, u64)> {
         );
     }
     let f = std::fs::File::open(path).with_context(|| format!("reading '{}'", path.display()))?;
-    Ok((BufReader::with_capacity(1 << 16, f), meta.len()))
+    Ok((Box::new(BufReader::with_capacity(1 << 16, f)), meta.len()))
 }
 
 /// Reads the header row and chooses the two columns with `pick`, then
@@ -318,7 +321,7 @@ fn read_columns(
     let (mut reader, size) = open_record(path)?;
     let mut buf: Vec<u8> = Vec::with_capacity(256);
     let mut line_no = 0u64;
-    let read_line = |reader: &mut BufReader<std::fs::File>, buf: &mut Vec<u8>| -> Result<usize> {
+    let read_line = |reader: &mut Box<dyn BufRead>, buf: &mut Vec<u8>| -> Result<usize> {
         buf.clear();
         reader
             .read_until(b'\n', buf)
@@ -760,56 +763,8 @@ fn drawn_points(args: &FitArgs) -> Result<Vec<DrawnPoint>> {
     Ok(out)
 }
 
-/// Refuses an output that is an input, or two outputs at one path.
-fn check_paths(args: &FitArgs) -> Result<()> {
-    let outputs: Vec<(&str, &Path)> = [
-        ("-o", args.report.output.as_deref()),
-        ("--plot", args.report.plot.as_deref()),
-        ("--emit-law", args.emit_law.as_deref()),
-    ]
-    .into_iter()
-    .filter_map(|(n, p)| p.filter(|p| *p != Path::new("-")).map(|p| (n, p)))
-    .collect();
-    let canon = |p: &Path| std::fs::canonicalize(p).unwrap_or_else(|_| p.to_path_buf());
-    // Every output's folder must exist before anything is written, so that a
-    // run that cannot write its report leaves no chart or law behind.
-    for (name, p) in &outputs {
-        let dir = match p.parent() {
-            Some(d) if !d.as_os_str().is_empty() => d,
-            _ => Path::new("."),
-        };
-        if !dir.is_dir() {
-            bail!(
-                "{name} '{}': the folder '{}' does not exist; nothing was written",
-                p.display(),
-                dir.display()
-            );
-        }
-    }
-    for (i, (name, p)) in outputs.iter().enumerate() {
-        for input in &args.files {
-            if canon(p) == canon(input) {
-                bail!(
-                    "{name} '{}' is an input of this run: choose another file so the record is not overwritten",
-                    p.display()
-                );
-            }
-        }
-        for (other, q) in &outputs[i + 1..] {
-            if canon(p) == canon(q) {
-                bail!(
-                    "{name} and {other} both name '{}': give each output its own file",
-                    p.display()
-                );
-            }
-        }
-    }
-    Ok(())
-}
-
 /// Runs `coldpass fit`.
 pub fn run(args: &FitArgs) -> Result<u8> {
-    check_paths(args)?;
     let options = FitOptions {
         data: match args.data {
             DataArg::Engineering => DataKind::Engineering,
@@ -846,6 +801,8 @@ pub fn run(args: &FitArgs) -> Result<u8> {
         Format::Json => report::json_all(&results, &sources, set.as_ref())?,
         Format::Yaml => report::yaml_all(&results, &sources, set.as_ref())?,
         Format::Csv => report::csv_all(&results, &sources)?,
+        // The page shows the first record (a set's page is still to come).
+        Format::Html => crate::report::html::fit_page(&results[0], &sources[0])?,
     };
     let chart = match &args.report.plot {
         Some(_) => Some(report::svg(&results[0], &sources[0])?),
@@ -856,13 +813,16 @@ pub fn run(args: &FitArgs) -> Result<u8> {
         None => None,
     };
     // Everything is built: now write.
-    if let (Some(p), Some(bytes)) = (&args.report.plot, &chart) {
-        output::write_file(p, bytes.as_bytes())?;
+    let inputs: Vec<&Path> = args.files.iter().map(PathBuf::as_path).collect();
+    let mut outputs = output::Outputs::new(&inputs);
+    if let (Some(p), Some(bytes)) = (&args.report.plot, chart) {
+        outputs.file("--plot", p, bytes.into_bytes());
     }
-    if let (Some(p), Some(bytes)) = (&args.emit_law, &law_file) {
-        output::write_file(p, bytes.as_bytes())?;
+    if let (Some(p), Some(bytes)) = (&args.emit_law, law_file) {
+        outputs.file("--emit-law", p, bytes.into_bytes());
     }
-    output::emit(args.report.output.as_deref(), body.as_bytes())?;
+    outputs.report(args.report.output.as_deref(), body.into_bytes());
+    outputs.write()?;
     Ok(EXIT_OK)
 }
 

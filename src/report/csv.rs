@@ -51,7 +51,14 @@ fn num(x: Option<f64>) -> String {
 
 /// The steps as CSV.
 pub fn schedule(rep: &ScheduleReport) -> Result<Vec<u8>> {
-    let mut w = csv::Writer::from_writer(Vec::new());
+    // The writer scans a quoted field's whole remaining text for quotes on
+    // every buffer refill, so a field longer than its buffer costs time
+    // quadratic in its length (a 16 MB title: seconds per row). A buffer
+    // that holds the longest field (quotes doubled) keeps it linear.
+    let longest = rep.title.len().max(rep.caution.len());
+    let mut w = csv::WriterBuilder::new()
+        .buffer_capacity((2 * longest + 64).max(8 * 1024))
+        .from_writer(Vec::new());
     w.write_record(HEADER)?;
     for r in &rep.passes {
         let d = r.draw_stress_mpa;

@@ -17,7 +17,7 @@ use tabled::settings::object::Columns;
 use tabled::settings::{Alignment, Style};
 
 use super::fixed;
-use crate::cli::Format;
+use super::{Format, Look};
 
 #[derive(Serialize)]
 struct Whole<'a> {
@@ -26,7 +26,7 @@ struct Whole<'a> {
 }
 
 /// Renders a design in `format` (see the module documentation for the layout).
-pub fn render(d: &Design, format: Format) -> Result<Vec<u8>> {
+pub fn render(d: &Design, format: Format, look: &Look) -> Result<Vec<u8>> {
     let whole = Whole {
         design: &d.summary,
         schedule: &d.report,
@@ -35,9 +35,12 @@ pub fn render(d: &Design, format: Format) -> Result<Vec<u8>> {
         Format::Table => {
             let mut s = summary(d);
             s.push('\n');
-            s.push_str(&super::table::schedule(&d.report));
+            s.push_str(
+                &super::table::schedule(&d.report, &look.table).map_err(anyhow::Error::msg)?,
+            );
             s.into_bytes()
         }
+        Format::Html => super::html::design_page(d, look.table.units)?.into_bytes(),
         Format::Json => {
             let mut s = serde_json::to_string_pretty(&whole)?;
             s.push('\n');

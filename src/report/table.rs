@@ -1,46 +1,240 @@
-//! Tables for people (tabled): passes, drawing stress by method, line
-//! figures, the summary, notes and the caution footer.
+//! Tables for people (tabled). The default view is the figures a person reads
+//! first, one table that fits the terminal (120 columns for a 25-pass
+//! schedule); `--wide` gives every column in three tables (passes, drawing
+//! stress by method, line figures); `--columns` picks columns by JSON key.
+//! Then the summary, the notes (wrapped to the width) and the caution.
 
 use coldpass::evaluation::{ScheduleReport, StepKind, StepReport, Verdict};
 use tabled::builder::Builder;
 use tabled::settings::object::Columns;
-use tabled::settings::{Alignment, Style};
+use tabled::settings::peaker::PriorityMax;
+use tabled::settings::{Alignment, Style, Width};
 
-use super::fixed;
+use super::columns::{self, Column};
+use super::units::{Quantity, Units};
 
-fn build(header: &[&str], rows: Vec<Vec<String>>) -> String {
+/// Which pass columns a table shows.
+#[derive(Debug, Clone, Default)]
+pub enum View {
+    /// The figures read first ([`columns::FIRST`]), fitted to the width.
+    #[default]
+    First,
+    /// Every column, in three tables.
+    Wide,
+    /// These columns (JSON keys), in one table.
+    Pick(Vec<String>),
+}
+
+/// How a table report is laid out.
+#[derive(Debug, Clone)]
+pub struct TableOptions {
+    /// Which pass columns.
+    pub view: View,
+    /// Units of every figure.
+    pub units: Units,
+    /// Width to fit, in characters (the terminal's, else 120).
+    pub width: usize,
+}
+
+impl Default for TableOptions {
+    fn default() -> Self {
+        TableOptions {
+            view: View::First,
+            units: Units::Si,
+            width: 120,
+        }
+    }
+}
+
+/// The width to fit: `COLUMNS` when set, else the terminal's when standard
+/// output is one, else 120.
+pub fn terminal_width() -> usize {
+    if let Some(n) = std::env::var("COLUMNS")
+        .ok()
+        .and_then(|s| s.trim().parse::<usize>().ok())
+        .filter(|&n| n >= 40)
+    {
+        return n;
+    }
+    terminal_size::terminal_size_of(std::io::stdout())
+        .map(|(w, _)| usize::from(w.0))
+        .filter(|&n| n >= 40)
+        .unwrap_or(120)
+}
+
+fn build(header: Vec<String>, rows: Vec<Vec<String>>, width: Option<usize>) -> String {
     let mut b = Builder::default();
-    b.push_record(header.iter().map(|s| s.to_string()));
+    b.push_record(header);
     for r in rows {
         b.push_record(r);
     }
     let mut t = b.build();
     t.with(Style::sharp());
     t.modify(Columns::new(1..), Alignment::right());
+    if let Some(w) = width {
+        t.with(
+            Width::wrap(w)
+                .keep_words(true)
+                .priority(PriorityMax::right()),
+        );
+    }
     t.to_string()
 }
 
-fn with_unit(x: Option<f64>, digits: usize, unit: &str, why_none: &str) -> String {
+/// A table of `cols` over the steps. `stacked` puts each header word on its
+/// own line, so that a column is as wide as its figures.
+fn pass_table(
+    cols: &[&Column],
+    steps: &[&StepReport],
+    opts: &TableOptions,
+    stacked: bool,
+) -> String {
+    let header = cols
+        .iter()
+        .map(|c| {
+            let h = c.header(opts.units);
+            if stacked {
+                h.replace(' ', "\n")
+            } else {
+                h
+            }
+        })
+        .collect();
+    let rows = steps
+        .iter()
+        .map(|r| {
+            cols.iter()
+                .map(|c| match c.key {
+                    // One flag a line keeps the column as wide as the longest flag.
+                    "flags" if stacked => columns::flags(r, "\n"),
+                    _ => c.cell(r, opts.units),
+                })
+                .collect()
+        })
+        .collect();
+    build(header, rows, stacked.then_some(opts.width))
+}
+
+/// Wraps `text` to `width` characters at spaces, indenting continuation lines by `indent`.
+pub fn wrap(text: &str, width: usize, indent: &str) -> String {
+    let mut out = String::new();
+    let mut line = String::new();
+    for word in text.split_whitespace() {
+        let len = line.chars().count();
+        if len > 0 && len + 1 + word.chars().count() > width {
+            out.push_str(&line);
+            out.push('\n');
+            line = indent.to_string();
+        } else if len > 0 && !line.ends_with(' ') {
+            line.push(' ');
+        }
+        line.push_str(word);
+    }
+    out.push_str(&line);
+    out
+}
+
+/// A figure with its unit, or a dash and why there is none.
+fn with_unit(x: Option<f64>, q: Quantity, digits: usize, units: Units, why_none: &str) -> String {
     match x {
-        Some(_) => format!("{} {unit}", fixed(x, digits)),
+        Some(v) => format!(
+            "{} {}",
+            super::fixed(Some(q.convert(v, units)), q.decimals(digits, units)),
+            q.label(units)
+        ),
         None => format!("- ({why_none})"),
     }
 }
 
-fn pct(x: Option<f64>) -> String {
-    fixed(x.map(|v| 100.0 * v), 1)
+/// The verdict in words.
+pub fn verdict_words(v: Verdict) -> &'static str {
+    match v {
+        Verdict::Ok => "ok: every pass within the limits",
+        Verdict::Warn => "warn: within the limits, with warnings (see flags)",
+        Verdict::Over => "over: at least one pass over a limit (see flags)",
+    }
 }
 
-fn flags(r: &StepReport) -> String {
-    r.flags
-        .iter()
-        .map(|f| f.name())
-        .collect::<Vec<_>>()
-        .join(", ")
+/// The summary as (label, value) rows, shared by the table and the HTML page.
+pub fn summary_rows(rep: &ScheduleReport, units: Units) -> Vec<(String, String)> {
+    let s = &rep.summary;
+    let len = |mm: f64| {
+        format!(
+            "{} {}",
+            super::fixed(
+                Some(Quantity::Length.convert(mm, units)),
+                Quantity::Length.decimals(3, units)
+            ),
+            Quantity::Length.label(units)
+        )
+    };
+    let worst = match (s.worst_draw_ratio, s.worst_step) {
+        (Some(r), Some(step)) => format!("{r:.3} at step {step}"),
+        _ => "-".into(),
+    };
+    let stress = with_unit(
+        Some(s.final_flow_stress_mpa),
+        Quantity::Stress,
+        0,
+        units,
+        "",
+    );
+    let mass = match units {
+        Units::Si => match (s.throughput_kg_h, s.throughput_t_per_shift) {
+            (Some(kg), Some(t)) => format!("{kg:.0} kg/h, {t:.1} t per shift"),
+            _ => "- (no line block)".into(),
+        },
+        // Pounds (avoirdupois, 0.453 592 37 kg exact) and short tons of 2000 lb.
+        Units::Us => match (s.throughput_kg_h, s.throughput_t_per_shift) {
+            (Some(kg), Some(t)) => format!(
+                "{:.0} lb/h, {:.1} short tons per shift ({t:.1} t)",
+                kg / 0.453_592_37,
+                t * 1000.0 / 0.453_592_37 / 2000.0
+            ),
+            _ => "- (no line block)".into(),
+        },
+    };
+    vec![
+        (
+            "start -> finish".into(),
+            format!(
+                "{} -> {}",
+                len(s.start_diameter_mm),
+                len(s.finish_diameter_mm)
+            ),
+        ),
+        (
+            "total area reduction".into(),
+            format!("{:.1} %", 100.0 * s.total_area_reduction),
+        ),
+        ("total strain".into(), format!("{:.3}", s.total_strain)),
+        (
+            "draw passes / anneals".into(),
+            format!("{} / {}", s.draw_passes, s.anneals),
+        ),
+        ("worst draw ratio".into(), worst),
+        (
+            "finished flow stress".into(),
+            format!("{stress} at strain {:.3} since anneal", s.final_strain),
+        ),
+        ("throughput".into(), mass),
+        (
+            "time per coil".into(),
+            match s.coil_time_min {
+                Some(m) => format!("{m:.1} min"),
+                None => "- (no line.coil_mass_kg)".into(),
+            },
+        ),
+        (
+            "total power".into(),
+            with_unit(s.total_power_kw, Quantity::Power, 1, units, "no line block"),
+        ),
+        ("verdict".into(), verdict_words(s.verdict).into()),
+    ]
 }
 
-/// The whole human-readable report of a schedule.
-pub fn schedule(rep: &ScheduleReport) -> String {
+/// The heading lines: title, material, governing method.
+fn heading(rep: &ScheduleReport) -> String {
     let mut out = String::new();
     if !rep.title.is_empty() {
         out.push_str(&format!("{}\n", rep.title));
@@ -52,209 +246,143 @@ pub fn schedule(rep: &ScheduleReport) -> String {
         "Governing method: {} ({}); draw ratio warn {} / max {}\n\n",
         rep.method, rep.method_source, rep.draw_ratio_warn, rep.draw_ratio_max
     ));
+    out
+}
 
-    let passes: Vec<Vec<String>> = rep
-        .passes
-        .iter()
-        .map(|r| match r.kind {
-            StepKind::Anneal => vec![
-                r.step.to_string(),
-                "anneal".into(),
-                fixed(Some(r.exit_diameter_mm), 3),
-                String::new(),
-                String::new(),
-                String::new(),
-                String::new(),
-                fixed(Some(0.0), 3),
-                fixed(Some(r.flow_stress_exit_mpa), 0),
-                String::new(),
-                String::new(),
-                String::new(),
-                String::new(),
-                String::new(),
-                String::new(),
-            ],
-            StepKind::Draw => vec![
-                r.step.to_string(),
-                r.die_size.clone().unwrap_or_default(),
-                fixed(Some(r.exit_diameter_mm), 3),
-                pct(r.area_reduction),
-                pct(Some(r.cumulative_reduction)),
-                fixed(r.elongation, 3),
-                fixed(r.pass_strain, 3),
-                fixed(Some(r.strain_after), 3),
-                fixed(Some(r.flow_stress_exit_mpa), 0),
-                fixed(r.delta, 2),
-                fixed(r.semi_angle_deg, 1),
-                fixed(r.optimum_semi_angle_deg, 1),
-                fixed(r.governing_draw_stress_mpa, 0),
-                fixed(r.draw_ratio, 3),
-                flags(r),
-            ],
-        })
-        .collect();
-    out.push_str("Passes\n");
-    out.push_str(&build(
-        &[
-            "step",
-            "die size",
-            "exit mm",
-            "reduction %",
-            "cum. red. %",
-            "elongation",
-            "pass strain",
-            "strain after",
-            "exit flow MPa",
-            "Delta",
-            "semi-angle deg",
-            "optimum deg",
-            "draw stress MPa",
-            "draw ratio",
-            "flags",
-        ],
-        passes,
-    ));
-    out.push_str("\n\n");
+const WIDE_PASSES: &[&str] = &[
+    "step",
+    "die_size",
+    "exit_diameter_mm",
+    "area_reduction",
+    "cumulative_reduction",
+    "elongation",
+    "pass_strain",
+    "strain_after",
+    "flow_stress_exit_mpa",
+    "delta",
+    "semi_angle_deg",
+    "optimum_semi_angle_deg",
+    "governing_draw_stress_mpa",
+    "draw_ratio",
+    "flags",
+];
 
+const WIDE_METHODS: &[&str] = &[
+    "step",
+    "mean_flow_stress_mpa",
+    "draw_stress_mpa.ideal",
+    "draw_stress_mpa.efficiency",
+    "draw_stress_mpa.sachs",
+    "draw_stress_mpa.siebel",
+    "draw_stress_mpa.redundant",
+    "draw_stress_mpa.upper_bound",
+    "back_tension_mpa",
+    "friction",
+    "friction_factor",
+];
+
+const WIDE_LINE: &[&str] = &[
+    "step",
+    "entry_diameter_mm",
+    "force_kn",
+    "exit_speed_m_s",
+    "power_kw",
+    "temperature_rise_c",
+    "wire_temperature_c",
+];
+
+/// The whole human-readable report of a schedule.
+pub fn schedule(rep: &ScheduleReport, opts: &TableOptions) -> Result<String, String> {
+    let mut out = heading(rep);
+    let all: Vec<&StepReport> = rep.passes.iter().collect();
     let draws: Vec<&StepReport> = rep
         .passes
         .iter()
         .filter(|r| r.kind == StepKind::Draw)
         .collect();
-    let methods: Vec<Vec<String>> = draws
-        .iter()
-        .map(|r| {
-            let d = r.draw_stress_mpa.expect("draw rows carry stresses");
-            vec![
-                r.step.to_string(),
-                fixed(r.mean_flow_stress_mpa, 0),
-                fixed(Some(d.ideal), 0),
-                fixed(d.efficiency, 0),
-                fixed(Some(d.sachs), 0),
-                fixed(Some(d.siebel), 0),
-                fixed(Some(d.redundant), 0),
-                fixed(Some(d.upper_bound), 0),
-                fixed(r.back_tension_mpa, 0),
-                fixed(r.friction, 3),
-                fixed(r.friction_factor, 3),
-            ]
-        })
-        .collect();
-    out.push_str("Drawing stress by method, MPa\n");
-    out.push_str(&build(
-        &[
-            "step",
-            "mean flow MPa",
-            "ideal",
-            "efficiency",
-            "sachs",
-            "siebel",
-            "redundant",
-            "upper-bound",
-            "back tension MPa",
-            "friction mu",
-            "shear factor m",
-        ],
-        methods,
-    ));
-    out.push_str("\n\n");
+    match &opts.view {
+        View::First => {
+            out.push_str("Passes\n");
+            out.push_str(&pass_table(
+                &columns::fixed_set(columns::FIRST),
+                &all,
+                opts,
+                true,
+            ));
+            out.push_str("\n(--wide for every column: strains, Delta, drawing stress by method, force, speed)\n\n");
+        }
+        View::Wide => {
+            out.push_str("Passes\n");
+            out.push_str(&pass_table(
+                &columns::fixed_set(WIDE_PASSES),
+                &all,
+                opts,
+                false,
+            ));
+            out.push_str(&format!(
+                "\n\nDrawing stress by method, {}\n",
+                Quantity::Stress.label(opts.units)
+            ));
+            out.push_str(&pass_table(
+                &columns::fixed_set(WIDE_METHODS),
+                &draws,
+                opts,
+                false,
+            ));
+            out.push_str("\n\nLine\n");
+            out.push_str(&pass_table(
+                &columns::fixed_set(WIDE_LINE),
+                &draws,
+                opts,
+                false,
+            ));
+            out.push_str("\n\n");
+        }
+        View::Pick(keys) => {
+            let cols = columns::pick(keys)?;
+            out.push_str("Passes\n");
+            out.push_str(&pass_table(&cols, &all, opts, true));
+            out.push_str("\n\n");
+        }
+    }
 
-    let line: Vec<Vec<String>> = draws
-        .iter()
-        .map(|r| {
-            vec![
-                r.step.to_string(),
-                fixed(r.force_kn, 2),
-                fixed(r.exit_speed_m_s, 2),
-                fixed(r.exit_speed_m_s.map(|v| v * 60.0), 0),
-                fixed(r.power_kw, 1),
-                fixed(r.temperature_rise_c, 0),
-                fixed(r.wire_temperature_c, 0),
-            ]
-        })
-        .collect();
-    out.push_str("Line\n");
-    out.push_str(&build(
-        &[
-            "step",
-            "force kN",
-            "exit speed m/s",
-            "exit speed m/min",
-            "power kW",
-            "temperature rise C",
-            "wire temperature C",
-        ],
-        line,
-    ));
-    out.push_str("\n\n");
-
-    let s = &rep.summary;
-    let worst = match (s.worst_draw_ratio, s.worst_step) {
-        (Some(r), Some(step)) => format!("{r:.3} at step {step}"),
-        _ => "-".into(),
-    };
-    let verdict = match s.verdict {
-        Verdict::Ok => "ok: every pass within the limits",
-        Verdict::Warn => "warn: within the limits, with warnings (see flags)",
-        Verdict::Over => "over: at least one pass over a limit (see flags)",
-    };
-    let summary = vec![
-        vec![
-            "start -> finish".into(),
-            format!(
-                "{:.3} mm -> {:.3} mm",
-                s.start_diameter_mm, s.finish_diameter_mm
-            ),
-        ],
-        vec![
-            "total area reduction".into(),
-            format!("{:.1} %", 100.0 * s.total_area_reduction),
-        ],
-        vec!["total strain".into(), format!("{:.3}", s.total_strain)],
-        vec![
-            "draw passes / anneals".into(),
-            format!("{} / {}", s.draw_passes, s.anneals),
-        ],
-        vec!["worst draw ratio".into(), worst],
-        vec![
-            "finished flow stress".into(),
-            format!(
-                "{:.0} MPa at strain {:.3} since anneal",
-                s.final_flow_stress_mpa, s.final_strain
-            ),
-        ],
-        vec![
-            "throughput".into(),
-            match (s.throughput_kg_h, s.throughput_t_per_shift) {
-                (Some(kg), Some(t)) => format!("{kg:.0} kg/h, {t:.1} t per shift"),
-                _ => "- (no line block)".into(),
-            },
-        ],
-        vec![
-            "time per coil".into(),
-            with_unit(s.coil_time_min, 1, "min", "no line.coil_mass_kg"),
-        ],
-        vec![
-            "total power".into(),
-            with_unit(s.total_power_kw, 1, "kW", "no line block"),
-        ],
-        vec!["verdict".into(), verdict.into()],
-    ];
     let mut b = Builder::default();
-    for r in summary {
-        b.push_record(r);
+    for (k, v) in summary_rows(rep, opts.units) {
+        b.push_record([k, v]);
     }
     let mut t = b.build();
     t.with(Style::sharp());
+    t.with(
+        Width::wrap(opts.width)
+            .keep_words(true)
+            .priority(PriorityMax::right()),
+    );
     out.push_str("Summary\n");
     out.push_str(&t.to_string());
     out.push('\n');
     if !rep.notes.is_empty() {
         out.push_str("\nNotes\n");
         for n in &rep.notes {
-            out.push_str(&format!("- {n}\n"));
+            out.push_str(&wrap(&format!("- {n}"), opts.width, "  "));
+            out.push('\n');
         }
     }
-    out.push_str(&format!("\nCaution: {}\n", rep.caution));
-    out
+    out.push('\n');
+    out.push_str(&wrap(&format!("Caution: {}", rep.caution), opts.width, ""));
+    out.push('\n');
+    Ok(out)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn wrap_keeps_words_and_width() {
+        let text = "the quick brown fox jumps over the lazy dog";
+        let w = wrap(text, 12, "  ");
+        assert!(w.lines().all(|l| l.chars().count() <= 12), "{w}");
+        assert_eq!(w.split_whitespace().collect::<Vec<_>>().join(" "), text);
+        assert!(w.lines().skip(1).all(|l| l.starts_with("  ")));
+    }
 }

@@ -34,9 +34,15 @@ use std::f64::consts::PI;
 use std::fmt;
 use std::str::FromStr;
 
-use crate::flow::{FlowError, FlowLaw, FlowLawSpec};
+use crate::flow::{FlowError, FlowLaw};
 use crate::param::{self, Ends, ParamError};
 use crate::quad;
+
+mod optimum;
+mod prepared;
+mod sachs;
+
+pub use prepared::PreparedPass;
 
 /// Why a pass cannot be evaluated.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
@@ -92,7 +98,8 @@ pub enum Method {
     Redundant,
     /// Avitzur's upper bound.
     UpperBound,
-    /// The largest of sachs, siebel, redundant and upper-bound.
+    /// A conservative envelope: the largest of sachs, siebel, redundant and
+    /// upper-bound (well above the published cases, README "Validation").
     Max,
 }
 
@@ -149,6 +156,20 @@ impl FromStr for Method {
     }
 }
 
+/// The shear factor m taken per unit Coulomb friction when a die gives only
+/// mu: `m = min(1, DERIVED_SHEAR_FACTOR_PER_MU * mu)`.
+///
+/// Chosen from the validation table (README, "Validation"; docs/physics.md):
+/// the former `sqrt(3) mu` (friction shear `m k` equal to `mu p` at a die
+/// pressure `p` equal to the flow stress) put the upper bound 17 to 31 %
+/// above every published case; `m = mu` (a mean die pressure of about
+/// `sigma_f / sqrt 3`, near what the slab solution gives in the cone) brings
+/// it within about 10 %. Give `friction_factor` to set m directly.
+pub const DERIVED_SHEAR_FACTOR_PER_MU: f64 = 1.0;
+
+/// The rule for m when only mu is given, in words, for notes and reports.
+pub const DERIVED_SHEAR_FACTOR_RULE: &str = "min(1, mu)";
+
 /// A conical die and its lubrication.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
 pub struct Die {
@@ -158,9 +179,11 @@ pub struct Die {
     /// Coulomb friction coefficient mu, in [0, 0.5] (slab and Siebel methods).
     pub friction: f64,
     /// Shear friction factor m, in [0, 1] (upper bound); `None` derives
-    /// `m = min(1, sqrt(3) mu)`.
+    /// `m = min(1, mu)` ([`DERIVED_SHEAR_FACTOR_PER_MU`]).
     pub friction_factor: Option<f64>,
-    /// Die land (bearing) length L, mm, 0 or more (upper bound).
+    /// Die land (bearing) length L, mm, 0 or more: the slab land balance in
+    /// Sachs, Siebel and redundant ([`land_exit_stress`]), Avitzur's land
+    /// term in the upper bound. [`land_is_long`] flags a long one.
     pub land_length_mm: f64,
     /// Drawing efficiency eta, in (0, 1] (efficiency method).
     pub efficiency: Option<f64>,
@@ -197,12 +220,12 @@ impl Die {
     }
 
     /// The shear factor used by the upper bound and whether it was derived
-    /// from mu as `m = min(1, sqrt(3) mu)` (the factor that makes the friction
-    /// shear `m k` equal `mu p` at `p = sigma_f`, with `k = sigma_f / sqrt 3`).
+    /// from mu as `m = min(1, DERIVED_SHEAR_FACTOR_PER_MU * mu)` (see
+    /// [`DERIVED_SHEAR_FACTOR_PER_MU`] for the choice).
     pub fn shear_factor(&self) -> (f64, bool) {
         match self.friction_factor {
             Some(m) => (m, false),
-            None => ((3f64.sqrt() * self.friction).min(1.0), true),
+            None => ((DERIVED_SHEAR_FACTOR_PER_MU * self.friction).min(1.0), true),
         }
     }
 }
@@ -416,294 +439,76 @@ pub fn temperature_rise_c(
     heat_fraction * work_mpa * 1.0e6 / (density_kg_m3 * specific_heat_j_kg_k)
 }
 
-/// The angle-independent part of a pass, computed once and reused by the
-/// optimum-angle search.
-struct Prepared<'a> {
-    law: &'a FlowLaw,
-    strain_before: f64,
-    eps: f64,
-    reduction: f64,
-    mean: f64,
-    back: f64,
-    mu: f64,
-    m: f64,
-    land_over_rf: f64,
-    efficiency: Option<f64>,
-    c: f64,
+/// Common-practice ceiling of the land (bearing) length over the exit
+/// diameter, `L/d`, above which [`land_is_long`] calls a land long for the
+/// size. Wire-die bearings are commonly made 0.3 to 0.5 d (from memory of
+/// die-makers' guidance; short for fine wire, longer for bar to hold size
+/// as the bearing wears); 0.6 d leaves room above that usual band.
+pub const LAND_LONG_RATIO: f64 = 0.6;
+
+/// Whether a die land of `land_length_mm` is long for an exit diameter of
+/// `exit_diameter_mm`: `L/d` above [`LAND_LONG_RATIO`] (common practice).
+/// A long land adds friction on the drawn section without helping the draw.
+/// Exactly 0.6 d (to a part in a billion, so that a land written as 0.6 d is
+/// not called long by rounding) is not long.
+pub fn land_is_long(land_length_mm: f64, exit_diameter_mm: f64) -> bool {
+    land_length_mm > LAND_LONG_RATIO * exit_diameter_mm * (1.0 + 1e-9)
 }
 
-impl<'a> Prepared<'a> {
-    fn new(law: &'a FlowLaw, pass: &DrawPass, settings: &Settings) -> Result<Self, PassError> {
-        pass.validate()?;
-        param::non_negative("redundant_c", settings.redundant_c)?;
-        let eps = true_strain(pass.entry_diameter_mm, pass.exit_diameter_mm);
-        let ea = pass.strain_before;
-        Ok(Prepared {
-            law,
-            strain_before: ea,
-            eps,
-            reduction: area_reduction(pass.entry_diameter_mm, pass.exit_diameter_mm),
-            mean: law.mean_stress_mpa(ea, ea + eps)?,
-            back: pass.back_tension_mpa,
-            mu: pass.die.friction,
-            m: pass.die.shear_factor().0,
-            land_over_rf: pass.die.land_length_mm / (0.5 * pass.exit_diameter_mm),
-            efficiency: pass.die.efficiency,
-            c: settings.redundant_c,
-        })
+/// The drawing stress at the end of a parallel die land (bearing), MPa:
+/// `sigma_exit = Y - (Y - sigma_cone) decay`, `decay = e^(-4 mu L / d)`, with
+/// `sigma_cone` the stress where the cone ends, `Y` the flow stress of the
+/// drawn wire, `L` the land length and `d` the exit diameter.
+///
+/// Slab balance on the land (the standard slab treatment of a parallel
+/// land, as in Hosford & Caddell, *Metal Forming*, drawing chapter; from
+/// memory): the wire yields under the axial tension `sigma_x` and the die
+/// pressure `p`, so `p = Y - sigma_x`; the axial force balance of a slice
+/// `dx` of radius `r` is `pi r^2 d sigma_x = 2 pi r mu p dx`, i.e.
+/// `d sigma_x / dx = (2 mu / r)(Y - sigma_x)`, whose solution over `L` is the
+/// formula with `2 L / r = 4 L / d`. With no land (`decay = 1`) it returns
+/// `sigma_cone` unchanged, and so it does when `sigma_cone >= Y`: the die
+/// pressure `Y - sigma_x` cannot be negative, so a section already pulled to
+/// its flow stress feels no land friction (and the pass fails its draw ratio
+/// anyway).
+pub fn land_exit_stress(sigma_cone_mpa: f64, flow_stress_mpa: f64, decay: f64) -> f64 {
+    if decay == 1.0 || sigma_cone_mpa >= flow_stress_mpa {
+        return sigma_cone_mpa;
     }
+    flow_stress_mpa - (flow_stress_mpa - sigma_cone_mpa) * decay
+}
 
-    fn ideal(&self) -> f64 {
-        self.back + self.mean * self.eps
-    }
-
-    fn sachs(&self, alpha: f64) -> Result<f64, PassError> {
-        let b = self.mu / alpha.tan();
-        let decay = (-b * self.eps).exp();
-        Ok(self.back * decay + (1.0 + b) * self.sachs_integral(b)?)
-    }
-
-    /// `int_0^eps sigma_f(eps_a + t) e^(-B(eps - t)) dt`, closed form where the
-    /// law allows, otherwise by quadrature.
-    fn sachs_integral(&self, b: f64) -> Result<f64, PassError> {
-        let (ea, eps) = (self.strain_before, self.eps);
-        // g = int_0^eps e^(-B(eps-t)) dt = (1 - e^(-B eps)) / B
-        let g = if b * eps > 0.0 {
-            -(-b * eps).exp_m1() / b
-        } else {
-            eps
-        };
-        Ok(match self.law.spec() {
-            FlowLawSpec::PerfectlyPlastic { yield_mpa } => yield_mpa * g,
-            FlowLawSpec::Linear {
-                yield_mpa,
-                hardening_modulus_mpa,
-            } => {
-                // h = int_0^eps t e^(-B(eps-t)) dt = (eps - g) / B
-                let x = b * eps;
-                let h = if x < 1e-4 {
-                    eps * eps * (0.5 - x / 6.0 + x * x / 24.0)
-                } else {
-                    (eps - g) / b
-                };
-                (yield_mpa + hardening_modulus_mpa * ea) * g + hardening_modulus_mpa * h
-            }
-            FlowLawSpec::Voce {
-                sigma0_mpa,
-                saturation_mpa,
-                eps_c,
-            } => {
-                // int_0^eps e^(-t/ec) e^(-B(eps-t)) dt = (e^(-eps/ec) - e^(-B eps)) / x, x = B - 1/ec
-                let x = b - 1.0 / eps_c;
-                let k = if (x * eps).abs() < 0.5 {
-                    let series = if x == 0.0 {
-                        eps
-                    } else {
-                        (x * eps).exp_m1() / x
-                    };
-                    (-b * eps).exp() * series
-                } else {
-                    ((-eps / eps_c).exp() - (-b * eps).exp()) / x
-                };
-                saturation_mpa * g - (saturation_mpa - sigma0_mpa) * (-ea / eps_c).exp() * k
-            }
-            _ => {
-                let law = self.law;
-                let breaks: Vec<f64> = law.break_strains().iter().map(|s| s - ea).collect();
-                let scale = law.stress_mpa(ea + eps).max(1.0) * eps;
-                quad::integrate(
-                    |t| law.stress_mpa(ea + t) * (-b * (eps - t)).exp(),
-                    0.0,
-                    eps,
-                    1e-11 * scale,
-                    &breaks,
-                )?
-                .value
-            }
-        })
-    }
-
-    fn siebel(&self, alpha: f64) -> f64 {
-        self.back + self.mean * ((1.0 + self.mu / alpha) * self.eps + 2.0 / 3.0 * alpha)
-    }
-
-    fn redundant_factor(&self, alpha: f64) -> f64 {
-        let d = delta(alpha, self.reduction);
-        if d > 1.0 {
-            1.0 + self.c * (d - 1.0)
-        } else {
-            1.0
-        }
-    }
-
-    fn redundant(&self, alpha: f64, sachs: f64) -> f64 {
-        sachs + (self.redundant_factor(alpha) - 1.0) * self.mean * self.eps
-    }
-
-    fn upper_bound(&self, alpha: f64) -> f64 {
-        let (s, c) = alpha.sin_cos();
-        let cot = c / s;
-        let half = 0.5 * self.eps; // ln(R0/Rf)
-        let k = 2.0 / 3f64.sqrt();
-        self.back
-            + self.mean
-                * (2.0 * avitzur_f(alpha) * half
-                    + k * (alpha / (s * s) - cot)
-                    + k * self.m * (cot * half + self.land_over_rf))
-    }
-
-    fn stress(&self, method: Method, alpha: f64) -> Result<f64, PassError> {
-        Ok(match method {
-            Method::Ideal => self.ideal(),
-            Method::Efficiency => self.ideal_over_efficiency()?,
-            Method::Sachs => self.sachs(alpha)?,
-            Method::Siebel => self.siebel(alpha),
-            Method::Redundant => self.redundant(alpha, self.sachs(alpha)?),
-            Method::UpperBound => self.upper_bound(alpha),
-            Method::Max => {
-                let sachs = self.sachs(alpha)?;
-                sachs
-                    .max(self.siebel(alpha))
-                    .max(self.redundant(alpha, sachs))
-                    .max(self.upper_bound(alpha))
-            }
-        })
-    }
-
-    fn ideal_over_efficiency(&self) -> Result<f64, PassError> {
-        let eta = self.efficiency.ok_or(PassError::MissingEfficiency)?;
-        Ok(self.back + self.mean * self.eps / eta)
-    }
+/// `e^(-4 mu L / d)`, the land's decay factor in [`land_exit_stress`].
+pub fn land_decay(friction: f64, land_length_mm: f64, exit_diameter_mm: f64) -> f64 {
+    (-4.0 * friction * land_length_mm / exit_diameter_mm).exp()
 }
 
 /// Evaluates one pass: geometry, flow stresses and the drawing stress by every
-/// method (see the module documentation for the formulas).
+/// method (see the module documentation for the formulas). The same as
+/// `PreparedPass::new(law, pass, settings)?.mechanics(&pass.die)`.
 pub fn analyse_pass(
     law: &FlowLaw,
     pass: &DrawPass,
     settings: &Settings,
 ) -> Result<PassMechanics, PassError> {
-    let p = Prepared::new(law, pass, settings)?;
-    let alpha = pass.die.semi_angle_deg.to_radians();
-    let sachs = p.sachs(alpha)?;
-    let (m, derived) = pass.die.shear_factor();
-    let strain_after = p.strain_before + p.eps;
-    let result = PassMechanics {
-        entry_diameter_mm: pass.entry_diameter_mm,
-        exit_diameter_mm: pass.exit_diameter_mm,
-        area_reduction: p.reduction,
-        elongation: (p.eps).exp(),
-        pass_strain: p.eps,
-        strain_before: p.strain_before,
-        strain_after,
-        delta: delta(alpha, p.reduction),
-        redundant_factor: p.redundant_factor(alpha),
-        flow_stress_entry_mpa: law.stress_mpa(p.strain_before),
-        flow_stress_exit_mpa: law.stress_mpa(strain_after),
-        mean_flow_stress_mpa: p.mean,
-        friction_factor: m,
-        friction_factor_derived: derived,
-        back_tension_mpa: p.back,
-        draw_stress_mpa: DrawStresses {
-            ideal: p.ideal(),
-            efficiency: match pass.die.efficiency {
-                Some(_) => Some(p.ideal_over_efficiency()?),
-                None => None,
-            },
-            sachs,
-            siebel: p.siebel(alpha),
-            redundant: p.redundant(alpha, sachs),
-            upper_bound: p.upper_bound(alpha),
-        },
-    };
-    // Valid but extreme inputs (a law constant near f64::MAX, a subnormal
-    // yield stress) can overflow; report that rather than return infinities.
-    let s = &result.draw_stress_mpa;
-    for (quantity, value) in [
-        ("elongation", result.elongation),
-        ("deformation-zone shape Delta", result.delta),
-        ("redundant-work factor", result.redundant_factor),
-        ("entry flow stress", result.flow_stress_entry_mpa),
-        ("exit flow stress", result.flow_stress_exit_mpa),
-        ("drawing stress by ideal work", s.ideal),
-        ("drawing stress by efficiency", s.efficiency.unwrap_or(0.0)),
-        ("drawing stress by sachs", s.sachs),
-        ("drawing stress by siebel", s.siebel),
-        ("drawing stress by redundant work", s.redundant),
-        ("drawing stress by upper bound", s.upper_bound),
-    ] {
-        finite_or_overflow(quantity, value)?;
-    }
-    Ok(result)
+    PreparedPass::new(law, pass, settings)?.mechanics(&pass.die)
 }
 
 /// The semi-angle in [1, 20] degrees that minimises `method`'s drawing stress
 /// for this pass (the pass's own angle is ignored), or `None` for methods that
 /// do not depend on the angle (ideal, efficiency).
 ///
-/// A coarse scan of eight angles brackets the minimum; a golden-section search
-/// refines it to 0.001 degree. For Siebel the result agrees with the closed
-/// form `alpha* = sqrt(1.5 mu eps)` when that lies in the range.
+/// Brent's minimisation over the whole range to 1e-4 degree, about 10 to 12
+/// probes (see [`PreparedPass::optimum_semi_angle`]). For Siebel the result
+/// agrees with the closed form `alpha* = sqrt(1.5 mu eps)` when that lies in
+/// the range.
 pub fn optimum_semi_angle(
     law: &FlowLaw,
     pass: &DrawPass,
     settings: &Settings,
     method: Method,
 ) -> Result<Option<OptimumAngle>, PassError> {
-    let p = Prepared::new(law, pass, settings)?;
-    if !method.depends_on_angle() {
-        return Ok(None);
-    }
-    let f = |deg: f64| finite_or_overflow("drawing stress", p.stress(method, deg.to_radians())?);
-    const SCAN: usize = 8;
-    let (lo, hi) = (OPTIMUM_SEARCH_MIN_DEG, OPTIMUM_SEARCH_MAX_DEG);
-    let step = (hi - lo) / (SCAN - 1) as f64;
-    let mut best = (0, f64::INFINITY);
-    for i in 0..SCAN {
-        let v = f(lo + step * i as f64)?;
-        if v < best.1 {
-            best = (i, v);
-        }
-    }
-    let mut a = lo + step * best.0.saturating_sub(1) as f64;
-    let mut b = (lo + step * (best.0 + 1) as f64).min(hi);
-    let inv_phi = (5f64.sqrt() - 1.0) / 2.0;
-    let mut x1 = b - inv_phi * (b - a);
-    let mut x2 = a + inv_phi * (b - a);
-    let (mut f1, mut f2) = (f(x1)?, f(x2)?);
-    // Golden section: the bracket shrinks by 0.618 a step, so 40 steps reach
-    // 5.4 deg * 0.618^40 ~ 2e-8 deg; the tolerance stops it well before.
-    for _ in 0..40 {
-        if b - a < 1e-3 {
-            break;
-        }
-        if f1 <= f2 {
-            b = x2;
-            x2 = x1;
-            f2 = f1;
-            x1 = b - inv_phi * (b - a);
-            f1 = f(x1)?;
-        } else {
-            a = x1;
-            x1 = x2;
-            f1 = f2;
-            x2 = a + inv_phi * (b - a);
-            f2 = f(x2)?;
-        }
-    }
-    let (deg, value) = if f1 <= f2 { (x1, f1) } else { (x2, f2) };
-    // Compare with the scanned ends: a monotone stress has its minimum there.
-    let (deg, value) = if best.1 < value {
-        (lo + step * best.0 as f64, best.1)
-    } else {
-        (deg, value)
-    };
-    let at_search_limit = deg - lo < 2e-3 || hi - deg < 2e-3;
-    Ok(Some(OptimumAngle {
-        semi_angle_deg: deg,
-        draw_stress_mpa: value,
-        at_search_limit,
-    }))
+    PreparedPass::new(law, pass, settings)?.optimum_semi_angle(&pass.die, method)
 }
 
 #[cfg(test)]

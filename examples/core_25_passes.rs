@@ -1,0 +1,93 @@
+//! Times the core over the 25-pass schedule of `benches/schedule.rs`
+//! (`core-25/*`) for `benches/scipy_side_by_side.py`, which runs the same
+//! mechanics in SciPy and prints the ratio. Prints one JSON object: for each
+//! case, the best-of-rounds time of one whole schedule in microseconds.
+//!
+//! Usage: `cargo run --release --example core_25_passes -- [ROUNDS]`.
+
+use std::hint::black_box;
+use std::time::Instant;
+
+use coldpass::{analyse_pass, optimum_semi_angle, Die, DrawPass, FlowLaw, Method, Settings};
+
+/// 8 mm down by 10 % in diameter a pass, an anneal after pass 13 (bench data only).
+fn core_passes() -> Vec<DrawPass> {
+    let mut die = Die::new(6.0, 0.05).unwrap();
+    die.efficiency = Some(0.65);
+    let mut passes = Vec::new();
+    let (mut d, mut strain) = (8.0f64, 0.0f64);
+    for i in 0..25 {
+        let exit = d * 0.9;
+        passes.push(DrawPass {
+            entry_diameter_mm: d,
+            exit_diameter_mm: exit,
+            strain_before: strain,
+            back_tension_mpa: 0.0,
+            die,
+        });
+        strain += 2.0 * (d / exit).ln();
+        d = exit;
+        if i == 12 {
+            strain = 0.0;
+        }
+    }
+    passes
+}
+
+fn run(law: &FlowLaw, passes: &[DrawPass], optimum: Option<Method>) -> f64 {
+    let settings = Settings::default();
+    let mut total = 0.0;
+    for p in passes {
+        let m = analyse_pass(law, p, &settings).unwrap();
+        total += m.draw_stress_mpa.sachs;
+        if let Some(method) = optimum {
+            total += optimum_semi_angle(law, p, &settings, method)
+                .unwrap()
+                .unwrap()
+                .semi_angle_deg;
+        }
+    }
+    total
+}
+
+fn main() {
+    let rounds: u32 = std::env::args()
+        .nth(1)
+        .and_then(|s| s.parse().ok())
+        .unwrap_or(20);
+    let voce = FlowLaw::voce(80.0, 470.0, 0.8).unwrap();
+    let hollomon = FlowLaw::hollomon(530.0, 0.44).unwrap();
+    let passes = core_passes();
+    let cases = [
+        ("fixed-angle/voce", &voce, None),
+        ("optimum-upper-bound/voce", &voce, Some(Method::UpperBound)),
+        ("optimum-max/voce", &voce, Some(Method::Max)),
+        ("fixed-angle/hollomon", &hollomon, None),
+        ("optimum-max/hollomon", &hollomon, Some(Method::Max)),
+    ];
+    let mut out = Vec::new();
+    for (name, law, optimum) in cases {
+        // Calibrate a batch to about 20 ms, then keep the best of `rounds` batches.
+        let mut batch = 1u32;
+        loop {
+            let t = Instant::now();
+            for _ in 0..batch {
+                black_box(run(black_box(law), black_box(&passes), optimum));
+            }
+            if t.elapsed().as_secs_f64() > 0.02 || batch > 1 << 20 {
+                break;
+            }
+            batch *= 2;
+        }
+        let mut best = f64::INFINITY;
+        for _ in 0..rounds {
+            let t = Instant::now();
+            for _ in 0..batch {
+                black_box(run(black_box(law), black_box(&passes), optimum));
+            }
+            best = best.min(t.elapsed().as_secs_f64() / batch as f64);
+        }
+        out.push(format!("\"{name}\": {:.4}", best * 1e6));
+    }
+    println!("{{{}}}", out.join(", "));
+}

@@ -1,0 +1,615 @@
+//! The break-risk report: table, JSON, YAML, CSV (the same names in each),
+//! and an SVG with a fan chart of the draw ratio per pass (median and the
+//! 5-95 % band against the warn and max lines) above a bar of each pass's
+//! break probability.
+
+use anyhow::{anyhow, Result};
+use coldpass::risk::{PassRisk, RiskReport};
+use plotters::prelude::*;
+use tabled::builder::Builder;
+use tabled::settings::object::Columns;
+use tabled::settings::{Alignment, Style};
+
+use super::fixed;
+use crate::report::Format;
+
+/// Renders a risk report in `format` (JSON and YAML straight from serde).
+pub fn render(rep: &RiskReport, format: Format) -> Result<Vec<u8>> {
+    Ok(match format {
+        Format::Table => table(rep).into_bytes(),
+        Format::Json => {
+            let mut s = serde_json::to_string_pretty(rep)?;
+            s.push('\n');
+            s.into_bytes()
+        }
+        Format::Yaml => serde_yaml::to_string(rep)?.into_bytes(),
+        Format::Csv => csv(rep)?,
+        Format::Html => page(rep)?.into_bytes(),
+    })
+}
+
+fn build(header: &[&str], rows: Vec<Vec<String>>) -> String {
+    let mut b = Builder::default();
+    b.push_record(header.iter().map(|s| s.to_string()));
+    for r in rows {
+        b.push_record(r);
+    }
+    let mut t = b.build();
+    t.with(Style::sharp());
+    t.modify(Columns::new(1..), Alignment::right());
+    t.to_string()
+}
+
+/// A probability in percent with its standard error: `1.23 +- 0.11`.
+fn pct_se(p: f64, se: f64) -> String {
+    if p == 0.0 {
+        "0".into()
+    } else {
+        format!("{:.2} +- {:.2}", 100.0 * p, 100.0 * se)
+    }
+}
+
+fn ratio(x: Option<f64>) -> String {
+    match x {
+        Some(_) => fixed(x, 3),
+        None => "> 2".into(),
+    }
+}
+
+fn driver(p: &PassRisk) -> String {
+    match p.drivers.first() {
+        Some(d) => format!("{} (r {:+.2})", d.input, d.correlation),
+        None => "-".into(),
+    }
+}
+
+/// The human-readable report.
+pub fn table(rep: &RiskReport) -> String {
+    let mut out = String::new();
+    if !rep.title.is_empty() {
+        out.push_str(&format!("{}\n", rep.title));
+    }
+    if !rep.material.is_empty() {
+        out.push_str(&format!("Material: {}\n", rep.material));
+    }
+    let s = &rep.summary;
+    out.push_str(&format!(
+        "Break risk under scatter: {} samples ({}, seed {}); governing method {} ({}); draw ratio warn {} / max {}\n\n",
+        s.samples,
+        rep.sampling.name(),
+        rep.seed,
+        rep.method,
+        rep.method_source,
+        rep.draw_ratio_warn,
+        rep.draw_ratio_max
+    ));
+    if !rep.scatter.is_empty() {
+        let rows = rep
+            .scatter
+            .iter()
+            .map(|i| {
+                vec![
+                    i.input.clone(),
+                    i.distribution.clone(),
+                    fixed(i.between_dies, 2),
+                    i.source.clone(),
+                ]
+            })
+            .collect();
+        out.push_str("Inputs that scatter\n");
+        out.push_str(&build(
+            &["input", "distribution", "between dies", "from"],
+            rows,
+        ));
+        out.push_str("\n\n");
+    }
+    let (header, rows) = pass_rows(rep);
+    let header: Vec<&str> = header.iter().map(String::as_str).collect();
+    out.push_str("Passes (probabilities in % +- one standard error)\n");
+    out.push_str(&build(&header, rows));
+    out.push_str("\n\nSummary\n");
+    let lines = summary_lines(rep);
+    for l in lines {
+        out.push_str(&format!("  {l}\n"));
+    }
+    if !rep.warnings.is_empty() {
+        out.push_str("\nWarnings\n");
+        for w in &rep.warnings {
+            out.push_str(&format!("  - {w}\n"));
+        }
+    }
+    out.push_str("\nNotes\n");
+    for n in &rep.notes {
+        out.push_str(&format!("  - {n}\n"));
+    }
+    out.push_str(&format!("\n{}\n\nCaution: {}\n", rep.scope, rep.caution));
+    out
+}
+
+/// The per-pass table: header and rows, shared by the table and the page.
+fn pass_rows(rep: &RiskReport) -> (Vec<String>, Vec<Vec<String>>) {
+    let power = rep
+        .passes
+        .iter()
+        .any(|p| p.over_block_power_probability.is_some());
+    let mut header = vec![
+        "step",
+        "exit mm",
+        "draw ratio",
+        "p5",
+        "p50",
+        "p95",
+        "p99",
+        "over warn %",
+        "over max %",
+        "break %",
+    ];
+    if power {
+        header.push("over block power %");
+    }
+    header.push("driven most by");
+    let rows = rep
+        .passes
+        .iter()
+        .map(|p| {
+            let mut r = vec![
+                p.step.to_string(),
+                fixed(Some(p.exit_diameter_mm), 3),
+                fixed(Some(p.draw_ratio), 3),
+                ratio(p.draw_ratio_p5),
+                ratio(p.draw_ratio_p50),
+                ratio(p.draw_ratio_p95),
+                ratio(p.draw_ratio_p99),
+                pct_se(p.over_warn_probability, p.over_warn_standard_error),
+                pct_se(p.over_max_probability, p.over_max_standard_error),
+                pct_se(p.break_probability, p.break_standard_error),
+            ];
+            if power {
+                r.push(pct_se(
+                    p.over_block_power_probability.unwrap_or(0.0),
+                    p.over_block_power_standard_error.unwrap_or(0.0),
+                ));
+            }
+            r.push(driver(p));
+            r
+        })
+        .collect();
+    (header.into_iter().map(String::from).collect(), rows)
+}
+
+/// The summary in sentences, shared by the table and the page.
+fn summary_lines(rep: &RiskReport) -> Vec<String> {
+    let s = &rep.summary;
+    let mut lines = vec![
+        format!(
+            "any pass breaks: {} %{}",
+            pct_se(s.any_break_probability, s.any_break_standard_error),
+            s.any_break_upper_95
+                .map(|u| format!(" (below {:.2e} at 95 %)", u))
+                .unwrap_or_default()
+        ),
+        format!(
+            "any pass over the max line: {} %",
+            pct_se(s.any_over_max_probability, s.any_over_max_standard_error)
+        ),
+        format!(
+            "weakest pass: step {} (break {:.2} %), driven most by {}",
+            s.weakest_step,
+            100.0 * s.weakest_break_probability,
+            s.weakest_main_driver.as_deref().unwrap_or("-")
+        ),
+        format!(
+            "samples used: {} of {} ({} refused)",
+            s.samples_used, s.samples, s.samples_refused
+        ),
+    ];
+    if let Some(t) = s.target_probability {
+        lines.push(match s.draw_ratio_scale_for_target {
+            Some(k) if k < 1.0 => format!(
+                "target {t}: over it; lower every pass's draw ratio by {:.1} % (x {k:.4}), or the weakest pass to {} , to reach it",
+                100.0 * (1.0 - k),
+                fixed(s.weakest_draw_ratio_for_target, 3)
+            ),
+            Some(k) => format!(
+                "target {t}: within it, with room for every draw ratio to rise by {:.1} % (x {k:.4})",
+                100.0 * (k - 1.0)
+            ),
+            None => format!("target {t}: the margin lies past a draw ratio of 2 and cannot be placed"),
+        });
+        lines.push(format!("verdict: {}", s.verdict));
+    }
+    lines
+}
+
+/// The report page (`--format html`): the summary first, the inputs that
+/// scatter, the per-pass table with the passes whose break probability is
+/// over the target marked in words, the charts inline, notes, the scope and
+/// the caution.
+pub fn page(rep: &RiskReport) -> Result<String> {
+    use super::html::{Chart, Page, Row, Status, Table};
+    let target = rep.summary.target_probability;
+    let (header, rows) = pass_rows(rep);
+    let rows = rows
+        .into_iter()
+        .zip(&rep.passes)
+        .map(|(cells, p)| Row {
+            cells,
+            status: match target {
+                Some(t) if p.break_probability > t => Status::Over,
+                Some(_) => Status::Ok,
+                None => Status::None,
+            },
+        })
+        .collect();
+    let mut tables = Vec::new();
+    if !rep.scatter.is_empty() {
+        tables.push(Table {
+            heading: "Inputs that scatter".into(),
+            header: ["input", "distribution", "between dies", "from"]
+                .map(String::from)
+                .to_vec(),
+            rows: rep
+                .scatter
+                .iter()
+                .map(|i| Row {
+                    cells: vec![
+                        i.input.clone(),
+                        i.distribution.clone(),
+                        fixed(i.between_dies, 2),
+                        i.source.clone(),
+                    ],
+                    status: Status::None,
+                })
+                .collect(),
+            page_break_before: false,
+        });
+    }
+    tables.insert(
+        0,
+        Table {
+            heading: "Passes (probabilities in % +- one standard error)".into(),
+            header,
+            rows,
+            page_break_before: false,
+        },
+    );
+    let svg = String::from_utf8(svg(rep)?).map_err(|e| anyhow!("chart text: {e}"))?;
+    let s = &rep.summary;
+    let mut notes: Vec<String> = rep
+        .warnings
+        .iter()
+        .map(|w| format!("Warning: {w}"))
+        .collect();
+    notes.extend(rep.notes.iter().cloned());
+    notes.push(rep.scope.clone());
+    let page = Page {
+        title: if rep.title.is_empty() {
+            "Break risk under scatter".into()
+        } else {
+            rep.title.clone()
+        },
+        kind: "Break risk under scatter".into(),
+        facts: vec![
+            ("Material".into(), rep.material.clone()),
+            (
+                "Governing method".into(),
+                format!("{} ({})", rep.method, rep.method_source),
+            ),
+            (
+                "Samples".into(),
+                format!("{} ({}, seed {})", s.samples, rep.sampling.name(), rep.seed),
+            ),
+        ],
+        verdict: target.map(|_| {
+            let status = if rep.is_over_target() {
+                Status::Over
+            } else {
+                Status::Ok
+            };
+            (status, s.verdict.clone())
+        }),
+        summary: summary_lines(rep)
+            .into_iter()
+            .map(|l| match l.split_once(": ") {
+                Some((k, v)) => (k.to_string(), v.to_string()),
+                None => (String::new(), l),
+            })
+            .collect(),
+        tables,
+        charts: vec![Chart {
+            caption: "Draw ratio per pass (median and 5-95 % band against the warn and max lines) and each pass's break probability".into(),
+            svg,
+        }],
+        notes,
+        caution: rep.caution.clone(),
+    };
+    Ok(super::html::render(&page))
+}
+
+const CSV_HEADER: [&str; 31] = [
+    "step",
+    "exit_diameter_mm",
+    "draw_ratio",
+    "break_probability",
+    "break_standard_error",
+    "over_warn_probability",
+    "over_warn_standard_error",
+    "over_max_probability",
+    "over_max_standard_error",
+    "over_block_power_probability",
+    "over_block_power_standard_error",
+    "draw_ratio_p5",
+    "draw_ratio_p50",
+    "draw_ratio_p95",
+    "draw_ratio_p99",
+    "lowest_draw_ratio",
+    "highest_draw_ratio",
+    "main_driver",
+    "main_driver_correlation",
+    "method",
+    "sampling",
+    "seed",
+    "samples",
+    "samples_used",
+    "any_break_probability",
+    "any_break_standard_error",
+    "weakest_step",
+    "verdict",
+    "title",
+    "scope",
+    "caution",
+];
+
+fn num(x: Option<f64>) -> String {
+    x.map(|v| v.to_string()).unwrap_or_default()
+}
+
+/// CSV: one row per draw pass, the JSON names; the schedule's figures, the
+/// scope and the caution on every row.
+pub fn csv(rep: &RiskReport) -> Result<Vec<u8>> {
+    let mut w = ::csv::Writer::from_writer(Vec::new());
+    w.write_record(CSV_HEADER)?;
+    let s = &rep.summary;
+    for p in &rep.passes {
+        let d = p.drivers.first();
+        w.write_record([
+            p.step.to_string(),
+            p.exit_diameter_mm.to_string(),
+            p.draw_ratio.to_string(),
+            p.break_probability.to_string(),
+            p.break_standard_error.to_string(),
+            p.over_warn_probability.to_string(),
+            p.over_warn_standard_error.to_string(),
+            p.over_max_probability.to_string(),
+            p.over_max_standard_error.to_string(),
+            num(p.over_block_power_probability),
+            num(p.over_block_power_standard_error),
+            num(p.draw_ratio_p5),
+            num(p.draw_ratio_p50),
+            num(p.draw_ratio_p95),
+            num(p.draw_ratio_p99),
+            p.lowest_draw_ratio.to_string(),
+            p.highest_draw_ratio.to_string(),
+            d.map(|d| d.input.clone()).unwrap_or_default(),
+            num(d.map(|d| d.correlation)),
+            rep.method.to_string(),
+            rep.sampling.name().to_string(),
+            rep.seed.to_string(),
+            s.samples.to_string(),
+            s.samples_used.to_string(),
+            s.any_break_probability.to_string(),
+            s.any_break_standard_error.to_string(),
+            s.weakest_step.to_string(),
+            s.verdict.clone(),
+            rep.title.clone(),
+            rep.scope.clone(),
+            rep.caution.clone(),
+        ])?;
+    }
+    w.into_inner().map_err(|e| anyhow!("writing CSV: {e}"))
+}
+
+const BAND: RGBColor = RGBColor(31, 119, 180);
+const WARN: RGBColor = RGBColor(230, 145, 20);
+const OVER: RGBColor = RGBColor(200, 30, 30);
+const GREY: RGBColor = RGBColor(110, 110, 110);
+
+fn err<E: std::fmt::Display>(e: E) -> anyhow::Error {
+    anyhow!("drawing the chart: {e}")
+}
+
+/// The chart: draw-ratio fan per pass, and break probability per pass.
+pub fn svg(rep: &RiskReport) -> Result<Vec<u8>> {
+    let mut buf = String::new();
+    {
+        let root = SVGBackend::with_string(&mut buf, (960, 760)).into_drawing_area();
+        root.fill(&WHITE).map_err(err)?;
+        let title = if rep.title.is_empty() {
+            "Schedule".to_string()
+        } else {
+            rep.title.clone()
+        };
+        let root = root
+            .titled(
+                &format!(
+                    "{title}  ({} samples, method {})",
+                    rep.summary.samples, rep.method
+                ),
+                ("sans-serif", 18),
+            )
+            .map_err(err)?;
+        let (upper, lower) = root.split_vertically(430);
+        fan(rep, &upper)?;
+        bars(rep, &lower)?;
+        root.present().map_err(err)?;
+    }
+    Ok(buf.into_bytes())
+}
+
+fn step_labels(rep: &RiskReport, x: f64) -> String {
+    let k = x.round();
+    if (x - k).abs() < 1e-6 && k >= 1.0 && k as usize <= rep.passes.len() {
+        rep.passes[k as usize - 1].step.to_string()
+    } else {
+        String::new()
+    }
+}
+
+fn fan(rep: &RiskReport, area: &DrawingArea<SVGBackend, plotters::coord::Shift>) -> Result<()> {
+    let n = rep.passes.len() as f64;
+    let cap = |x: Option<f64>| x.unwrap_or(2.0);
+    let top = rep
+        .passes
+        .iter()
+        .map(|p| cap(p.draw_ratio_p95).max(p.draw_ratio))
+        .fold(rep.draw_ratio_max.max(1.0), f64::max)
+        * 1.1;
+    let room = 0.12 * n.max(8.0);
+    let mut chart = ChartBuilder::on(area)
+        .caption(
+            "Draw ratio per pass: median and 5-95 % band under scatter",
+            ("sans-serif", 15),
+        )
+        .margin(12)
+        .x_label_area_size(36)
+        .y_label_area_size(56)
+        .build_cartesian_2d(0.5f64..n + 0.5 + room, 0f64..top)
+        .map_err(err)?;
+    chart
+        .configure_mesh()
+        .x_desc("step")
+        .y_desc("draw ratio")
+        .x_labels((n + room).ceil() as usize + 1)
+        .x_label_formatter(&|x| step_labels(rep, *x))
+        .light_line_style(WHITE.mix(0.0))
+        .draw()
+        .map_err(err)?;
+    let xs = |i: usize| (i + 1) as f64;
+    let mut band: Vec<(f64, f64)> = rep
+        .passes
+        .iter()
+        .enumerate()
+        .map(|(i, p)| (xs(i), cap(p.draw_ratio_p95)))
+        .collect();
+    band.extend(
+        rep.passes
+            .iter()
+            .enumerate()
+            .rev()
+            .map(|(i, p)| (xs(i), cap(p.draw_ratio_p5))),
+    );
+    chart
+        .draw_series(std::iter::once(Polygon::new(band, BAND.mix(0.25).filled())))
+        .map_err(err)?
+        .label("5-95 % band")
+        .legend(|(x, y)| Rectangle::new([(x, y - 5), (x + 12, y + 5)], BAND.mix(0.25).filled()));
+    chart
+        .draw_series(LineSeries::new(
+            rep.passes
+                .iter()
+                .enumerate()
+                .map(|(i, p)| (xs(i), cap(p.draw_ratio_p50))),
+            BAND.stroke_width(2),
+        ))
+        .map_err(err)?
+        .label("median")
+        .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 12, y)], BAND.stroke_width(2)));
+    chart
+        .draw_series(
+            rep.passes
+                .iter()
+                .enumerate()
+                .map(|(i, p)| Circle::new((xs(i), p.draw_ratio), 3, BLACK.filled())),
+        )
+        .map_err(err)?
+        .label("nominal (check)")
+        .legend(|(x, y)| Circle::new((x + 6, y), 3, BLACK.filled()));
+    for (level, colour, label) in [
+        (
+            rep.draw_ratio_warn,
+            WARN,
+            format!("warn {}", rep.draw_ratio_warn),
+        ),
+        (
+            rep.draw_ratio_max,
+            OVER,
+            format!("max {}", rep.draw_ratio_max),
+        ),
+        (1.0, GREY, "break 1".to_string()),
+    ] {
+        chart
+            .draw_series(DashedLineSeries::new(
+                vec![(0.5, level), (n + 0.5 + room, level)],
+                10,
+                5,
+                colour.stroke_width(2),
+            ))
+            .map_err(err)?;
+        chart
+            .draw_series(std::iter::once(Text::new(
+                label,
+                (n + 0.55, level + top * 0.035),
+                ("sans-serif", 13).into_font().color(&colour),
+            )))
+            .map_err(err)?;
+    }
+    chart
+        .configure_series_labels()
+        .position(SeriesLabelPosition::UpperLeft)
+        .background_style(WHITE.mix(0.85))
+        .border_style(BLACK)
+        .draw()
+        .map_err(err)?;
+    Ok(())
+}
+
+fn bars(rep: &RiskReport, area: &DrawingArea<SVGBackend, plotters::coord::Shift>) -> Result<()> {
+    let n = rep.passes.len() as f64;
+    let top_pct = rep
+        .passes
+        .iter()
+        .map(|p| 100.0 * (p.break_probability + 2.0 * p.break_standard_error))
+        .fold(0.0, f64::max)
+        .max(0.1)
+        * 1.15;
+    let room = 0.12 * n.max(8.0);
+    let mut chart = ChartBuilder::on(area)
+        .caption(
+            "Break probability per pass (%, bar; whisker: +- 2 standard errors)",
+            ("sans-serif", 15),
+        )
+        .margin(12)
+        .x_label_area_size(36)
+        .y_label_area_size(56)
+        .build_cartesian_2d(0.5f64..n + 0.5 + room, 0f64..top_pct)
+        .map_err(err)?;
+    chart
+        .configure_mesh()
+        .x_desc("step")
+        .y_desc("break probability, %")
+        .x_labels((n + room).ceil() as usize + 1)
+        .x_label_formatter(&|x| step_labels(rep, *x))
+        .light_line_style(WHITE.mix(0.0))
+        .draw()
+        .map_err(err)?;
+    chart
+        .draw_series(rep.passes.iter().enumerate().map(|(i, p)| {
+            let x = (i + 1) as f64;
+            Rectangle::new(
+                [(x - 0.3, 0.0), (x + 0.3, 100.0 * p.break_probability)],
+                OVER.mix(0.8).filled(),
+            )
+        }))
+        .map_err(err)?;
+    chart
+        .draw_series(rep.passes.iter().enumerate().map(|(i, p)| {
+            let x = (i + 1) as f64;
+            let (lo, hi) = (
+                (100.0 * (p.break_probability - 2.0 * p.break_standard_error)).max(0.0),
+                100.0 * (p.break_probability + 2.0 * p.break_standard_error),
+            );
+            PathElement::new(vec![(x, lo), (x, hi)], BLACK.stroke_width(1))
+        }))
+        .map_err(err)?;
+    Ok(())
+}

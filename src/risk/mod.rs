@@ -1,0 +1,702 @@
+//! Break risk under scatter: how likely each pass of a schedule is to break
+//! when friction, the flow law, rod and die sizes, back tension and die
+//! angles scatter as the schedule's `scatter` block (and the material's
+//! `flow_scatter`) say.
+//!
+//! Each sample moves every scattering input by a draw from its distribution
+//! ([`distribution`]), placed by Latin hypercube or Monte Carlo ([`plan`]),
+//! and evaluates every pass with the core's pass mechanics ([`model`]),
+//! as `check` does. A pass breaks in a sample when its governing drawing
+//! stress reaches the drawn wire's strength, taken (as `check` takes it) as
+//! the exit flow stress: draw ratio `>= 1`. Statistics stream ([`stats`]):
+//! memory does not grow with the number of samples, and chunks of
+//! [`CHUNK_SAMPLES`] are merged in index order, so a seed gives the same
+//! figures to the last bit whatever the thread count.
+//!
+//! The driver of each pass is the input whose standard normal score has the
+//! largest Pearson correlation with the pass's draw ratio; its square is the
+//! share of the ratio's variance a straight line in that input alone explains
+//! (for small, near-linear scatter: the first-order sensitivity index,
+//! Saltelli et al., *Global Sensitivity Analysis*, 2008; from memory). It is
+//! chosen over a rank correlation because it streams: Spearman's needs every
+//! sample's rank.
+
+pub mod distribution;
+pub mod model;
+pub mod plan;
+pub mod scatter;
+pub mod stats;
+
+use std::sync::atomic::{AtomicBool, Ordering};
+
+use rayon::prelude::*;
+use serde::Serialize;
+
+use crate::evaluation::{self, EvaluateOptions, StepKind};
+use crate::param::ParamError;
+use crate::pass::Method;
+use crate::schedule::{ScheduleError, ScheduleFile};
+
+pub use distribution::{Law, Shape, Spread};
+pub use model::{Driver, Model, SampleOut, Spreads};
+pub use plan::{Plan, Sampling};
+pub use scatter::{Correlation, DieSpread, FlowScatter, FlowSpread, Scatter};
+pub use stats::Tally;
+
+/// Default number of samples: enough for the 95 % interval of a 1 %
+/// probability to be within +-20 % of it, `1.96^2 x 0.99 / (0.01 x 0.2^2)
+/// = 9,508`, rounded up.
+pub const DEFAULT_SAMPLES: u64 = 10_000;
+/// Most samples a run may ask for (the histogram counts are 32-bit).
+pub const MAX_SAMPLES: u64 = 1_000_000_000;
+/// Samples per chunk: the unit of work and of the fixed-order merge.
+pub const CHUNK_SAMPLES: u64 = 1024;
+/// Chunks evaluated in parallel between two merges (bounds the memory).
+pub const CHUNKS_PER_ROUND: u64 = 16;
+/// Relative half-width of the 95 % interval above which a probability is
+/// reported as too uncertain.
+pub const RELATIVE_PRECISION: f64 = 0.2;
+
+/// What the figures are and are not: printed on every risk report.
+pub const SCOPE: &str = "These probabilities are those of the model under the scatter given: how often the calculated drawing stress reaches the calculated wire strength. They are not a forecast of breaks per tonne: breaks from inclusions, surface defects, welds, die chips and handling are outside the model.";
+
+/// Why a risk run cannot be done.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+pub enum RiskError {
+    /// The schedule itself is not valid (the same error `check` gives).
+    #[error(transparent)]
+    Schedule(#[from] ScheduleError),
+    /// A value of the scatter block or an option is out of range.
+    #[error("{0}")]
+    Value(#[from] ParamError),
+    /// The nominal schedule could not be evaluated.
+    #[error("evaluating the nominal schedule: {0}")]
+    Nominal(String),
+    /// Stopped by the caller before the end.
+    #[error("stopped before the end: nothing was reported")]
+    Cancelled,
+}
+
+/// How to run.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct RiskOptions {
+    /// Number of samples.
+    pub samples: u64,
+    /// Seed of the random streams.
+    pub seed: u64,
+    /// Latin hypercube or Monte Carlo.
+    pub sampling: Sampling,
+    /// Governing method, overriding the file.
+    pub method: Option<Method>,
+    /// Break probability of the whole schedule to design for.
+    pub target_probability: Option<f64>,
+}
+
+impl Default for RiskOptions {
+    fn default() -> Self {
+        Self {
+            samples: DEFAULT_SAMPLES,
+            seed: 0,
+            sampling: Sampling::LatinHypercube,
+            method: None,
+            target_probability: None,
+        }
+    }
+}
+
+/// One input that scatters, as the report lists it.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct InputScatter {
+    /// The input, in the file's key (`friction`, `flow.k_mpa`).
+    pub input: String,
+    /// Its distribution in words.
+    pub distribution: String,
+    /// Correlation between dies, for per-die inputs.
+    pub between_dies: Option<f64>,
+    /// Where it came from: `scatter` or `material.flow_scatter`.
+    pub source: String,
+}
+
+/// An input's correlation with a pass's draw ratio.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct DriverShare {
+    /// The input (`friction`, `die diameter`, `flow k_mpa`, ...).
+    pub input: String,
+    /// Pearson correlation of its normal score with the draw ratio.
+    pub correlation: f64,
+    /// `correlation^2`: share of the ratio's variance a line in this input alone explains.
+    pub share: f64,
+}
+
+/// One draw pass under scatter.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct PassRisk {
+    /// Step number in the schedule, from 1 (as `check`).
+    pub step: usize,
+    /// Nominal exit diameter, mm.
+    pub exit_diameter_mm: f64,
+    /// Nominal draw ratio (exactly `check`'s).
+    pub draw_ratio: f64,
+    /// Probability that the draw ratio reaches 1 (break).
+    pub break_probability: f64,
+    /// Its standard error.
+    pub break_standard_error: f64,
+    /// Probability of a draw ratio over `draw_ratio_warn`.
+    pub over_warn_probability: f64,
+    /// Its standard error.
+    pub over_warn_standard_error: f64,
+    /// Probability of a draw ratio over `draw_ratio_max`.
+    pub over_max_probability: f64,
+    /// Its standard error.
+    pub over_max_standard_error: f64,
+    /// Probability that the pulling power is over `line.block_power_kw`.
+    pub over_block_power_probability: Option<f64>,
+    /// Its standard error.
+    pub over_block_power_standard_error: Option<f64>,
+    /// 5th percentile of the draw ratio.
+    pub draw_ratio_p5: Option<f64>,
+    /// Median draw ratio.
+    pub draw_ratio_p50: Option<f64>,
+    /// 95th percentile.
+    pub draw_ratio_p95: Option<f64>,
+    /// 99th percentile.
+    pub draw_ratio_p99: Option<f64>,
+    /// Least draw ratio sampled.
+    pub lowest_draw_ratio: f64,
+    /// Greatest draw ratio sampled.
+    pub highest_draw_ratio: f64,
+    /// The input with the largest |correlation|.
+    pub main_driver: Option<String>,
+    /// Every scattering input that reaches this pass, largest |correlation| first.
+    pub drivers: Vec<DriverShare>,
+}
+
+/// The whole schedule under scatter.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct RiskSummary {
+    /// Samples asked for.
+    pub samples: u64,
+    /// Samples evaluated.
+    pub samples_used: u64,
+    /// Samples whose drawn inputs the model refused (counted in no probability).
+    pub samples_refused: u64,
+    /// Probability that at least one pass breaks.
+    pub any_break_probability: f64,
+    /// Its standard error.
+    pub any_break_standard_error: f64,
+    /// With no break sampled: the 95 % upper bound `3 / N`.
+    pub any_break_upper_95: Option<f64>,
+    /// Probability that at least one pass is over the max line.
+    pub any_over_max_probability: f64,
+    /// Its standard error.
+    pub any_over_max_standard_error: f64,
+    /// The pass most likely to break (on equal probability: the higher 99th percentile).
+    pub weakest_step: usize,
+    /// Its break probability.
+    pub weakest_break_probability: f64,
+    /// What drives it.
+    pub weakest_main_driver: Option<String>,
+    /// The schedule break probability asked for.
+    pub target_probability: Option<f64>,
+    /// The `1 - target` quantile of each sample's greatest draw ratio.
+    pub worst_draw_ratio_at_target: Option<f64>,
+    /// Factor on every pass's draw ratio that brings the schedule to the
+    /// target (`1 / worst_draw_ratio_at_target`; below 1: a cut is needed).
+    pub draw_ratio_scale_for_target: Option<f64>,
+    /// Nominal draw ratio the weakest pass alone would need for its own break
+    /// probability to be at the target.
+    pub weakest_draw_ratio_for_target: Option<f64>,
+    /// `within-target`, `over-target`, or `no-target`.
+    pub verdict: String,
+}
+
+/// The neutral report every format renders.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct RiskReport {
+    /// The file's title.
+    pub title: String,
+    /// The material's label.
+    pub material: String,
+    /// The governing method.
+    pub method: Method,
+    /// Where it came from.
+    pub method_source: String,
+    /// `latin-hypercube` or `monte-carlo`.
+    pub sampling: Sampling,
+    /// The seed.
+    pub seed: u64,
+    /// The warn line.
+    pub draw_ratio_warn: f64,
+    /// The max line.
+    pub draw_ratio_max: f64,
+    /// The inputs that scatter.
+    pub scatter: Vec<InputScatter>,
+    /// One per draw pass.
+    pub passes: Vec<PassRisk>,
+    /// The summary.
+    pub summary: RiskSummary,
+    /// Too few samples, refused samples, uncertain scatter.
+    pub warnings: Vec<String>,
+    /// How the figures were made.
+    pub notes: Vec<String>,
+    /// What the probability is and is not.
+    pub scope: String,
+    /// The caution footer.
+    pub caution: String,
+}
+
+impl RiskReport {
+    /// Whether the schedule's break probability is over the target.
+    pub fn is_over_target(&self) -> bool {
+        self.summary.verdict == "over-target"
+    }
+}
+
+/// The spreads of `file` and the list the report shows.
+pub fn spreads(file: &ScheduleFile) -> Result<(Spreads, Vec<InputScatter>), RiskError> {
+    let none = Scatter::default();
+    let sc = file.scatter.as_ref().unwrap_or(&none);
+    let mut listed = Vec::new();
+    let mut die = |s: &Option<Spread>, key: &str| -> Result<Option<DieSpread>, RiskError> {
+        let Some(s) = s else { return Ok(None) };
+        let d = scatter::die_spread(s, &format!("scatter.{key}"))?;
+        listed.push(InputScatter {
+            input: key.to_string(),
+            distribution: d.law.describe(),
+            between_dies: Some(d.between_dies),
+            source: "scatter".into(),
+        });
+        Ok(Some(d))
+    };
+    let friction = die(&sc.friction, "friction")?;
+    let semi_angle = die(&sc.semi_angle_deg, "semi_angle_deg")?;
+    let die_diameter = die(&sc.die_diameter_mm, "die_diameter_mm")?;
+    let back_tension = die(&sc.back_tension_mpa, "back_tension_mpa")?;
+    let rod = match &sc.rod_diameter_mm {
+        Some(s) => {
+            let l = scatter::single_spread(s, "scatter.rod_diameter_mm")?;
+            listed.push(InputScatter {
+                input: "rod_diameter_mm".into(),
+                distribution: l.describe(),
+                between_dies: None,
+                source: "scatter".into(),
+            });
+            Some(l)
+        }
+        None => None,
+    };
+    let (flow_scatter, source) = match (&sc.flow, &file.material.flow_scatter) {
+        (Some(f), _) => (Some(f), "scatter.flow"),
+        (None, Some(f)) => (Some(f), "material.flow_scatter"),
+        (None, None) => (None, ""),
+    };
+    let flow = match flow_scatter {
+        Some(f) => {
+            let s = f.spread(&file.material.flow, source)?;
+            for (k, sd) in s.keys.iter().zip(&s.sd) {
+                listed.push(InputScatter {
+                    input: format!("flow.{k}"),
+                    distribution: format!("normal, sd {sd}"),
+                    between_dies: None,
+                    source: source.to_string(),
+                });
+            }
+            Some(s)
+        }
+        None => None,
+    };
+    Ok((
+        Spreads {
+            rod,
+            friction,
+            semi_angle,
+            die_diameter,
+            back_tension,
+            flow,
+        },
+        listed,
+    ))
+}
+
+/// The name of a driver in the report.
+pub fn driver_name(model: &Model, d: Driver) -> String {
+    match d {
+        Driver::RodDiameter => "rod diameter".into(),
+        Driver::EntryDiameter => "entry diameter".into(),
+        Driver::DieDiameter => "die diameter".into(),
+        Driver::Friction => "friction".into(),
+        Driver::SemiAngle => "semi-angle".into(),
+        Driver::BackTension => "back tension".into(),
+        Driver::Flow(k) => format!(
+            "flow {}",
+            model.flow_spread.as_ref().map_or("?", |f| f.0.keys[k])
+        ),
+    }
+}
+
+/// Evaluates chunk `c` of the plan into a tally.
+pub fn run_chunk(model: &Model, plan: &Plan, nominal: &[f64], c: u64) -> Tally {
+    let lo = c * CHUNK_SAMPLES;
+    let hi = (lo + CHUNK_SAMPLES).min(plan.samples);
+    let nd = model.drivers.len();
+    let (warn, max) = model.lines();
+    let block = model.block_power_kw().filter(|_| model.has_block_power());
+    let mut t = Tally::new(model.draws, nd);
+    let mut rng = plan.generator();
+    let mut z = vec![0.0; model.dims];
+    let mut out = model.buffer();
+    for i in lo..hi {
+        plan.scores(i, &mut rng, &mut z);
+        if let Err(why) = model.evaluate(Some(&z), &mut out) {
+            t.rejected += 1;
+            if t.first_rejection.is_none() {
+                t.first_rejection = Some((i, why));
+            }
+            continue;
+        }
+        t.accepted += 1;
+        let mut worst = f64::NEG_INFINITY;
+        let (mut broke, mut over) = (false, false);
+        for (j, p) in t.passes.iter_mut().enumerate() {
+            let r = out.ratio[j];
+            worst = worst.max(r);
+            p.ratio.add(r);
+            if r >= 1.0 {
+                p.breaks += 1;
+                broke = true;
+            }
+            if r > warn {
+                p.over_warn += 1;
+            }
+            if r > max {
+                p.over_max += 1;
+                over = true;
+            }
+            if let Some(b) = block {
+                if out.power_kw[j] > b {
+                    p.over_power += 1;
+                }
+            }
+            p.lowest = p.lowest.min(r);
+            p.highest = p.highest.max(r);
+            let y = r - nominal[j];
+            p.sum_y += y;
+            p.sum_yy += y * y;
+            for (acc, &zk) in p
+                .inputs
+                .iter_mut()
+                .zip(&out.driver_scores[j * nd..(j + 1) * nd])
+            {
+                acc[0] += zk;
+                acc[1] += zk * zk;
+                acc[2] += zk * y;
+            }
+        }
+        t.any_break += broke as u64;
+        t.any_over_max += over as u64;
+        t.worst.add(worst);
+        t.worst_range = (t.worst_range.0.min(worst), t.worst_range.1.max(worst));
+    }
+    t
+}
+
+/// Samples the whole plan: chunks in parallel, merged in index order.
+/// `progress` is told the samples done after each round; `cancel` is read
+/// between rounds.
+pub fn sample(
+    model: &Model,
+    plan: &Plan,
+    nominal: &[f64],
+    progress: &(dyn Fn(u64) + Sync),
+    cancel: &AtomicBool,
+) -> Result<Tally, RiskError> {
+    let chunks = plan.samples.div_ceil(CHUNK_SAMPLES);
+    let mut total = Tally::new(model.draws, model.drivers.len());
+    let mut c = 0;
+    while c < chunks {
+        if cancel.load(Ordering::Relaxed) {
+            return Err(RiskError::Cancelled);
+        }
+        let end = (c + CHUNKS_PER_ROUND).min(chunks);
+        let round: Vec<Tally> = (c..end)
+            .into_par_iter()
+            .map(|k| run_chunk(model, plan, nominal, k))
+            .collect();
+        for t in &round {
+            total.merge(t);
+        }
+        c = end;
+        progress((c * CHUNK_SAMPLES).min(plan.samples));
+    }
+    if cancel.load(Ordering::Relaxed) {
+        return Err(RiskError::Cancelled);
+    }
+    Ok(total)
+}
+
+fn check_options(o: &RiskOptions) -> Result<(), RiskError> {
+    if !(1..=MAX_SAMPLES).contains(&o.samples) {
+        return Err(ParamError::new(
+            "--samples",
+            o.samples,
+            format!("must be in [1, {MAX_SAMPLES}]"),
+        )
+        .into());
+    }
+    if let Some(p) = o.target_probability {
+        crate::param::within(
+            "--target-probability",
+            p,
+            0.0,
+            1.0,
+            crate::param::Ends::Open,
+        )?;
+    }
+    Ok(())
+}
+
+/// Runs the break-risk assessment of `file` (a schedule with passes).
+pub fn assess(
+    file: &ScheduleFile,
+    options: &RiskOptions,
+    progress: &(dyn Fn(u64) + Sync),
+    cancel: &AtomicBool,
+) -> Result<RiskReport, RiskError> {
+    check_options(options)?;
+    let check = evaluation::evaluate(
+        file,
+        &EvaluateOptions {
+            method: options.method,
+        },
+    )?;
+    let (spreads, listed) = spreads(file)?;
+    let model = Model::new(file, check.method, spreads).map_err(RiskError::Nominal)?;
+    let mut nominal_out = model.buffer();
+    model
+        .evaluate(None, &mut nominal_out)
+        .map_err(RiskError::Nominal)?;
+    let nominal = nominal_out.ratio.clone();
+    let plan = Plan::new(options.samples, options.seed, options.sampling, model.dims);
+    let tally = sample(&model, &plan, &nominal, progress, cancel)?;
+    Ok(build_report(
+        file, options, &check, &model, &listed, &nominal, &tally,
+    ))
+}
+
+fn build_report(
+    file: &ScheduleFile,
+    options: &RiskOptions,
+    check: &evaluation::ScheduleReport,
+    model: &Model,
+    listed: &[InputScatter],
+    nominal: &[f64],
+    t: &Tally,
+) -> RiskReport {
+    let n = t.accepted;
+    let mut warnings = Vec::new();
+    let draw_rows: Vec<&evaluation::StepReport> = check
+        .passes
+        .iter()
+        .filter(|r| r.kind == StepKind::Draw)
+        .collect();
+    let has_power = model.has_block_power();
+    let mut passes = Vec::with_capacity(model.draws);
+    for (j, p) in t.passes.iter().enumerate() {
+        let row = draw_rows[j];
+        let (pb, sb) = stats::probability(p.breaks, n);
+        let (pw, sw) = stats::probability(p.over_warn, n);
+        let (pm, sm) = stats::probability(p.over_max, n);
+        let power = has_power.then(|| stats::probability(p.over_power, n));
+        let q = |x: f64| p.ratio.quantile(x, n, p.lowest, p.highest);
+        let mut drivers: Vec<DriverShare> = model
+            .drivers
+            .iter()
+            .enumerate()
+            .filter_map(|(k, d)| {
+                p.correlation(k, n).map(|r| DriverShare {
+                    input: driver_name(model, *d),
+                    correlation: r,
+                    share: r * r,
+                })
+            })
+            .collect();
+        // Largest |r| first; equal ones keep the model's order (stable sort).
+        drivers.sort_by(|a, b| b.share.total_cmp(&a.share));
+        if p.breaks > 0 && 1.96 * sb > RELATIVE_PRECISION * pb {
+            warnings.push(format!(
+                "step {}: {} breaks in {} samples: the 95 % interval of its break probability is +-{:.0} %; --samples {} would bring it to +-20 %",
+                row.step,
+                p.breaks,
+                n,
+                100.0 * 1.96 * sb / pb,
+                stats::samples_for(pb, RELATIVE_PRECISION)
+            ));
+        }
+        passes.push(PassRisk {
+            step: row.step,
+            exit_diameter_mm: row.exit_diameter_mm,
+            draw_ratio: nominal[j],
+            break_probability: pb,
+            break_standard_error: sb,
+            over_warn_probability: pw,
+            over_warn_standard_error: sw,
+            over_max_probability: pm,
+            over_max_standard_error: sm,
+            over_block_power_probability: power.map(|x| x.0),
+            over_block_power_standard_error: power.map(|x| x.1),
+            draw_ratio_p5: q(0.05),
+            draw_ratio_p50: q(0.50),
+            draw_ratio_p95: q(0.95),
+            draw_ratio_p99: q(0.99),
+            lowest_draw_ratio: p.lowest,
+            highest_draw_ratio: p.highest,
+            main_driver: drivers.first().map(|d| d.input.clone()),
+            drivers,
+        });
+    }
+    let weakest = passes
+        .iter()
+        .enumerate()
+        .fold(None, |best: Option<usize>, (j, p)| match best {
+            None => Some(j),
+            Some(b) => {
+                let pb = &passes[b];
+                let key = |x: &PassRisk| {
+                    (
+                        x.break_probability,
+                        x.draw_ratio_p99.unwrap_or(f64::INFINITY),
+                        x.draw_ratio,
+                    )
+                };
+                if key(p).partial_cmp(&key(pb)) == Some(std::cmp::Ordering::Greater) {
+                    Some(j)
+                } else {
+                    Some(b)
+                }
+            }
+        })
+        .unwrap_or(0);
+    let (pa, sa) = stats::probability(t.any_break, n);
+    let (po, so) = stats::probability(t.any_over_max, n);
+    let upper = (t.any_break == 0 && n > 0).then(|| 3.0 / n as f64);
+    if let Some(u) = upper {
+        warnings.push(format!(
+            "no sample broke: the schedule's break probability is below {u:.2e} (95 %, rule of three), not zero"
+        ));
+    } else if 1.96 * sa > RELATIVE_PRECISION * pa {
+        warnings.push(format!(
+            "{} of {} samples broke: the 95 % interval of the schedule's break probability is +-{:.0} %; --samples {} would bring it to +-20 %",
+            t.any_break,
+            n,
+            100.0 * 1.96 * sa / pa,
+            stats::samples_for(pa, RELATIVE_PRECISION)
+        ));
+    }
+    let target = options.target_probability;
+    let (at_target, scale, weakest_needs) = match target {
+        Some(tp) if n > 0 => {
+            if tp * (n as f64) < 10.0 {
+                warnings.push(format!(
+                    "--target-probability {tp}: {n} samples put fewer than 10 beyond it, too few to place the margin; use --samples {} or more",
+                    (10.0 / tp).ceil() as u64
+                ));
+            }
+            let qa = t
+                .worst
+                .quantile(1.0 - tp, n, t.worst_range.0, t.worst_range.1);
+            let wp = &t.passes[weakest];
+            let qw = wp.ratio.quantile(1.0 - tp, n, wp.lowest, wp.highest);
+            (qa, qa.map(|q| 1.0 / q), qw.map(|q| nominal[weakest] / q))
+        }
+        _ => (None, None, None),
+    };
+    let verdict = match target {
+        None => "no-target",
+        Some(tp) if pa > tp => "over-target",
+        Some(_) => "within-target",
+    };
+    if t.rejected > 0 {
+        let (i, why) = t.first_rejection.clone().unwrap_or_default();
+        warnings.push(format!(
+            "{} of {} samples drew inputs the model refuses and are left out of every probability (first: sample {i}, {why}); narrow or truncate the scatter",
+            t.rejected, options.samples
+        ));
+    }
+    if let Some((f, _)) = &model.flow_spread {
+        if let Some(k) = f.specimens.filter(|&k| k < 5) {
+            warnings.push(format!(
+                "the flow-law scatter comes from {k} specimens: a standard deviation from so few is itself uncertain by about +-{:.0} % (1/sqrt(2(n-1)))",
+                100.0 / (2.0 * (k.max(2) as f64 - 1.0)).sqrt()
+            ));
+        }
+    }
+    if listed.is_empty() {
+        warnings.push("nothing scatters (no scatter block, no material.flow_scatter): every sample is the nominal schedule".into());
+    }
+    let mut notes = vec![
+        format!(
+            "break: the governing drawing stress ({}) reaches the exit flow stress, the model's drawn-wire strength (draw ratio >= 1); for lightly drawn wire the tensile strength is higher, so the figure errs high",
+            check.method
+        ),
+        format!(
+            "{} samples by {} with seed {}; standard errors are binomial, sqrt(p(1-p)/N), an upper figure for a Latin hypercube",
+            options.samples,
+            options.sampling.name(),
+            options.seed
+        ),
+        "percentiles from a histogram of draw-ratio bins 0.0005 wide (within 0.00025 of the sample percentile)".into(),
+        "driver: the input whose normal score correlates most with the pass's draw ratio (Pearson); its share is the correlation squared".into(),
+    ];
+    if file.scatter.as_ref().is_some_and(|s| s.friction.is_some()) {
+        notes.push(
+            "a given shear factor m moves with the friction in proportion (capped at 1)".into(),
+        );
+    }
+    if model.flow_spread.is_some() && file.material.annealed_flow.is_some() {
+        notes.push(
+            "the flow-law deviations of a sample apply to the annealed law too (same heat)".into(),
+        );
+    }
+    if file
+        .scatter
+        .as_ref()
+        .is_some_and(|s| s.back_tension_mpa.is_some())
+    {
+        notes.push("back tension scatters only on the passes that have one".into());
+    }
+    let wp = &passes[weakest];
+    RiskReport {
+        title: check.title.clone(),
+        material: check.material.clone(),
+        method: check.method,
+        method_source: check.method_source.clone(),
+        sampling: options.sampling,
+        seed: options.seed,
+        draw_ratio_warn: check.draw_ratio_warn,
+        draw_ratio_max: check.draw_ratio_max,
+        scatter: listed.to_vec(),
+        summary: RiskSummary {
+            samples: options.samples,
+            samples_used: n,
+            samples_refused: t.rejected,
+            any_break_probability: pa,
+            any_break_standard_error: sa,
+            any_break_upper_95: upper,
+            any_over_max_probability: po,
+            any_over_max_standard_error: so,
+            weakest_step: wp.step,
+            weakest_break_probability: wp.break_probability,
+            weakest_main_driver: wp.main_driver.clone(),
+            target_probability: target,
+            worst_draw_ratio_at_target: at_target,
+            draw_ratio_scale_for_target: scale,
+            weakest_draw_ratio_for_target: weakest_needs,
+            verdict: verdict.into(),
+        },
+        passes,
+        warnings,
+        notes,
+        scope: SCOPE.into(),
+        caution: evaluation::CAUTION.into(),
+    }
+}

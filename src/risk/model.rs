@@ -1,0 +1,446 @@
+//! One sample of a schedule: the nominal steps with each scattering input
+//! moved by its drawn score, evaluated pass by pass with the core's
+//! [`analyse_pass`] exactly as `check` does (the draw ratio is the governing
+//! drawing stress over the exit flow stress; power is force times the exit
+//! speed by volume constancy from the finish speed).
+
+use crate::flow::{FlowLaw, FlowLawSpec};
+use crate::pass::{self, analyse_pass, Die, DrawPass, Method, Settings};
+use crate::schedule::{ScheduleFile, Step};
+
+use super::distribution::Law;
+use super::scatter::{flow_param, DieSpread, FlowSpread};
+
+/// A nominal step.
+#[derive(Debug, Clone, PartialEq)]
+pub enum NominalStep {
+    /// An anneal.
+    Anneal,
+    /// A draw pass.
+    Draw {
+        /// Step number in the schedule, from 1.
+        step: usize,
+        /// Exit (die) diameter, mm.
+        exit_diameter_mm: f64,
+        /// The die.
+        die: Die,
+        /// Back tension, MPa (0 when the pass has none).
+        back_tension_mpa: f64,
+    },
+}
+
+/// A per-die input and where its scores sit in a sample's score vector:
+/// one common score and one per draw pass.
+#[derive(Debug, Clone, PartialEq)]
+pub struct DieInput {
+    /// The distribution and correlation between dies.
+    pub spread: DieSpread,
+    /// Index of the common score; the pass scores follow it.
+    pub first_dim: usize,
+}
+
+impl DieInput {
+    /// The standard normal score of pass `j`: `sqrt(r) z0 + sqrt(1 - r) e_j`.
+    fn score(&self, z: &[f64], j: usize) -> f64 {
+        let r = self.spread.between_dies;
+        r.sqrt() * z[self.first_dim] + (1.0 - r).sqrt() * z[self.first_dim + 1 + j]
+    }
+}
+
+/// The inputs whose correlation with each pass's draw ratio is reported.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Driver {
+    /// The rod diameter (sets the strain accumulated before each pass).
+    RodDiameter,
+    /// The entry diameter: the previous die, or the rod for the first pass.
+    EntryDiameter,
+    /// This pass's die diameter.
+    DieDiameter,
+    /// This die's friction.
+    Friction,
+    /// This die's semi-angle.
+    SemiAngle,
+    /// This pass's back tension.
+    BackTension,
+    /// A flow-law parameter (index into the flow keys).
+    Flow(usize),
+}
+
+/// The schedule prepared for sampling.
+#[derive(Debug, Clone)]
+pub struct Model {
+    /// The governing method.
+    pub method: Method,
+    settings: Settings,
+    /// The steps.
+    pub steps: Vec<NominalStep>,
+    /// Number of draw passes.
+    pub draws: usize,
+    start_diameter_mm: f64,
+    start_strain: f64,
+    flow: FlowLaw,
+    annealed: FlowLaw,
+    finish_speed_m_s: Option<f64>,
+    block_power_kw: Option<f64>,
+    warn: f64,
+    max: f64,
+    /// Rod diameter spread and its score index.
+    pub rod: Option<(Law, usize)>,
+    /// Friction.
+    pub friction: Option<DieInput>,
+    /// Semi-angle.
+    pub semi_angle: Option<DieInput>,
+    /// Die diameter.
+    pub die_diameter: Option<DieInput>,
+    /// Back tension.
+    pub back_tension: Option<DieInput>,
+    /// Flow-law scatter and the index of its first score.
+    pub flow_spread: Option<(FlowSpread, usize)>,
+    /// Number of scores a sample needs.
+    pub dims: usize,
+    /// The inputs reported as drivers, in report order.
+    pub drivers: Vec<Driver>,
+}
+
+/// What one sample gives per draw pass.
+#[derive(Debug, Clone, Default)]
+pub struct SampleOut {
+    /// Draw ratio per draw pass.
+    pub ratio: Vec<f64>,
+    /// Power per draw pass, kW (with a line).
+    pub power_kw: Vec<f64>,
+    /// Per draw pass, the score of each driver (`drivers` order), flattened.
+    pub driver_scores: Vec<f64>,
+    exits: Vec<f64>,
+    flow_dev: Vec<f64>,
+}
+
+/// The spreads a model samples.
+#[derive(Debug, Clone, Default)]
+pub struct Spreads {
+    /// Rod diameter.
+    pub rod: Option<Law>,
+    /// Friction.
+    pub friction: Option<DieSpread>,
+    /// Semi-angle.
+    pub semi_angle: Option<DieSpread>,
+    /// Die diameter.
+    pub die_diameter: Option<DieSpread>,
+    /// Back tension.
+    pub back_tension: Option<DieSpread>,
+    /// Flow law.
+    pub flow: Option<FlowSpread>,
+}
+
+impl Model {
+    /// Prepares `file` (already checked by `evaluation::evaluate`) with `method`.
+    pub fn new(file: &ScheduleFile, method: Method, spreads: Spreads) -> Result<Self, String> {
+        let mut steps = Vec::with_capacity(file.passes.len());
+        for (i, s) in file.passes.iter().enumerate() {
+            steps.push(match s {
+                Step::Anneal => NominalStep::Anneal,
+                Step::Draw(d) => {
+                    let angle = d
+                        .die
+                        .semi_angle_deg
+                        .or(file.dies.semi_angle_deg)
+                        .ok_or_else(|| format!("passes[{i}]: no semi_angle_deg"))?;
+                    NominalStep::Draw {
+                        step: i + 1,
+                        exit_diameter_mm: d.exit.mm(),
+                        die: file.die_for(&d.die, angle).map_err(|e| e.to_string())?,
+                        back_tension_mpa: d.back_tension_mpa.unwrap_or(0.0),
+                    }
+                }
+            });
+        }
+        let draws = steps
+            .iter()
+            .filter(|s| matches!(s, NominalStep::Draw { .. }))
+            .count();
+        let mut dims = 0;
+        let mut drivers = Vec::new();
+        let rod = spreads.rod.map(|l| {
+            dims += 1;
+            drivers.push(Driver::RodDiameter);
+            drivers.push(Driver::EntryDiameter);
+            (l, dims - 1)
+        });
+        fn die_input(
+            s: Option<DieSpread>,
+            d: Driver,
+            dims: &mut usize,
+            drivers: &mut Vec<Driver>,
+            draws: usize,
+        ) -> Option<DieInput> {
+            s.map(|spread| {
+                let first_dim = *dims;
+                *dims += 1 + draws;
+                drivers.push(d);
+                DieInput { spread, first_dim }
+            })
+        }
+        let die_diameter = die_input(
+            spreads.die_diameter,
+            Driver::DieDiameter,
+            &mut dims,
+            &mut drivers,
+            draws,
+        );
+        if die_diameter.is_some() && rod.is_none() {
+            drivers.push(Driver::EntryDiameter);
+        }
+        let friction = die_input(
+            spreads.friction,
+            Driver::Friction,
+            &mut dims,
+            &mut drivers,
+            draws,
+        );
+        let semi_angle = die_input(
+            spreads.semi_angle,
+            Driver::SemiAngle,
+            &mut dims,
+            &mut drivers,
+            draws,
+        );
+        let back_tension = die_input(
+            spreads.back_tension,
+            Driver::BackTension,
+            &mut dims,
+            &mut drivers,
+            draws,
+        );
+        let flow_spread = spreads.flow.map(|f| {
+            let first = dims;
+            dims += f.keys.len();
+            for k in 0..f.keys.len() {
+                drivers.push(Driver::Flow(k));
+            }
+            (f, first)
+        });
+        let line = file.line.as_ref();
+        Ok(Self {
+            method,
+            settings: Settings {
+                redundant_c: file
+                    .limits
+                    .redundant_c
+                    .unwrap_or(Settings::default().redundant_c),
+            },
+            steps,
+            draws,
+            start_diameter_mm: file.start.diameter.mm(),
+            start_strain: file.start.strain,
+            flow: file.material.flow.clone(),
+            annealed: file.annealed_law().clone(),
+            finish_speed_m_s: line.map(|l| l.finish_speed_m_s),
+            block_power_kw: line.and_then(|l| l.block_power_kw),
+            warn: file.limits.draw_ratio_warn,
+            max: file.limits.draw_ratio_max,
+            rod,
+            friction,
+            semi_angle,
+            die_diameter,
+            back_tension,
+            flow_spread,
+            dims,
+            drivers,
+        })
+    }
+
+    /// The warn and max lines.
+    pub fn lines(&self) -> (f64, f64) {
+        (self.warn, self.max)
+    }
+
+    /// Whether the model has a block power to compare with.
+    pub fn has_block_power(&self) -> bool {
+        self.block_power_kw.is_some() && self.finish_speed_m_s.is_some()
+    }
+
+    /// The block power limit, kW.
+    pub fn block_power_kw(&self) -> Option<f64> {
+        self.block_power_kw
+    }
+
+    /// A buffer sized for this model.
+    pub fn buffer(&self) -> SampleOut {
+        SampleOut {
+            ratio: vec![0.0; self.draws],
+            power_kw: vec![0.0; self.draws],
+            driver_scores: vec![0.0; self.draws * self.drivers.len()],
+            exits: vec![0.0; self.draws],
+            flow_dev: vec![0.0; self.flow_spread.as_ref().map_or(0, |f| f.0.keys.len())],
+        }
+    }
+
+    fn law_with(&self, base: &FlowLaw, dev: &[f64]) -> Result<FlowLaw, String> {
+        let Some((f, _)) = &self.flow_spread else {
+            return Ok(base.clone());
+        };
+        let mut spec: FlowLawSpec = base.spec().clone();
+        for (k, d) in f.keys.iter().zip(dev) {
+            if let Some(p) = flow_param(&mut spec, k) {
+                *p += d;
+            }
+        }
+        FlowLaw::new(spec).map_err(|e| format!("flow law: {e}"))
+    }
+
+    /// Evaluates one sample with scores `z` (or the nominal schedule with
+    /// `None`) into `out`; an `Err` names why the drawn inputs were refused.
+    pub fn evaluate(&self, z: Option<&[f64]>, out: &mut SampleOut) -> Result<(), String> {
+        // Flow-law deviations d = L z.
+        let laws = match (z, &self.flow_spread) {
+            (Some(z), Some((f, first))) => {
+                let n = f.keys.len();
+                for i in 0..n {
+                    out.flow_dev[i] = (0..=i)
+                        .map(|k| f.cholesky[i * n + k] * z[first + k])
+                        .sum::<f64>();
+                }
+                let flow = self.law_with(&self.flow, &out.flow_dev)?;
+                let annealed = self.law_with(&self.annealed, &out.flow_dev)?;
+                Some((flow, annealed))
+            }
+            _ => None,
+        };
+        let (flow, annealed) = match &laws {
+            Some((a, b)) => (a, b),
+            None => (&self.flow, &self.annealed),
+        };
+        let rod_z = match (z, &self.rod) {
+            (Some(z), Some((_, k))) => z[*k],
+            _ => 0.0,
+        };
+        let start = match (z, &self.rod) {
+            (Some(_), Some((law, _))) => law.value(self.start_diameter_mm, rod_z),
+            _ => self.start_diameter_mm,
+        };
+        fn per_die<'m>(
+            z: Option<&[f64]>,
+            input: &'m Option<DieInput>,
+            j: usize,
+        ) -> Option<(f64, &'m Law)> {
+            match (z, input) {
+                (Some(z), Some(d)) => Some((d.score(z, j), &d.spread.law)),
+                _ => None,
+            }
+        }
+        // Exit diameters first: the finish size sets every pass's speed.
+        let mut j = 0;
+        for s in &self.steps {
+            if let NominalStep::Draw {
+                exit_diameter_mm, ..
+            } = s
+            {
+                out.exits[j] = match per_die(z, &self.die_diameter, j) {
+                    Some((zj, law)) => law.value(*exit_diameter_mm, zj),
+                    None => *exit_diameter_mm,
+                };
+                j += 1;
+            }
+        }
+        let finish = out.exits.last().copied().unwrap_or(start);
+        let nd = self.drivers.len();
+        let mut law = flow;
+        let mut strain = self.start_strain;
+        let mut d_in = start;
+        let mut j = 0;
+        for s in &self.steps {
+            let (step, die, back) = match s {
+                NominalStep::Anneal => {
+                    law = annealed;
+                    strain = 0.0;
+                    continue;
+                }
+                NominalStep::Draw {
+                    step,
+                    die,
+                    back_tension_mpa,
+                    ..
+                } => (*step, die, *back_tension_mpa),
+            };
+            let d_out = out.exits[j];
+            if d_out >= d_in {
+                return Err(format!(
+                    "step {step}: drawn die diameter {d_out:.4} mm is not below the entry {d_in:.4} mm"
+                ));
+            }
+            let mut die = *die;
+            let fr = per_die(z, &self.friction, j);
+            if let Some((zj, l)) = fr {
+                let mu = l.value(die.friction, zj);
+                if let Some(m) = die.friction_factor {
+                    if die.friction > 0.0 {
+                        die.friction_factor = Some((m * mu / die.friction).min(1.0));
+                    }
+                }
+                die.friction = mu;
+            }
+            let an = per_die(z, &self.semi_angle, j);
+            if let Some((zj, l)) = an {
+                die.semi_angle_deg = l.value(die.semi_angle_deg, zj);
+            }
+            let bt = if back > 0.0 {
+                per_die(z, &self.back_tension, j)
+            } else {
+                None
+            };
+            let back = match bt {
+                Some((zj, l)) => l.value(back, zj),
+                None => back,
+            };
+            let dp = DrawPass {
+                entry_diameter_mm: d_in,
+                exit_diameter_mm: d_out,
+                strain_before: strain,
+                back_tension_mpa: back,
+                die,
+            };
+            let mech =
+                analyse_pass(law, &dp, &self.settings).map_err(|e| format!("step {step}: {e}"))?;
+            let governing = mech
+                .draw_stress_mpa
+                .get(self.method)
+                .map_err(|e| format!("step {step}: {e}"))?;
+            out.ratio[j] = governing / mech.flow_stress_exit_mpa;
+            if let Some(v) = self.finish_speed_m_s {
+                out.power_kw[j] = pass::power_kw(
+                    pass::force_kn(governing, d_out),
+                    v * (finish / d_out).powi(2),
+                );
+            }
+            if z.is_some() {
+                let row = &mut out.driver_scores[j * nd..(j + 1) * nd];
+                for (slot, d) in row.iter_mut().zip(&self.drivers) {
+                    *slot = match *d {
+                        Driver::RodDiameter => rod_z,
+                        Driver::EntryDiameter => {
+                            if j == 0 {
+                                rod_z
+                            } else {
+                                per_die(z, &self.die_diameter, j - 1).map_or(0.0, |x| x.0)
+                            }
+                        }
+                        Driver::DieDiameter => {
+                            per_die(z, &self.die_diameter, j).map_or(0.0, |x| x.0)
+                        }
+                        Driver::Friction => fr.map_or(0.0, |x| x.0),
+                        Driver::SemiAngle => an.map_or(0.0, |x| x.0),
+                        Driver::BackTension => bt.map_or(0.0, |x| x.0),
+                        Driver::Flow(k) => match &self.flow_spread {
+                            Some((f, _)) if f.sd[k] > 0.0 => out.flow_dev[k] / f.sd[k],
+                            _ => 0.0,
+                        },
+                    };
+                }
+            }
+            strain = mech.strain_after;
+            d_in = d_out;
+            j += 1;
+        }
+        Ok(())
+    }
+}

@@ -1,0 +1,173 @@
+//! Tables that fit: the default view fits 120 columns for a 25-pass schedule,
+//! `--wide` gives every column, `--columns` picks by JSON key, notes wrap to
+//! the width, and `--units us` converts every figure it shows and names the
+//! unit in the header.
+
+mod common;
+
+use assert_cmd::Command;
+use common::{coldpass, root, stderr, stdout};
+
+const P25: &str = "tests/data/ux-25-passes.yaml";
+
+/// Runs coldpass with `COLUMNS` set, as a terminal of that width would.
+fn at_width(width: usize, args: &[&str]) -> std::process::Output {
+    Command::cargo_bin("coldpass")
+        .unwrap()
+        .current_dir(root(""))
+        .env("COLUMNS", width.to_string())
+        .args(args)
+        .output()
+        .unwrap()
+}
+
+fn widest(text: &str) -> usize {
+    text.lines().map(|l| l.chars().count()).max().unwrap_or(0)
+}
+
+fn json(path: &str) -> serde_json::Value {
+    serde_json::from_str(&stdout(&coldpass(&["check", path, "--format", "json"]))).unwrap()
+}
+
+#[test]
+fn the_default_table_of_a_25_pass_schedule_fits_120_columns() {
+    let out = at_width(120, &["check", P25]);
+    assert_eq!(
+        out.status.code(),
+        Some(3),
+        "the layout schedule is over on purpose"
+    );
+    let text = stdout(&out);
+    assert!(
+        widest(&text) <= 120,
+        "widest line {}:\n{text}",
+        widest(&text)
+    );
+    // Every step is a row: 25 draws and the anneal.
+    for step in 1..=26 {
+        assert!(
+            text.lines().any(|l| l.starts_with(&format!("│ {step} "))),
+            "step {step} missing:\n{text}"
+        );
+    }
+    // The figures read first are there, and the flags of the flagged passes.
+    for word in [
+        "reduction",
+        "draw",
+        "ratio",
+        "power",
+        "over-draw-limit",
+        "near-draw-limit",
+    ] {
+        assert!(text.contains(word), "{word} missing");
+    }
+    assert!(text.contains("Caution:"));
+}
+
+#[test]
+fn notes_and_the_caution_wrap_to_a_narrow_terminal() {
+    let text = stdout(&at_width(80, &["check", P25]));
+    let after_table = text.split("Notes\n").nth(1).expect("notes");
+    assert!(widest(after_table) <= 80, "{after_table}");
+    assert!(after_table.contains("Caution:"));
+}
+
+#[test]
+fn wide_shows_every_column() {
+    let text = stdout(&at_width(120, &["check", P25, "--wide"]));
+    for header in [
+        "semi-angle deg",
+        "optimum deg",
+        "elongation",
+        "Delta",
+        "sachs MPa",
+        "upper-bound MPa",
+        "force kN",
+        "exit speed m/s",
+        "temperature rise C",
+        "entry mm",
+    ] {
+        assert!(
+            text.contains(header),
+            "{header} missing from --wide:\n{text}"
+        );
+    }
+}
+
+#[test]
+fn columns_picks_by_json_key_and_names_the_allowed_keys_on_a_wrong_one() {
+    let text = stdout(&at_width(
+        120,
+        &[
+            "check",
+            P25,
+            "--columns",
+            "step,exit_diameter_mm,draw_ratio",
+        ],
+    ));
+    let header = text.lines().find(|l| l.starts_with("│ step")).unwrap();
+    assert!(
+        header.contains("exit") && header.contains("draw"),
+        "{header}"
+    );
+    assert!(!header.contains("reduction"), "{header}");
+    // The draw ratio of step 21 as the JSON has it, to three decimals.
+    let j = json(P25);
+    let r21 = j["passes"][20]["draw_ratio"].as_f64().unwrap();
+    assert!(text.contains(&format!("{r21:.3}")), "{text}");
+
+    let bad = coldpass(&["check", P25, "--columns", "step,speed"]);
+    assert_eq!(bad.status.code(), Some(1));
+    let e = stderr(&bad);
+    assert!(e.contains("'speed'") && e.contains("exit_speed_m_s"), "{e}");
+    assert_eq!(e.lines().count(), 1, "{e}");
+}
+
+#[test]
+fn us_units_convert_every_figure_and_name_the_unit() {
+    let j = json(P25);
+    let text = stdout(&at_width(
+        200,
+        &[
+            "check",
+            P25,
+            "--units",
+            "us",
+            "--columns",
+            "step,exit_diameter_mm,flow_stress_exit_mpa,force_kn,exit_speed_m_s,power_kw,wire_temperature_c",
+        ],
+    ));
+    for unit in ["in", "ksi", "lbf", "ft/min", "hp", "F"] {
+        assert!(
+            text.lines().any(|l| l.split(['│', ' ']).any(|w| w == unit)),
+            "header unit {unit} missing:\n{text}"
+        );
+    }
+    let row = text
+        .lines()
+        .find(|l| l.starts_with("│ 5 "))
+        .expect("step 5 row");
+    let cells: Vec<f64> = row
+        .split('│')
+        .filter_map(|c| c.trim().parse().ok())
+        .collect();
+    let p = &j["passes"][4];
+    let f = |k: &str| p[k].as_f64().unwrap();
+    // NIST SP 811 (2008) Appendix B: 1 in = 25.4 mm, 1 psi = 6.894 757 kPa,
+    // 1 lbf = 4.448 222 N, 1 ft/min = 5.08e-3 m/s, 1 hp = 745.6999 W, F = 1.8 C + 32.
+    let expect = [
+        5.0,
+        f("exit_diameter_mm") / 25.4,
+        f("flow_stress_exit_mpa") / 6.894_757,
+        f("force_kn") * 1000.0 / 4.448_222,
+        f("exit_speed_m_s") / 5.08e-3,
+        f("power_kw") * 1000.0 / 745.6999,
+        f("wire_temperature_c") * 1.8 + 32.0,
+    ];
+    // Shown to 4, 1, 0, 0, 1 and 0 decimals: within half the last digit.
+    let half = [0.0, 5e-5, 0.05, 0.5, 0.5, 0.05, 0.5];
+    assert_eq!(cells.len(), expect.len(), "{row}");
+    for ((got, want), tol) in cells.iter().zip(expect).zip(half) {
+        assert!((got - want).abs() <= tol + 1e-9, "{got} vs {want} in {row}");
+    }
+}
