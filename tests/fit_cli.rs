@@ -362,15 +362,22 @@ fn the_emitted_law_pastes_into_a_schedule() {
         .find(|l| l.trim_start().starts_with("flow:"))
         .unwrap();
     let indent = &flow_line[..flow_line.len() - flow_line.trim_start().len()];
-    // Only the `flow:` block: `flow_valid_to_strain` and `flow_scatter` are
-    // read by the schedule model once the check and risk branches land.
+    // The `flow:` and `flow_scatter:` blocks (the risk analysis reads the
+    // scatter's shape); `flow_valid_to_strain` waits for the schedule model
+    // to read it.
+    let mut keep = false;
     let block_text: String = text
         .lines()
         .filter(|l| !l.starts_with('#'))
-        .skip_while(|l| !l.starts_with("flow:"))
-        .take_while(|l| l.starts_with("flow:") || l.starts_with(' '))
+        .filter(|l| {
+            if !l.starts_with(' ') {
+                keep = l.starts_with("flow:") || l.starts_with("flow_scatter:");
+            }
+            keep
+        })
         .map(|l| format!("{indent}{l}\n"))
         .collect();
+    assert!(block_text.contains("flow_scatter:"), "{block_text}");
     let pasted = schedule.replacen(&format!("{flow_line}\n"), &block_text, 1);
     let path = dir.path().join("schedule.yaml");
     std::fs::write(&path, pasted).unwrap();

@@ -24,7 +24,9 @@ use crate::output;
 use crate::report::fit as report;
 use crate::report::Format;
 
-/// Largest record file `fit` reads, bytes (about 50 million points).
+/// Largest record file `fit` reads, bytes (about 50 million points): a
+/// regular file is streamed, so it may be larger than the 16 MiB other
+/// inputs are held to; a pipe or device goes through the bounded reader.
 pub const MAX_RECORD_BYTES: u64 = 1 << 30;
 
 /// Arguments of `coldpass fit`.
@@ -290,7 +292,7 @@ fn unquote(s: &str) -> &str {
         .trim()
 }
 
-fn open_record(path: &Path) -> Result<(BufReader<std::fs::File>, u64)> {
+fn open_record(path: &Path) -> Result<(Box<dyn BufRead>, u64)> {
     let meta = std::fs::metadata(path).with_context(|| format!("reading '{}'", path.display()))?;
     if meta.is_dir() {
         bail!(
@@ -300,10 +302,10 @@ fn open_record(path: &Path) -> Result<(BufReader<std::fs::File>, u64)> {
         );
     }
     if !meta.is_file() {
-        bail!(
-            "'{}' is not a regular file: fit reads tensile records from files only",
-            path.display()
-        );
+        // A pipe or a device: the project's bounded reader (at most 16 MiB, text only).
+        let text = crate::input::read_text(path)?;
+        let n = text.len() as u64;
+        return Ok((Box::new(std::io::Cursor::new(text.into_bytes())), n));
     }
     if meta.len() > MAX_RECORD_BYTES {
         bail!(
@@ -313,7 +315,7 @@ fn open_record(path: &Path) -> Result<(BufReader<std::fs::File>, u64)> {
         );
     }
     let f = std::fs::File::open(path).with_context(|| format!("reading '{}'", path.display()))?;
-    Ok((BufReader::with_capacity(1 << 16, f), meta.len()))
+    Ok((Box::new(BufReader::with_capacity(1 << 16, f)), meta.len()))
 }
 
 /// Reads the header row and chooses the two columns with `pick`, then
@@ -326,7 +328,7 @@ fn read_columns(
     let (mut reader, size) = open_record(path)?;
     let mut buf: Vec<u8> = Vec::with_capacity(256);
     let mut line_no = 0u64;
-    let read_line = |reader: &mut BufReader<std::fs::File>, buf: &mut Vec<u8>| -> Result<usize> {
+    let read_line = |reader: &mut Box<dyn BufRead>, buf: &mut Vec<u8>| -> Result<usize> {
         buf.clear();
         reader
             .read_until(b'\n', buf)
@@ -768,56 +770,8 @@ fn drawn_points(args: &FitArgs) -> Result<Vec<DrawnPoint>> {
     Ok(out)
 }
 
-/// Refuses an output that is an input, or two outputs at one path.
-fn check_paths(args: &FitArgs) -> Result<()> {
-    let outputs: Vec<(&str, &Path)> = [
-        ("-o", args.report.output.as_deref()),
-        ("--plot", args.report.plot.as_deref()),
-        ("--emit-law", args.emit_law.as_deref()),
-    ]
-    .into_iter()
-    .filter_map(|(n, p)| p.filter(|p| *p != Path::new("-")).map(|p| (n, p)))
-    .collect();
-    let canon = |p: &Path| std::fs::canonicalize(p).unwrap_or_else(|_| p.to_path_buf());
-    // Every output's folder must exist before anything is written, so that a
-    // run that cannot write its report leaves no chart or law behind.
-    for (name, p) in &outputs {
-        let dir = match p.parent() {
-            Some(d) if !d.as_os_str().is_empty() => d,
-            _ => Path::new("."),
-        };
-        if !dir.is_dir() {
-            bail!(
-                "{name} '{}': the folder '{}' does not exist; nothing was written",
-                p.display(),
-                dir.display()
-            );
-        }
-    }
-    for (i, (name, p)) in outputs.iter().enumerate() {
-        for input in &args.files {
-            if canon(p) == canon(input) {
-                bail!(
-                    "{name} '{}' is an input of this run: choose another file so the record is not overwritten",
-                    p.display()
-                );
-            }
-        }
-        for (other, q) in &outputs[i + 1..] {
-            if canon(p) == canon(q) {
-                bail!(
-                    "{name} and {other} both name '{}': give each output its own file",
-                    p.display()
-                );
-            }
-        }
-    }
-    Ok(())
-}
-
 /// Runs `coldpass fit`.
 pub fn run(args: &FitArgs) -> Result<u8> {
-    check_paths(args)?;
     let options = FitOptions {
         data: match args.data {
             DataArg::Engineering => DataKind::Engineering,

@@ -180,7 +180,7 @@ fn modulus_in_band(
         });
     }
     let (a, b, se) = line_over(strain, stress, range.clone()).ok_or(FitError::NoLinearPart)?;
-    if !(b > 0.0) {
+    if b.is_nan() || b <= 0.0 {
         return Err(FitError::NoLinearPart);
     }
     Ok((

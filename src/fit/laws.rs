@@ -279,6 +279,9 @@ pub(crate) fn flow_law_of(law: FitLaw, params: &[ParamEstimate]) -> Result<FlowL
     made.map_err(|e| e.to_string())
 }
 
+/// A covariance matrix, `None` when singular.
+type Covariance = Option<Vec<Vec<f64>>>;
+
 /// Weighted total sum of squares about the weighted mean.
 fn sst(p: &Points<'_>) -> f64 {
     let (mut sw, mut swy) = (0.0, 0.0);
@@ -895,7 +898,7 @@ pub fn fit_elastic_form(
     let ssr: f64 = (0..m).map(|i| (y[i] - model(x[i])).powi(2)).sum();
     let p = Points { x, y, extra: &[] };
     let plastic = || x.iter().filter(|&&v| e * v > yld);
-    let (names, values, cov): (&[&'static str], Vec<f64>, Option<Vec<Vec<f64>>>) = match law {
+    let (names, values, cov): (&[&'static str], Vec<f64>, Covariance) = match law {
         FitLaw::ElasticPerfectlyPlastic => {
             let mp = plastic().count() as f64;
             let var = ssr / (m as f64 - 1.0) / mp;

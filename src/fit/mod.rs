@@ -665,11 +665,11 @@ fn engineering_points(mut strain: Vec<f64>, mut stress: Vec<f64>) -> Result<FitR
     let count = (start..=imax).filter(|&i| plastic(i) > 0.0).count();
     let mut plastic_strain = Vec::with_capacity(count);
     let mut true_stress = Vec::with_capacity(count);
-    for i in start..=imax {
-        let ep = plastic(i);
+    for (&et, &st) in strain[start..=imax].iter().zip(&stress[start..=imax]) {
+        let ep = et - st / e_mpa;
         if ep > 0.0 {
             plastic_strain.push(ep);
-            true_stress.push(stress[i]);
+            true_stress.push(st);
         }
     }
     let uniform_strain = plastic(imax);
