@@ -326,7 +326,7 @@ fn ctrl_c_stops_the_run_and_writes_nothing() {
     let dir = tempfile::tempdir().unwrap();
     let out = dir.path().join("risk.json");
     let svg = dir.path().join("risk.svg");
-    let mut child = std::process::Command::new(assert_cmd::cargo::cargo_bin("coldpass"))
+    let child = std::process::Command::new(assert_cmd::cargo::cargo_bin("coldpass"))
         .current_dir(root(""))
         .args([
             "risk",

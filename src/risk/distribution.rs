@@ -337,10 +337,14 @@ impl Law {
         let size =
             |sd: Option<f64>, cv: Option<f64>| sd.unwrap_or_else(|| cv.unwrap_or(0.0) * m.abs());
         match *self {
-            Law::Normal { sd, cv } => match size(sd, cv) {
-                s if s == 0.0 => Sampler::Fixed(m),
-                s => Sampler::Normal { m, s },
-            },
+            Law::Normal { sd, cv } => {
+                let s = size(sd, cv);
+                if s == 0.0 {
+                    Sampler::Fixed(m)
+                } else {
+                    Sampler::Normal { m, s }
+                }
+            }
             Law::Lognormal { sd, cv } => {
                 let c = match (sd, cv) {
                     (Some(s), _) if m > 0.0 => s / m,

@@ -2,8 +2,12 @@
 //! moved by its drawn score, evaluated pass by pass with the core's
 //! [`analyse_pass`] exactly as `check` does (the draw ratio is the governing
 //! drawing stress over the exit flow stress; power is force times the exit
-//! speed by volume constancy from the finish speed).
+//! speed by volume constancy from the finish speed). A pass breaks when the
+//! governing drawing stress reaches the drawn wire's tensile strength from
+//! the Considere condition (`evaluation::strength`, as `check` reports it):
+//! the exit flow stress for wire drawn past its Considere strain.
 
+use crate::evaluation::strength;
 use crate::flow::{FlowLaw, FlowLawSpec};
 use crate::pass::{self, analyse_pass, Die, DrawPass, Method, Settings};
 use crate::schedule::{ScheduleFile, Step};
@@ -88,6 +92,8 @@ pub struct Model {
     start_strain: f64,
     flow: FlowLaw,
     annealed: FlowLaw,
+    /// Considere strains of the nominal laws.
+    considere: (Option<f64>, Option<f64>),
     finish_speed_m_s: Option<f64>,
     block_power_kw: Option<f64>,
     warn: f64,
@@ -115,6 +121,12 @@ pub struct Model {
 pub struct SampleOut {
     /// Draw ratio per draw pass.
     pub ratio: Vec<f64>,
+    /// Whether the pass breaks: the governing drawing stress at or over the
+    /// drawn wire's tensile strength.
+    pub breaks: Vec<bool>,
+    /// Tensile strength of the wire after each pass, MPa (Considere; the
+    /// exit flow stress when the law has no Considere strain).
+    pub tensile_strength_mpa: Vec<f64>,
     /// Power per draw pass, kW (with a line).
     pub power_kw: Vec<f64>,
     /// Per draw pass, the score of each driver (`drivers` order), flattened.
@@ -291,6 +303,10 @@ impl Model {
             start_strain: file.start.strain,
             flow: file.material.flow.clone(),
             annealed: file.annealed_law().clone(),
+            considere: (
+                strength::considere_strain(&file.material.flow),
+                strength::considere_strain(file.annealed_law()),
+            ),
             finish_speed_m_s: line.map(|l| l.finish_speed_m_s),
             block_power_kw: line.and_then(|l| l.block_power_kw),
             warn: file.limits.draw_ratio_warn,
@@ -325,6 +341,8 @@ impl Model {
     pub fn buffer(&self) -> SampleOut {
         SampleOut {
             ratio: vec![0.0; self.draws],
+            breaks: vec![false; self.draws],
+            tensile_strength_mpa: vec![0.0; self.draws],
             power_kw: vec![0.0; self.draws],
             driver_scores: vec![0.0; self.draws * self.drivers.len()],
             exits: vec![0.0; self.draws],
@@ -360,13 +378,17 @@ impl Model {
                 }
                 let flow = self.law_with(&self.flow, &out.flow_dev)?;
                 let annealed = self.law_with(&self.annealed, &out.flow_dev)?;
-                Some((flow, annealed))
+                let considere = (
+                    strength::considere_strain(&flow),
+                    strength::considere_strain(&annealed),
+                );
+                Some((flow, annealed, considere))
             }
             _ => None,
         };
-        let (flow, annealed) = match &laws {
-            Some((a, b)) => (a, b),
-            None => (&self.flow, &self.annealed),
+        let (flow, annealed, considere) = match &laws {
+            Some((a, b, c)) => (a, b, *c),
+            None => (&self.flow, &self.annealed, self.considere),
         };
         let rod_z = match (z, &self.rod) {
             (Some(z), Some((_, k))) => z[*k],
@@ -403,6 +425,7 @@ impl Model {
         let finish = out.exits.last().copied().unwrap_or(start);
         let nd = self.drivers.len();
         let mut law = flow;
+        let mut eps_u = considere.0;
         let mut strain = self.start_strain;
         let mut d_in = start;
         let mut j = 0;
@@ -410,6 +433,7 @@ impl Model {
             let (step, die, back) = match s {
                 NominalStep::Anneal => {
                     law = annealed;
+                    eps_u = considere.1;
                     strain = 0.0;
                     continue;
                 }
@@ -464,6 +488,10 @@ impl Model {
                 .get(self.method)
                 .map_err(|e| format!("step {step}: {e}"))?;
             out.ratio[j] = governing / mech.flow_stress_exit_mpa;
+            let uts = strength::tensile_strength_mpa(law, eps_u, mech.strain_after)
+                .unwrap_or(mech.flow_stress_exit_mpa);
+            out.tensile_strength_mpa[j] = uts;
+            out.breaks[j] = governing >= uts;
             if let Some(v) = self.finish_speed_m_s {
                 out.power_kw[j] = pass::power_kw(
                     pass::force_kn(governing, d_out),
