@@ -23,10 +23,8 @@ fn main() -> ExitCode {
     // A signal during a write would otherwise leave `.name.<pid>.<n>.tmp`
     // files behind: remove them, then end (the lock stays held, so no new
     // temporary file appears after the sweep).
-    let _ = ctrlc::set_handler(|| {
-        let _held = output::remove_temporaries();
-        std::process::exit(EXIT_INTERRUPTED);
-    });
+    // A long computation may ask to be told instead (output::stop_on_interrupt).
+    let _ = ctrlc::set_handler(|| output::on_interrupt(EXIT_INTERRUPTED));
     let cli = cli::Cli::parse();
     match commands::run(cli.command, <cli::Cli as clap::CommandFactory>::command) {
         Ok(status) => ExitCode::from(status),
@@ -36,8 +34,26 @@ fn main() -> ExitCode {
                 // report's own writes keep the verdict (see output.rs).
                 return ExitCode::from(1);
             }
-            eprintln!("Error: {err:#}");
+            eprintln!("Error: {}", bounded(&format!("{err:#}")));
             ExitCode::from(1)
         }
     }
+}
+
+/// Longest error message printed, characters; a value echoed from a hostile
+/// file (a 50 MB cell) is cut to its head and tail.
+const MESSAGE_CHARS: usize = 1500;
+
+/// `msg` whole when short, else its head and tail around a note of the cut.
+fn bounded(msg: &str) -> String {
+    let n = msg.chars().count();
+    if n <= MESSAGE_CHARS {
+        return msg.to_string();
+    }
+    let head: String = msg.chars().take(MESSAGE_CHARS - 300).collect();
+    let tail: String = msg.chars().skip(n - 200).collect();
+    format!(
+        "{head} ... ({} characters cut) ... {tail}",
+        n - MESSAGE_CHARS + 100
+    )
 }

@@ -29,7 +29,8 @@ use std::collections::HashMap;
 use std::fs::{self, File, OpenOptions};
 use std::io::{self, Write};
 use std::path::{Path, PathBuf};
-use std::sync::Mutex;
+use std::sync::atomic::{AtomicBool, Ordering};
+use std::sync::{Arc, Mutex};
 
 use anyhow::{anyhow, bail, Context, Result};
 use serde::Serialize;
@@ -46,6 +47,36 @@ pub fn remove_temporaries() -> std::sync::MutexGuard<'static, Vec<PathBuf>> {
         let _ = fs::remove_file(&p);
     }
     list
+}
+
+/// A long computation's stop flag: the first SIGINT/SIGTERM sets it (when no
+/// file is being written) instead of ending the process.
+static STOP_FLAG: Mutex<Option<Arc<AtomicBool>>> = Mutex::new(None);
+
+/// Asks that the next SIGINT or SIGTERM set `flag` rather than end the
+/// process, so a long computation can stop by itself and say so; a second
+/// signal ends the process as usual.
+pub fn stop_on_interrupt(flag: Arc<AtomicBool>) {
+    *STOP_FLAG.lock().unwrap_or_else(|p| p.into_inner()) = Some(flag);
+}
+
+/// What SIGINT/SIGTERM does: set the stop flag of a computation that asked
+/// for one, once, while no file is being written; otherwise remove every
+/// temporary file and end with `status`.
+pub fn on_interrupt(status: i32) {
+    let flag = STOP_FLAG.lock().unwrap_or_else(|p| p.into_inner()).take();
+    if let Some(flag) = flag {
+        let writing = !TEMPORARIES
+            .lock()
+            .unwrap_or_else(|p| p.into_inner())
+            .is_empty();
+        if !writing {
+            flag.store(true, Ordering::Relaxed);
+            return;
+        }
+    }
+    let _held = remove_temporaries();
+    std::process::exit(status);
 }
 
 fn forget_temporary(path: &Path) {

@@ -37,6 +37,9 @@ pub enum ScheduleError {
         /// The core's reason.
         problem: crate::pass::PassError,
     },
+    /// The machine cannot take the schedule (more dies than blocks, ...).
+    #[error("machine: {0}")]
+    Machine(#[from] crate::machine::MachineError),
     /// The file lacks a key that this use of it needs.
     #[error("{key} is missing: {why}")]
     Missing {
@@ -109,6 +112,10 @@ pub struct ScheduleFile {
     /// Line speed and capacity (optional).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub line: Option<Line>,
+    /// The drawing machine the schedule runs on: a machine file's path,
+    /// relative to the schedule file (the binary reads it).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub machine: Option<String>,
     /// What to design (design files only).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub target: Option<Target>,
@@ -151,6 +158,32 @@ pub struct Material {
     /// flow scatter for `coldpass risk`.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub flow_scatter: Option<crate::risk::FlowScatter>,
+    /// Yield stress of the annealed stock, MPa (for the back-tension check);
+    /// default: the law at a 0.002 offset strain.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub yield_mpa: Option<f64>,
+    /// Largest true plastic strain the flow law was fitted over (`fit` emits
+    /// it beside `flow:`); past it the law is extrapolated.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub flow_valid_to_strain: Option<f64>,
+    /// Measured tensile strengths of drawn wire (the mill's own points).
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub drawn_strengths: Vec<DrawnStrength>,
+}
+
+/// A measured tensile strength of drawn wire, at a strain or a diameter.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct DrawnStrength {
+    /// Accumulated true strain of the wire (give this or `diameter`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub strain: Option<f64>,
+    /// Wire diameter drawn from the start stock (strain
+    /// `start.strain + 2 ln(D_start/D)`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub diameter: Option<Diameter>,
+    /// Measured tensile strength, MPa.
+    pub tensile_strength_mpa: f64,
 }
 
 /// Reads a flow law, naming its key in a validation error (`flow: `n` = 1.5 ...`).
@@ -232,6 +265,10 @@ pub struct Limits {
     /// C of the redundant-work factor; default 0.21.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub redundant_c: Option<f64>,
+    /// Per-pass area reduction above which a pass is `heavy-reduction`;
+    /// default 0.30 (0.45 on a single-block machine).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub reduction_warn: Option<f64>,
 }
 
 /// Line speed and capacity.
@@ -495,6 +532,34 @@ impl ScheduleFile {
                 param::within("heat_fraction", b, 0.0, 1.0, Ends::Closed),
             )?;
         }
+        if let Some(y) = m.yield_mpa {
+            value("material.yield_mpa", param::positive("yield_mpa", y))?;
+        }
+        if let Some(e) = m.flow_valid_to_strain {
+            value(
+                "material.flow_valid_to_strain",
+                param::positive("flow_valid_to_strain", e),
+            )?;
+        }
+        for (i, p) in m.drawn_strengths.iter().enumerate() {
+            let key = |k: &str| format!("material.drawn_strengths[{i}].{k}");
+            value(
+                &key("tensile_strength_mpa"),
+                param::positive("tensile_strength_mpa", p.tensile_strength_mpa),
+            )?;
+            match (p.strain, &p.diameter) {
+                (Some(e), None) => {
+                    value(&key("strain"), param::non_negative("strain", e))?;
+                }
+                (None, Some(_)) => {}
+                _ => {
+                    return Err(ScheduleError::Missing {
+                        key: key("strain"),
+                        why: "give a point's strain or its diameter (one of them)".into(),
+                    })
+                }
+            }
+        }
         value(
             "start.strain",
             param::within("strain", self.start.strain, 0.0, STRAIN_MAX, Ends::Closed),
@@ -587,6 +652,12 @@ impl ScheduleFile {
         }
         if let Some(x) = l.redundant_c {
             value("limits.redundant_c", param::non_negative("redundant_c", x))?;
+        }
+        if let Some(x) = l.reduction_warn {
+            value(
+                "limits.reduction_warn",
+                param::within("reduction_warn", x, 0.0, 1.0, Ends::Open),
+            )?;
         }
         if l.method == Some(Method::Efficiency) && d.efficiency.is_none() {
             return Err(ScheduleError::Missing {

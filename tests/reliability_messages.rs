@@ -213,3 +213,22 @@ fn an_alias_to_no_anchor_is_named() {
         &["*nowhere", "no anchor"],
     );
 }
+
+#[test]
+fn a_50_mb_bad_cell_in_a_tensile_record_is_not_echoed_whole() {
+    let dir = tempfile::tempdir().unwrap();
+    let text = std::fs::read_to_string(root("schedules-demo/tensile-copper-rod.csv")).unwrap();
+    let mut lines: Vec<String> = text.lines().map(str::to_string).collect();
+    let k = lines.len() / 2;
+    lines[k] = format!("0.1,{}", "9".repeat(13 * 1024 * 1024) + "x");
+    let path = dir.path().join("bad.csv");
+    std::fs::write(&path, lines.join("\n")).unwrap();
+    let o = coldpass(&["fit", path.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(1));
+    let e = stderr(&o);
+    assert!(e.len() < 4000, "message of {} bytes", e.len());
+    assert!(
+        e.contains("characters cut") && e.contains("not a number"),
+        "{e}"
+    );
+}

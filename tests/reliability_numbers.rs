@@ -119,3 +119,28 @@ fn no_demo_report_holds_a_non_finite_number() {
         }
     }
 }
+
+#[test]
+fn a_report_figure_that_overflows_is_refused_by_name_not_printed() {
+    // A yield stress of 1e305 MPa is finite and positive, so it passes the
+    // law's checks; the adiabatic temperature rise beta * sigma * eps /
+    // (rho c) then exceeds f64::MAX (about 1.8e308) and the final guard
+    // names it instead of printing inf (or null in JSON).
+    let dir = tempfile::tempdir().unwrap();
+    let file = edited(
+        &dir,
+        COPPER,
+        "  flow: {law: voce, sigma0_mpa: 80, saturation_mpa: 470, eps_c: 0.8}",
+        "  flow: {law: perfectly-plastic, yield_mpa: 1e305}",
+    );
+    for format in ["table", "json", "csv"] {
+        let o = coldpass(&["check", &file, "--format", format]);
+        assert_eq!(o.status.code(), Some(1), "{}", stdout(&o));
+        assert!(stdout(&o).is_empty());
+        let e = stderr(&o);
+        assert!(
+            e.contains("passes[0].temperature_rise_c") && e.contains("inf"),
+            "{e}"
+        );
+    }
+}

@@ -6,7 +6,8 @@
 use std::path::{Path, PathBuf};
 
 use anyhow::{bail, Context, Result};
-use coldpass::evaluation::{evaluate, EvaluateOptions};
+use coldpass::evaluation::{evaluate_on, EvaluateOptions};
+use coldpass::machine;
 use coldpass::schedule;
 
 use super::check::CheckArgs;
@@ -52,16 +53,42 @@ pub fn files(args: &CheckArgs) -> Result<Vec<PathBuf>> {
     Ok(out)
 }
 
+/// The machine a schedule runs on: `explicit` (`--machine`), else the file
+/// its `machine:` key names, relative to the schedule; none without either.
+pub fn machine_of(
+    explicit: Option<&Path>,
+    schedule_path: &Path,
+    file: &schedule::ScheduleFile,
+) -> Result<Option<machine::Machine>> {
+    let path = match (explicit, &file.machine) {
+        (Some(p), _) => p.to_path_buf(),
+        (None, Some(rel)) => schedule_path
+            .parent()
+            .unwrap_or_else(|| Path::new(""))
+            .join(rel),
+        (None, None) => return Ok(None),
+    };
+    let text = crate::input::read_text(&path)
+        .with_context(|| format!("reading the machine file of '{}'", schedule_path.display()))?;
+    Ok(Some(machine::parse(&text).with_context(|| {
+        format!("reading machine '{}'", path.display())
+    })?))
+}
+
+/// Checks one file as `check FILE` would, on `--machine` or the machine its
+/// `machine:` key names (relative to that file).
 fn check_one(path: &Path, args: &CheckArgs) -> Product {
     let name = path.display().to_string();
     let result = (|| -> Result<_> {
         let text = super::check::read_schedule_text(path)?;
         let file = schedule::parse(&text).with_context(|| format!("reading schedule '{name}'"))?;
-        evaluate(
+        let machine = machine_of(args.machine.as_deref(), path, &file)?;
+        evaluate_on(
             &file,
             &EvaluateOptions {
                 method: args.method,
             },
+            machine.as_ref(),
         )
         .with_context(|| format!("checking schedule '{name}'"))
     })();

@@ -4,8 +4,9 @@ use std::path::PathBuf;
 
 use anyhow::{Context, Result};
 use clap::Args;
-use coldpass::evaluation::{evaluate, EvaluateOptions};
-use coldpass::schedule;
+use coldpass::evaluation::{evaluate_on, EvaluateOptions};
+use coldpass::machine::{self, Machine};
+use coldpass::schedule::{self, ScheduleFile};
 use coldpass::Method;
 
 use super::options::{ReportArgs, ViewArgs};
@@ -23,6 +24,9 @@ pub struct CheckArgs {
     /// Governing method, overriding the file's `limits.method`.
     #[arg(long, value_name = "NAME", value_parser = method_parser())]
     pub method: Option<Method>,
+    /// Run the schedule on this machine file (YAML), overriding the file's `machine:`.
+    #[arg(long, value_name = "FILE")]
+    pub machine: Option<PathBuf>,
     #[command(flatten)]
     pub report: ReportArgs,
     #[command(flatten)]
@@ -45,11 +49,13 @@ pub fn run(args: &CheckArgs) -> Result<u8> {
     let text = read_schedule_text(&args.file)?;
     let file = schedule::parse(&text)
         .with_context(|| format!("reading schedule '{}'", args.file.display()))?;
-    let rep = evaluate(
+    let machine = read_machine(args, &file)?;
+    let rep = evaluate_on(
         &file,
         &EvaluateOptions {
             method: args.method,
         },
+        machine.as_ref().map(|(_, m)| m),
     )
     .with_context(|| format!("checking schedule '{}'", args.file.display()))?;
     output::ensure_finite("report", &rep)?;
@@ -59,7 +65,12 @@ pub fn run(args: &CheckArgs) -> Result<u8> {
         Some(_) => Some(report::svg::schedule(&rep, &file)?),
         None => None,
     };
-    let mut outputs = output::Outputs::new(&[&args.file]);
+    // Neither the schedule nor its machine file may be overwritten by an output.
+    let mut inputs = vec![args.file.as_path()];
+    if let Some((path, _)) = &machine {
+        inputs.push(path.as_path());
+    }
+    let mut outputs = output::Outputs::new(&inputs);
     if let (Some(path), Some(svg)) = (&args.report.plot, chart) {
         outputs.file("--plot", path, svg);
     }
@@ -93,4 +104,32 @@ pub fn read_schedule_text(path: &std::path::Path) -> Result<String> {
         );
     }
     Ok(text)
+}
+
+/// The machine: `--machine FILE`, else the schedule's `machine:` path
+/// (relative to the schedule file), else none.
+pub fn read_machine(args: &CheckArgs, file: &ScheduleFile) -> Result<Option<(PathBuf, Machine)>> {
+    let path = match (&args.machine, &file.machine) {
+        (Some(p), _) => p.clone(),
+        (None, Some(rel)) => args
+            .file
+            .parent()
+            .unwrap_or_else(|| std::path::Path::new(""))
+            .join(rel),
+        (None, None) => return Ok(None),
+    };
+    let text = crate::input::read_text(&path).with_context(|| {
+        if args.machine.is_some() {
+            "reading the --machine file".to_string()
+        } else {
+            format!(
+                "reading the machine file that '{}' names (machine: {})",
+                args.file.display(),
+                file.machine.as_deref().unwrap_or_default()
+            )
+        }
+    })?;
+    let m =
+        machine::parse(&text).with_context(|| format!("reading machine '{}'", path.display()))?;
+    Ok(Some((path, m)))
 }

@@ -364,6 +364,11 @@ pub fn run(args: &FitArgs) -> Result<u8> {
         }
         None => None,
     };
+    if let Some(text) = &law_file {
+        // The law file feeds a schedule: no figure in it may be inf or NaN.
+        let tree: serde_yaml::Value = serde_yaml::from_str(text)?;
+        output::ensure_finite("law file", &tree)?;
+    }
     // Everything is built: now write.
     let mut outputs = output::Outputs::new(&[path]);
     if let (Some(p), Some(bytes)) = (&args.report.plot, chart) {

@@ -3,7 +3,7 @@
 
 use std::io::IsTerminal;
 use std::path::PathBuf;
-use std::sync::atomic::{AtomicBool, Ordering};
+use std::sync::atomic::AtomicBool;
 use std::sync::Arc;
 
 use anyhow::{Context, Result};
@@ -84,11 +84,9 @@ pub fn run(args: &RiskArgs) -> Result<u8> {
         target_probability: args.target_probability,
     };
     let cancel = Arc::new(AtomicBool::new(false));
-    {
-        let c = Arc::clone(&cancel);
-        // A second handler cannot be set in one process; ignore that case.
-        let _ = ctrlc::set_handler(move || c.store(true, Ordering::Relaxed));
-    }
+    // The process's one signal handler (main.rs) sets this flag on the first
+    // Ctrl-C; a second one ends the process.
+    output::stop_on_interrupt(Arc::clone(&cancel));
     let bar = std::io::stderr().is_terminal().then(|| {
         let b = indicatif::ProgressBar::new(args.samples);
         b.set_style(

@@ -18,9 +18,11 @@ mod flags;
 mod geometry;
 mod line;
 mod mechanics;
+pub mod strength;
 mod summary;
 
 use crate::flow::FlowLaw;
+use crate::machine::{Machine, MachineKind, MachineRun, SpeedLimit};
 use crate::pass::{self, DrawStresses, Method, Settings};
 use crate::schedule::{self, ScheduleError, ScheduleFile, Step};
 
@@ -32,9 +34,15 @@ use mechanics::{Heat, PassFigures};
 /// The caution every report carries.
 pub const CAUTION: &str = "Planning estimates only: confirm every figure by trial. Wire under tension whips when it breaks and running capstans trap hands; the machine maker's limits, local codes and licensed practice govern.";
 
-/// Accumulated strain past which the finished flow stress is taken as close to
-/// the wire's tensile strength (common practice; a judgement, not a law).
-pub const HEAVILY_DRAWN_STRAIN: f64 = 1.0;
+/// Per-pass area reduction above which a multi-die wire pass is flagged
+/// `heavy-reduction`: fine and medium wire takes 15 to 25 % a pass and
+/// larger sizes 20 to 45 % (Kalpakjian & Schmid, Manufacturing Engineering
+/// and Technology, ch. on drawing; from memory), so 30 % is the common
+/// ceiling on a multi-die machine.
+pub const REDUCTION_WARN_WIRE: f64 = 0.30;
+/// The same for a single draft on a single-block machine (bar, rod): the
+/// top of the 20 to 45 % range above.
+pub const REDUCTION_WARN_SINGLE_DRAFT: f64 = 0.45;
 
 /// A flag raised on a pass. Names are plain words, the same in every format.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize)]
@@ -54,9 +62,20 @@ pub enum Flag {
     OverBlockPower,
     /// Semi-angle more than `angle_tolerance_deg` from the optimum.
     AngleOffOptimum,
-    /// Back tension at or above the entry flow stress: the wire would yield
+    /// Back tension at or above the entry yield: the wire would yield
     /// before it reaches the die.
     BackTensionOverYield,
+    /// Area reduction of the pass above `reduction_warn` (common practice).
+    HeavyReduction,
+    /// The pass takes the wire past the strain its flow law was fitted over.
+    PastLawRange,
+    /// Capstan surface speed above the block's highest.
+    OverCapstanSpeed,
+    /// Capstan slower than the wire on it: it does not pull, and the next
+    /// capstan draws through two dies (a common cause of breaks).
+    NegativeSlip,
+    /// Slip above the machine's `slip_max`: capstan and wire wear.
+    SlipOverLimit,
 }
 
 impl Flag {
@@ -71,6 +90,11 @@ impl Flag {
             Flag::OverBlockPower => "over-block-power",
             Flag::AngleOffOptimum => "angle-off-optimum",
             Flag::BackTensionOverYield => "back-tension-over-yield",
+            Flag::HeavyReduction => "heavy-reduction",
+            Flag::PastLawRange => "past-law-range",
+            Flag::OverCapstanSpeed => "over-capstan-speed",
+            Flag::NegativeSlip => "negative-slip",
+            Flag::SlipOverLimit => "slip-over-limit",
         }
     }
 
@@ -84,6 +108,8 @@ impl Flag {
                 | Flag::TooHot
                 | Flag::OverBlockPower
                 | Flag::BackTensionOverYield
+                | Flag::OverCapstanSpeed
+                | Flag::NegativeSlip
         )
     }
 }
@@ -171,8 +197,21 @@ pub struct StepReport {
     pub power_kw: Option<f64>,
     /// Mean adiabatic temperature rise, deg C.
     pub temperature_rise_c: Option<f64>,
-    /// Mean wire temperature at the die exit, deg C.
+    /// Mean wire temperature at the die exit, deg C (on a machine: carried
+    /// from die to die through its cooling).
     pub wire_temperature_c: Option<f64>,
+    /// Mean wire temperature at the die entry, deg C.
+    pub wire_temperature_entry_c: Option<f64>,
+    /// Upper bound of the exit temperature with no cooling at all, deg C:
+    /// ambient plus the rises of every die since the last anneal.
+    pub wire_temperature_no_cooling_c: Option<f64>,
+    /// Yield the back tension is held against, MPa (the entry flow stress,
+    /// or the offset yield of annealed stock).
+    pub entry_yield_mpa: Option<f64>,
+    /// Tensile strength of the wire after the step, MPa (Considere).
+    pub tensile_strength_mpa: Option<f64>,
+    /// The machine block the die is on.
+    pub block: Option<usize>,
     /// Flags raised on this step.
     pub flags: Vec<Flag>,
 }
@@ -206,8 +245,20 @@ pub struct Summary {
     pub throughput_t_per_shift: Option<f64>,
     /// Minutes to draw one coil (with `coil_mass_kg`).
     pub coil_time_min: Option<f64>,
-    /// Sum of the capstans' net pulling power, kW (with a `line`).
+    /// Sum of the capstans' net pulling power, kW (with a `line` or a machine).
     pub total_power_kw: Option<f64>,
+    /// Tensile strength of the finished wire, MPa (Considere).
+    pub tensile_strength_mpa: Option<f64>,
+    /// Considere strain of the finishing law (where `d sigma/d eps = sigma`).
+    pub considere_strain: Option<f64>,
+    /// Highest finish speed the machine allows, m/s (with a machine).
+    pub attainable_speed_m_s: Option<f64>,
+    /// The block that limits the speed (with a machine).
+    pub binding_block: Option<usize>,
+    /// The limit that binds: `motor-rating`, `capstan-speed` or `wire-temperature`.
+    pub binding_limit: Option<SpeedLimit>,
+    /// Tonnes per shift at the attainable speed (with a machine).
+    pub attainable_t_per_shift: Option<f64>,
     /// `ok`, `warn` or `over`.
     pub verdict: Verdict,
 }
@@ -233,6 +284,10 @@ pub struct ScheduleReport {
     pub passes: Vec<StepReport>,
     /// The summary.
     pub summary: Summary,
+    /// The run on the machine, block by block (with a machine).
+    pub machine: Option<MachineRun>,
+    /// The law against the mill's measured strengths of drawn wire.
+    pub strength_checks: Vec<StrengthCheck>,
     /// The caution footer.
     pub caution: String,
 }
@@ -242,6 +297,19 @@ impl ScheduleReport {
     pub fn is_over(&self) -> bool {
         self.summary.verdict == Verdict::Over
     }
+}
+
+/// A measured strength of drawn wire against the law's estimate.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct StrengthCheck {
+    /// Accumulated true strain of the point.
+    pub strain: f64,
+    /// Measured tensile strength, MPa.
+    pub measured_mpa: f64,
+    /// The law's tensile strength there (Considere), MPa.
+    pub predicted_mpa: f64,
+    /// `(predicted - measured) / measured`.
+    pub difference: f64,
 }
 
 /// Where the governing method is chosen.
@@ -264,13 +332,32 @@ pub(crate) fn pass_error(i: usize, source: pass::PassError) -> ScheduleError {
     }
 }
 
-/// Evaluates every step of `file` (see the module documentation for the
-/// assumptions): a pipeline of the five stages, each in its own file.
+/// Evaluates every step of `file` on its line alone (see the module
+/// documentation for the assumptions).
 pub fn evaluate(
     file: &ScheduleFile,
     options: &EvaluateOptions,
 ) -> Result<ScheduleReport, ScheduleError> {
+    evaluate_on(file, options, None)
+}
+
+/// Evaluates every step of `file`, on `machine` when one is given: a
+/// pipeline of the five stages, each in its own file.
+pub fn evaluate_on(
+    file: &ScheduleFile,
+    options: &EvaluateOptions,
+    machine: Option<&Machine>,
+) -> Result<ScheduleReport, ScheduleError> {
     refuse_without_draws(file)?;
+    if let Some(m) = machine {
+        refuse_anneal_inside_run(file)?;
+        let draws = file
+            .passes
+            .iter()
+            .filter(|s| matches!(s, Step::Draw(_)))
+            .count();
+        m.check_fit(draws)?;
+    }
     let (method, method_source) = governing_method(file, options);
     let mut notes = Vec::new();
     if method_source == "default" {
@@ -293,20 +380,52 @@ pub fn evaluate(
             .heat_fraction
             .unwrap_or(schedule::DEFAULT_HEAT_FRACTION),
     };
+    let temperature_max_c = match (
+        limits.wire_temperature_max_c,
+        machine.and_then(|m| m.wire_temperature_max_c),
+    ) {
+        (Some(a), Some(b)) => Some(a.min(b)),
+        (a, b) => a.or(b),
+    };
     let flag_limits = FlagLimits {
         angle_tolerance_deg: limits
             .angle_tolerance_deg
             .unwrap_or(schedule::DEFAULT_ANGLE_TOLERANCE_DEG),
+        reduction_warn: limits.reduction_warn.unwrap_or(
+            if machine.is_some_and(|m| m.kind == MachineKind::SingleBlock) {
+                REDUCTION_WARN_SINGLE_DRAFT
+            } else {
+                REDUCTION_WARN_WIRE
+            },
+        ),
+        temperature_max_c,
+        slip_max: machine.map(|m| m.slip_limit()),
+        block_power_kw: if machine.is_some() {
+            None
+        } else {
+            file.line.as_ref().and_then(|l| l.block_power_kw)
+        },
     };
     let finish_d = geometry::finish_diameter_mm(file);
+    let considere = Considere {
+        flow: strength::considere_strain(&file.material.flow),
+        annealed: strength::considere_strain(file.annealed_law()),
+    };
 
     // 1. Geometry and strain.
-    let planned = geometry::plan_steps(file, method == Method::Efficiency)?;
+    let dancers: Vec<Option<f64>> = machine
+        .map(|m| m.blocks.iter().map(|b| b.dancer_back_tension_mpa).collect())
+        .unwrap_or_default();
+    let planned = geometry::plan_steps(file, method == Method::Efficiency, &dancers)?;
     // 2. Mechanics per pass.
     let figures = planned
         .iter()
         .map(|p| match p {
-            Planned::Draw(d) => mechanics::analyse(d, &settings, method, heat).map(Some),
+            Planned::Draw(d) => {
+                let eps_u = considere.of(file, d.law);
+                mechanics::analyse(d, &settings, method, heat, file.material.yield_mpa, eps_u)
+                    .map(Some)
+            }
             Planned::Anneal { .. } => Ok(None),
         })
         .collect::<Result<Vec<_>, _>>()?;
@@ -322,23 +441,71 @@ pub fn evaluate(
             ));
         }
     }
-    // 3. Line (and machine).
+    // 3. Line and machine.
     let line = file.line.as_ref();
-    let line_figures = line::run_line(&planned, &figures, line, finish_d, ambient);
+    let run = match machine {
+        Some(m) => Some(line::run_machine(
+            m,
+            &planned,
+            &figures,
+            line.map(|l| l.finish_speed_m_s),
+            ambient,
+            temperature_max_c,
+        )?),
+        None => None,
+    };
+    let speed = line
+        .map(|l| l.finish_speed_m_s)
+        .or(run.as_ref().map(|r| r.running_speed_m_s));
+    let line_figures = line::run_line(&planned, &figures, speed, finish_d, ambient, run.as_ref());
     // 4. Flags.
     let rows = build_rows(file, flag_limits, &planned, &figures, &line_figures);
-    if let Some(limit) = file.material.cold_work_limit {
-        if let Some(r) = rows.iter().find(|r| r.flags.contains(&Flag::AnnealDue)) {
-            notes.push(format!(
-                "cold-work limit {limit} is passed at step {}: schedule an anneal before it",
-                r.step
-            ));
+    notes.extend(flag_notes(file, &rows, &flag_limits));
+    // 5. Summary.
+    notes.extend(closing_notes(
+        &rows,
+        ambient,
+        line.is_some() || run.is_some(),
+        considere.of(file, last_law(&planned)),
+        run.as_ref(),
+    ));
+    if let Some(r) = &run {
+        notes.extend(machine_notes(r, line.map(|l| l.finish_speed_m_s)));
+        if line.is_some_and(|l| l.block_power_kw.is_some()) {
+            notes.push(
+                "line.block_power_kw is not used on a machine: each block's motor_kw applies"
+                    .into(),
+            );
         }
     }
-    // 5. Summary.
-    notes.extend(closing_notes(&rows, ambient, line.is_some()));
-    let total_power = line.map(|_| rows.iter().filter_map(|r| r.power_kw).sum());
-    let summary = summary::summarise(file, &rows, finish_d, total_power);
+    let total_power = speed.map(|_| rows.iter().filter_map(|r| r.power_kw).sum());
+    let mut summary = summary::summarise(file, &rows, finish_d, total_power);
+    summary.considere_strain = considere.of(file, last_law(&planned));
+    if let Some(r) = &run {
+        summary.attainable_speed_m_s = r.attainable_speed_m_s;
+        summary.binding_block = Some(r.binding_block);
+        summary.binding_limit = Some(r.binding_limit);
+        summary.attainable_t_per_shift = r.attainable_speed_m_s.map(|v| {
+            summary::tonnes_per_shift(
+                line,
+                summary::throughput_kg_h(file.material.density_kg_m3, finish_d, v),
+            )
+        });
+    }
+    let strength_checks = strength_checks(file, &considere);
+    if let Some(worst) = strength_checks
+        .iter()
+        .max_by(|a, b| a.difference.abs().total_cmp(&b.difference.abs()))
+    {
+        notes.push(format!(
+            "law against the mill's measured strengths: {} points, farthest at strain {:.3}: law {:.0} MPa vs measured {:.0} MPa ({:+.1} %)",
+            strength_checks.len(),
+            worst.strain,
+            worst.predicted_mpa,
+            worst.measured_mpa,
+            100.0 * worst.difference
+        ));
+    }
     Ok(ScheduleReport {
         title: file.title.clone(),
         material: file.material.label.clone(),
@@ -349,8 +516,173 @@ pub fn evaluate(
         notes,
         passes: rows,
         summary,
+        machine: run,
+        strength_checks,
         caution: CAUTION.to_string(),
     })
+}
+
+/// The Considere strains of the file's two laws.
+#[derive(Debug, Clone, Copy)]
+struct Considere {
+    flow: Option<f64>,
+    annealed: Option<f64>,
+}
+
+impl Considere {
+    fn of(&self, file: &ScheduleFile, law: &FlowLaw) -> Option<f64> {
+        if std::ptr::eq(law, &file.material.flow) {
+            self.flow
+        } else {
+            self.annealed
+        }
+    }
+}
+
+/// The law in force at the end of the schedule.
+fn last_law<'a>(planned: &[Planned<'a>]) -> &'a FlowLaw {
+    match planned.last().expect("a schedule has steps") {
+        Planned::Draw(d) => d.law,
+        Planned::Anneal { law, .. } => law,
+    }
+}
+
+/// A machine draws one continuous run: an anneal may come before the
+/// first die or after the last, not between dies.
+fn refuse_anneal_inside_run(file: &ScheduleFile) -> Result<(), ScheduleError> {
+    let is_draw = |s: &Step| matches!(s, Step::Draw(_));
+    let first = file.passes.iter().position(is_draw);
+    let last = file.passes.iter().rposition(is_draw);
+    if let (Some(a), Some(b)) = (first, last) {
+        if let Some(i) = (a..b).find(|&i| matches!(file.passes[i], Step::Anneal)) {
+            return Err(ScheduleError::Machine(
+                crate::machine::MachineError::DoesNotFit(format!(
+                    "{}: a machine draws one continuous run of dies, so an anneal between dies cannot run on it; check each run between anneals on its own",
+                    step_key(i, "")
+                )),
+            ));
+        }
+    }
+    Ok(())
+}
+
+/// The law's tensile strength at each of the mill's measured points.
+fn strength_checks(file: &ScheduleFile, considere: &Considere) -> Vec<StrengthCheck> {
+    let start_d = file.start.diameter.mm();
+    file.material
+        .drawn_strengths
+        .iter()
+        .filter_map(|p| {
+            let strain = p.strain.unwrap_or_else(|| {
+                file.start.strain
+                    + p.diameter
+                        .as_ref()
+                        .map_or(0.0, |d| pass::true_strain(start_d, d.mm()))
+            });
+            let predicted =
+                strength::tensile_strength_mpa(&file.material.flow, considere.flow, strain)?;
+            Some(StrengthCheck {
+                strain,
+                measured_mpa: p.tensile_strength_mpa,
+                predicted_mpa: predicted,
+                difference: (predicted - p.tensile_strength_mpa) / p.tensile_strength_mpa,
+            })
+        })
+        .collect()
+}
+
+/// Notes that explain flags raised once per schedule.
+fn flag_notes(file: &ScheduleFile, rows: &[StepReport], limits: &FlagLimits) -> Vec<String> {
+    let mut notes = Vec::new();
+    if let Some(limit) = file.material.cold_work_limit {
+        if let Some(r) = rows.iter().find(|r| r.flags.contains(&Flag::AnnealDue)) {
+            notes.push(format!(
+                "cold-work limit {limit} is passed at step {}: schedule an anneal before it",
+                r.step
+            ));
+        }
+    }
+    if let Some(r) = rows
+        .iter()
+        .find(|r| r.flags.contains(&Flag::HeavyReduction))
+    {
+        notes.push(format!(
+            "step {} takes {:.1} % in one pass, above the {:.0} % that common practice allows (Kalpakjian & Schmid; from memory; set limits.reduction_warn)",
+            r.step,
+            100.0 * r.area_reduction.unwrap_or(0.0),
+            100.0 * limits.reduction_warn
+        ));
+    }
+    if let Some(valid) = file.material.flow_valid_to_strain {
+        let past: Vec<&StepReport> = rows
+            .iter()
+            .filter(|r| r.flags.contains(&Flag::PastLawRange))
+            .collect();
+        if let (Some(first), Some(worst)) = (
+            past.first(),
+            past.iter()
+                .max_by(|a, b| a.strain_after.total_cmp(&b.strain_after)),
+        ) {
+            let law = &file.material.flow;
+            notes.push(format!(
+                "the flow law was fitted to strain {valid}; from step {} the schedule goes past it, to strain {:.3} ({:.3} beyond): the law gives {:.0} MPa there against {:.0} MPa at the end of its range, an extrapolation to confirm by test",
+                first.step,
+                worst.strain_after,
+                worst.strain_after - valid,
+                law.stress_mpa(worst.strain_after),
+                law.stress_mpa(valid)
+            ));
+        }
+    }
+    notes
+}
+
+/// Notes on the machine run: the assignment, the temperature model and the
+/// speed the file asks against the attainable one.
+fn machine_notes(run: &MachineRun, file_speed: Option<f64>) -> Vec<String> {
+    let name = if run.name.is_empty() {
+        "the machine".to_string()
+    } else {
+        format!("machine '{}'", run.name)
+    };
+    let used = run.blocks.len();
+    let mut notes = vec![format!(
+        "{name} ({}, {} blocks): die 1 on block 1 and so on in order{}",
+        run.kind.name(),
+        run.blocks_available,
+        if used < run.blocks_available {
+            format!(
+                "; blocks {} to {} stand idle",
+                used + 1,
+                run.blocks_available
+            )
+        } else {
+            String::new()
+        }
+    )];
+    match run.attainable_speed_m_s {
+        Some(v) => notes.push(format!(
+            "attainable finish speed {v:.2} m/s ({:.0} m/min), bound by block {} ({})",
+            v * 60.0,
+            run.binding_block,
+            run.binding_limit.name()
+        )),
+        None => notes.push(format!(
+            "no speed is attainable: the wire is above the temperature limit at block {} however slowly it runs (with a fixed cooling fraction the temperature does not fall with speed; give cooling_at_speed_m_s for cooling that grows as the wire slows); the motors and capstans alone would allow {:.2} m/s",
+            run.binding_block, run.mechanical_speed_m_s
+        )),
+    }
+    match (file_speed, run.attainable_speed_m_s) {
+        (Some(f), Some(a)) if f > a * (1.0 + 1e-9) => notes.push(format!(
+            "the file's finish speed {f} m/s is above the attainable {a:.2} m/s: block figures are at the file's speed and the blocks over a limit are flagged"
+        )),
+        (None, _) => notes.push(format!(
+            "no line.finish_speed_m_s: block figures are at the highest speed the motors and capstans allow ({:.2} m/s)",
+            run.running_speed_m_s
+        )),
+        _ => {}
+    }
+    notes
 }
 
 /// A schedule needs a draw; a design file given to `check` is named as such.
@@ -443,6 +775,11 @@ fn draw_row(d: &PlannedDraw<'_>, f: &PassFigures, l: &LineFigures, flags: Vec<Fl
         power_kw: l.power_kw,
         temperature_rise_c: Some(f.temperature_rise_c),
         wire_temperature_c: Some(l.wire_temperature_c),
+        wire_temperature_entry_c: Some(l.wire_temperature_entry_c),
+        wire_temperature_no_cooling_c: Some(l.wire_temperature_no_cooling_c),
+        entry_yield_mpa: Some(f.entry_yield_mpa),
+        tensile_strength_mpa: f.tensile_strength_mpa,
+        block: l.block.as_ref().map(|b| b.block),
         flags,
     }
 }
@@ -478,34 +815,54 @@ fn anneal_row(index: usize, diameter_mm: f64, strain_before: f64, law: &FlowLaw)
         power_kw: None,
         temperature_rise_c: None,
         wire_temperature_c: None,
+        wire_temperature_entry_c: None,
+        wire_temperature_no_cooling_c: None,
+        entry_yield_mpa: None,
+        tensile_strength_mpa: None,
+        block: None,
         flags: Vec::new(),
     }
 }
 
 /// The notes every report ends with: the finished strength, the temperature
 /// model and the speed model.
-fn closing_notes(rows: &[StepReport], ambient: f64, has_line: bool) -> Vec<String> {
+fn closing_notes(
+    rows: &[StepReport],
+    ambient: f64,
+    has_speed: bool,
+    eps_u: Option<f64>,
+    run: Option<&MachineRun>,
+) -> Vec<String> {
     let mut notes = Vec::new();
     if let Some(last) = rows.last() {
-        // Common practice: heavily drawn wire has almost no uniform elongation
-        // left, so its tensile strength is close to its flow stress; a lightly
-        // drawn or annealed wire still work-hardens in the test (Considere).
-        notes.push(if last.strain_after >= HEAVILY_DRAWN_STRAIN {
-            format!(
-                "finished flow stress {:.0} MPa: for wire drawn this far (strain {:.2} since anneal) the tensile strength is close to it",
+        // Considere: wire drawn past the law's necking strain has no uniform
+        // elongation left, so its tensile strength is its flow stress; below
+        // it the wire still work-hardens in the test.
+        notes.push(match (eps_u, last.tensile_strength_mpa) {
+            (Some(eu), Some(uts)) if last.strain_after >= eu => format!(
+                "finished flow stress {:.0} MPa: drawn past the law's Considere strain {eu:.3} (strain {:.2} since anneal), so the tensile strength is the flow stress, {uts:.0} MPa",
                 last.flow_stress_exit_mpa, last.strain_after
-            )
-        } else {
-            format!(
-                "finished flow stress {:.0} MPa: the wire is lightly drawn (strain {:.2} since anneal), so its tensile strength is higher than this (Considere)",
+            ),
+            (Some(eu), Some(uts)) => format!(
+                "finished flow stress {:.0} MPa: the wire is drawn to strain {:.2} since anneal, short of the law's Considere strain {eu:.3}, so it still hardens in a tensile test: tensile strength about {uts:.0} MPa",
                 last.flow_stress_exit_mpa, last.strain_after
-            )
+            ),
+            _ => format!(
+                "finished flow stress {:.0} MPa: the law does not neck (Considere) within strain 20, so no tensile strength is estimated",
+                last.flow_stress_exit_mpa
+            ),
         });
     }
-    notes.push(format!(
-        "wire temperature: the wire enters every die at ambient ({ambient} C), cooled between dies; the figure is the bulk mean at the die exit (the surface runs hotter)"
-    ));
-    if has_line {
+    notes.push(match run {
+        Some(r) => format!(
+            "wire temperature: carried die to die; the wire enters die 1 at ambient ({ambient} C) and the machine's cooling takes {:.0} % of its heat above ambient off between dies (lumped heat balance; Wright, Wire Technology, from memory); bulk mean at each exit (the surface runs hotter); the no-cooling upper bound (every rise summed) is reported with it",
+            100.0 * r.cooling_between_dies
+        ),
+        None => format!(
+            "wire temperature: the wire enters every die at ambient ({ambient} C), cooled between dies; the figure is the bulk mean at the die exit (the surface runs hotter); the no-cooling upper bound (every rise since the last anneal summed) is reported with it"
+        ),
+    });
+    if has_speed {
         notes.push("speeds by volume constancy from the finish speed through every pass (one continuous line)".into());
         notes.push("power: each capstan's net pull (its front pull less the back pull it holds on the next die) times its speed; the total counts each back pull once".into());
     }

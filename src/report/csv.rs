@@ -129,7 +129,7 @@ pub fn schedule(rep: &ScheduleReport) -> Result<Vec<u8>> {
     let mut w = csv::WriterBuilder::new()
         .buffer_capacity((2 * longest + 64).max(8 * 1024))
         .from_writer(Vec::new());
-    w.write_record(HEADER)?;
+    w.write_record(super::machine::csv_header(&HEADER))?;
     for r in &rep.passes {
         let d = r.draw_stress_mpa;
         let record: Vec<String> = vec![
@@ -182,7 +182,7 @@ pub fn schedule(rep: &ScheduleReport) -> Result<Vec<u8>> {
             rep.title.clone(),
             rep.caution.clone(),
         ];
-        w.write_record(&record)?;
+        w.write_record(super::machine::csv_record(rep, r, record))?;
     }
     Ok(w.into_inner()?)
 }

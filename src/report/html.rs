@@ -420,7 +420,10 @@ pub fn schedule_sections(rep: &ScheduleReport, file: &ScheduleFile, units: Units
                 true,
             ),
             methods,
-        ],
+        ]
+        .into_iter()
+        .chain(super::machine::html_tables(rep))
+        .collect(),
         charts: vec![Chart {
             caption: "Draw ratio per pass against the warn and max lines; flow stress against the total strain drawn, with each pass and anneal marked.".to_string(),
             svg,

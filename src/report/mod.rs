@@ -8,6 +8,7 @@ pub mod csv;
 pub mod design;
 pub mod fit;
 pub mod html;
+pub mod machine;
 pub mod risk;
 pub mod svg;
 pub mod table;
