@@ -338,6 +338,39 @@ pub struct Target {
     /// Most draw passes to consider.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub max_passes: Option<u32>,
+    /// Exactly this many draw passes (a machine with a fixed count of dies).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub passes: Option<u32>,
+    /// Most anneals; with it the design takes the fewest passes with at most
+    /// this many anneals. Default: the fewest anneals any design needs.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub max_anneals: Option<u32>,
+    /// Draw ratio the design aims its passes at, at or under
+    /// `limits.draw_ratio_max`; default 0.95 x `limits.draw_ratio_warn`.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub draw_ratio_aim: Option<f64>,
+    /// For `equal-ratio`: one ratio in each run between anneals (`each-run`,
+    /// the default) or one ratio over the whole schedule (`whole-schedule`).
+    #[serde(default)]
+    pub ratio_across: RatioAcross,
+    /// Die-room size step, mm: every die but the finish die is rounded to a
+    /// multiple of it.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub die_step_mm: Option<f64>,
+    /// Die sizes the die room stocks, mm: every die but the finish die is one of them.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub die_sizes_mm: Option<Vec<f64>>,
+}
+
+/// Where an equal-ratio design holds its one draw ratio.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize, Default)]
+#[serde(rename_all = "kebab-case")]
+pub enum RatioAcross {
+    /// One ratio in each run between anneals; runs may differ.
+    #[default]
+    EachRun,
+    /// One ratio over every pass of the schedule.
+    WholeSchedule,
 }
 
 /// One step of a schedule: a draw pass or an anneal.
@@ -748,16 +781,72 @@ impl ScheduleFile {
                     param::within("taper", x, 0.0, 1.0, Ends::OpenClosed),
                 )?;
             }
-            if let Some(n) = t.max_passes {
-                if !(1..=MAX_PASSES_ALLOWED).contains(&n) {
+            for (key, n) in [
+                ("target.max_passes", t.max_passes),
+                ("target.passes", t.passes),
+            ] {
+                if let Some(n) = n {
+                    if !(1..=MAX_PASSES_ALLOWED).contains(&n) {
+                        return Err(ScheduleError::Value {
+                            key: key.into(),
+                            problem: ParamError::new(
+                                &key[7..],
+                                n,
+                                format!("must be in [1, {MAX_PASSES_ALLOWED}]"),
+                            ),
+                        });
+                    }
+                }
+            }
+            if let Some(n) = t.max_anneals {
+                if n > MAX_PASSES_ALLOWED {
                     return Err(ScheduleError::Value {
-                        key: "target.max_passes".into(),
+                        key: "target.max_anneals".into(),
                         problem: ParamError::new(
-                            "max_passes",
+                            "max_anneals",
                             n,
-                            format!("must be in [1, {MAX_PASSES_ALLOWED}]"),
+                            format!("must be in [0, {MAX_PASSES_ALLOWED}]"),
                         ),
                     });
+                }
+            }
+            if let Some(x) = t.draw_ratio_aim {
+                value(
+                    "target.draw_ratio_aim",
+                    param::within(
+                        "draw_ratio_aim",
+                        x,
+                        0.0,
+                        self.limits.draw_ratio_max,
+                        Ends::OpenClosed,
+                    ),
+                )?;
+            }
+            if let Some(x) = t.die_step_mm {
+                value(
+                    "target.die_step_mm",
+                    param::within("die_step_mm", x, 0.0, 10.0, Ends::OpenClosed),
+                )?;
+            }
+            if let Some(list) = &t.die_sizes_mm {
+                if t.die_step_mm.is_some() {
+                    return Err(ScheduleError::Value {
+                        key: "target.die_sizes_mm".into(),
+                        problem: ParamError::new(
+                            "die_sizes_mm",
+                            format!("{list:?}"),
+                            "give either die_step_mm or die_sizes_mm, not both",
+                        ),
+                    });
+                }
+                if list.is_empty() {
+                    return Err(ScheduleError::Value {
+                        key: "target.die_sizes_mm".into(),
+                        problem: ParamError::new("die_sizes_mm", "[]", "needs at least one size"),
+                    });
+                }
+                for x in list {
+                    value("target.die_sizes_mm", param::positive("die_sizes_mm", *x))?;
                 }
             }
         }

@@ -79,33 +79,6 @@ pub fn run(args: &CheckArgs) -> Result<u8> {
     Ok(if rep.is_over() { EXIT_OVER } else { EXIT_OK })
 }
 
-/// Reads a schedule (or design) file's text: a UTF-8 byte-order mark is
-/// dropped, and a CSV file is refused in one line, pointing to `fit`.
-pub fn read_schedule_text(path: &std::path::Path) -> Result<String> {
-    let text = crate::input::read_text(path)?;
-    let text = text
-        .strip_prefix('\u{feff}')
-        .map(str::to_string)
-        .unwrap_or(text);
-    let is_csv_name = path
-        .extension()
-        .and_then(|e| e.to_str())
-        .is_some_and(|e| e.eq_ignore_ascii_case("csv"));
-    let first = text
-        .lines()
-        .map(str::trim)
-        .find(|l| !l.is_empty() && !l.starts_with('#'))
-        .unwrap_or("");
-    let looks_csv = first.contains(',') && !first.contains(':');
-    if is_csv_name || looks_csv {
-        anyhow::bail!(
-            "'{}' looks like a CSV table, not a schedule file: check and design read YAML (title:, material:, passes: ...); a tensile record goes to `coldpass fit`",
-            path.display()
-        );
-    }
-    Ok(text)
-}
-
 /// The machine: `--machine FILE`, else the schedule's `machine:` path
 /// (relative to the schedule file), else none.
 pub fn read_machine(args: &CheckArgs, file: &ScheduleFile) -> Result<Option<(PathBuf, Machine)>> {
@@ -132,4 +105,31 @@ pub fn read_machine(args: &CheckArgs, file: &ScheduleFile) -> Result<Option<(Pat
     let m =
         machine::parse(&text).with_context(|| format!("reading machine '{}'", path.display()))?;
     Ok(Some((path, m)))
+}
+
+/// Reads a schedule (or design) file's text: a UTF-8 byte-order mark is
+/// dropped, and a CSV file is refused in one line, pointing to `fit`.
+pub fn read_schedule_text(path: &std::path::Path) -> Result<String> {
+    let text = crate::input::read_text(path)?;
+    let text = text
+        .strip_prefix('\u{feff}')
+        .map(str::to_string)
+        .unwrap_or(text);
+    let is_csv_name = path
+        .extension()
+        .and_then(|e| e.to_str())
+        .is_some_and(|e| e.eq_ignore_ascii_case("csv"));
+    let first = text
+        .lines()
+        .map(str::trim)
+        .find(|l| !l.is_empty() && !l.starts_with('#'))
+        .unwrap_or("");
+    let looks_csv = first.contains(',') && !first.contains(':');
+    if is_csv_name || looks_csv {
+        anyhow::bail!(
+            "'{}' looks like a CSV table, not a schedule file: check and design read YAML (title:, material:, passes: ...); a tensile record goes to `coldpass fit`",
+            path.display()
+        );
+    }
+    Ok(text)
 }
