@@ -151,3 +151,31 @@ fn us_units_on_the_page_name_theirs() {
         assert!(html.contains(h), "{h} missing");
     }
 }
+
+#[test]
+fn a_schedule_on_a_machine_names_the_machine_under_the_title() {
+    let html = page(&[
+        "check",
+        "schedules-demo/steel-multiblock.yaml",
+        "--format",
+        "html",
+    ]);
+    let json: serde_json::Value = serde_json::from_str(&stdout(&coldpass(&[
+        "check",
+        "schedules-demo/steel-multiblock.yaml",
+        "--format",
+        "json",
+    ])))
+    .unwrap();
+    let name = json["machine"]["name"]
+        .as_str()
+        .expect("the demo runs on a machine");
+    let facts = html.split("<dl class=\"facts\">").nth(1).unwrap();
+    let facts = facts.split("</dl>").next().unwrap();
+    assert!(
+        facts.contains("<dt>Machine</dt>") && facts.contains(name),
+        "{facts}"
+    );
+    let v = json["summary"]["attainable_speed_m_s"].as_f64().unwrap();
+    assert!(facts.contains(&format!("{v:.2} m/s")), "{facts}");
+}

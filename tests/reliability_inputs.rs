@@ -92,9 +92,8 @@ fn an_endless_stream_is_cut_at_sixteen_mib() {
 
 #[test]
 fn a_folder_given_as_the_file_is_named_as_a_folder() {
-    // `check FOLDER` is the catalogue (tests/ux_cli.rs); design and fit take one file.
+    // `check FOLDER` is the catalogue (tests/ux_cli.rs); design takes one file.
     fails_promptly(&["design", "schedules-demo"], &["is a folder"]);
-    fails_promptly(&["fit", "schedules-demo"], &["is a folder"]);
 }
 
 #[test]

@@ -74,11 +74,17 @@ fn a_file_that_cannot_be_checked_is_a_row_and_makes_the_status_one() {
     assert_eq!(out.status.code(), Some(1));
     let text = stdout(&out);
     let mut r = csv::Reader::from_reader(text.as_bytes());
+    let header = r.headers().unwrap().clone();
+    let col = |k: &str| header.iter().position(|h| h == k).unwrap();
     let rows: Vec<csv::StringRecord> = r.records().map(Result::unwrap).collect();
     assert_eq!(rows.len(), 2);
-    assert_eq!(&rows[0][2], "ok");
-    assert_eq!(&rows[1][2], "error");
-    assert!(rows[1][10].contains("coldpass fit"), "{:?}", rows[1]);
+    assert_eq!(&rows[0][col("verdict")], "ok");
+    assert_eq!(&rows[1][col("verdict")], "error");
+    assert!(
+        rows[1][col("error")].contains("coldpass fit"),
+        "{:?}",
+        rows[1]
+    );
 }
 
 #[test]
@@ -91,13 +97,17 @@ fn the_catalogue_table_is_one_line_per_product() {
     assert_eq!(out.status.code(), Some(0));
     let text = stdout(&out);
     assert_eq!(
-        text.lines()
-            .filter(|l| l.contains("schedules-demo/"))
-            .count(),
+        text.lines().filter(|l| l.contains(".yaml ")).count(),
         2,
         "{text}"
     );
     assert!(text.contains("warn") && text.contains("Caution:"));
+    // steel-multiblock runs on its machine: its speed is the attainable one, marked.
+    let steel = text
+        .lines()
+        .find(|l| l.contains("steel-multiblock.yaml"))
+        .unwrap();
+    assert!(steel.contains(" *"), "{steel}");
 }
 
 #[test]

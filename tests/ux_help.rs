@@ -108,6 +108,22 @@ fn init_writes_starters_that_check_clean_and_never_overwrites() {
         "the starter is clean, not just within limits"
     );
 
+    // The starter machine runs the starter schedule clean at its finish speed.
+    assert_eq!(run(&["init", "machine"]).status.code(), Some(0));
+    let on = run(&[
+        "check",
+        "schedule.yaml",
+        "--machine",
+        "machine.yaml",
+        "--format",
+        "json",
+    ]);
+    assert_eq!(on.status.code(), Some(0), "{}", stderr(&on));
+    let j: serde_json::Value = serde_json::from_slice(&on.stdout).unwrap();
+    assert_eq!(j["summary"]["verdict"], "ok");
+    let fast = j["summary"]["attainable_speed_m_s"].as_f64().unwrap();
+    assert!(fast >= 10.0, "the starter's 10 m/s is attainable: {fast}");
+
     assert_eq!(run(&["init", "design", "d.yaml"]).status.code(), Some(0));
     let design = run(&["design", "d.yaml", "--format", "json"]);
     assert_eq!(design.status.code(), Some(0), "{}", stderr(&design));

@@ -52,6 +52,8 @@ pub fn files(args: &CheckArgs) -> Result<Vec<PathBuf>> {
     Ok(out)
 }
 
+/// Checks one file as `check FILE` would, on `--machine` or the machine its
+/// `machine:` key names (relative to that file).
 fn check_one(path: &Path, args: &CheckArgs) -> Product {
     let name = path.display().to_string();
     let result = (|| -> Result<_> {

@@ -6,7 +6,7 @@ use std::path::{Path, PathBuf};
 use anyhow::{Context, Result};
 use clap::Args;
 use coldpass::design::{design, DesignOptions};
-use coldpass::evaluation::{evaluate, EvaluateOptions, ScheduleReport};
+use coldpass::evaluation::{evaluate_on, EvaluateOptions, ScheduleReport};
 use coldpass::schedule;
 use coldpass::Method;
 
@@ -31,7 +31,7 @@ pub struct CompareArgs {
     pub view: ViewArgs,
 }
 
-/// Checks a schedule file, or designs a design file (one with `target` and
+/// Checks a schedule file (on the machine its `machine:` key names), or designs a design file (one with `target` and
 /// no `passes`) and returns the designed schedule's report.
 fn report_of(path: &Path, method: Option<Method>) -> Result<ScheduleReport> {
     let name = path.display().to_string();
@@ -42,7 +42,10 @@ fn report_of(path: &Path, method: Option<Method>) -> Result<ScheduleReport> {
             .with_context(|| format!("designing '{name}'"))?;
         return Ok(d.report);
     }
-    evaluate(&file, &EvaluateOptions { method }).with_context(|| format!("checking '{name}'"))
+    // On the machine the file names, as `check` would.
+    let machine = super::check::machine_of(path, None, &file)?.map(|(_, m)| m);
+    evaluate_on(&file, &EvaluateOptions { method }, machine.as_ref())
+        .with_context(|| format!("checking '{name}'"))
 }
 
 /// Runs `coldpass compare`: exit 0 when both files could be read and checked.

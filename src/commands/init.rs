@@ -1,5 +1,5 @@
-//! `coldpass init schedule|design FILE`: writes a commented starter file
-//! that checks (or designs) clean, and never overwrites an existing file.
+//! `coldpass init schedule|design|machine FILE`: writes a commented starter
+//! file that checks (or designs) clean, and never overwrites an existing file.
 
 use std::path::PathBuf;
 
@@ -16,6 +16,8 @@ pub enum Starter {
     Schedule,
     /// A design file for `coldpass design`.
     Design,
+    /// A machine file for `coldpass check --machine`.
+    Machine,
 }
 
 /// Arguments of `coldpass init`.
@@ -24,7 +26,7 @@ pub struct InitArgs {
     /// Which starter file to write.
     #[arg(value_enum)]
     pub kind: Starter,
-    /// Where to write it (default: schedule.yaml or design.yaml here); an
+    /// Where to write it (default: schedule.yaml, design.yaml or machine.yaml here); an
     /// existing file is never overwritten.
     pub file: Option<PathBuf>,
 }
@@ -34,6 +36,7 @@ pub fn starter(kind: Starter) -> &'static str {
     match kind {
         Starter::Schedule => include_str!("../../templates/schedule.yaml"),
         Starter::Design => include_str!("../../templates/design.yaml"),
+        Starter::Machine => include_str!("../../templates/machine.yaml"),
     }
 }
 
@@ -43,6 +46,7 @@ pub fn run(args: &InitArgs) -> Result<u8> {
         PathBuf::from(match args.kind {
             Starter::Schedule => "schedule.yaml",
             Starter::Design => "design.yaml",
+            Starter::Machine => "machine.yaml",
         })
     });
     if path.exists() {
@@ -52,6 +56,7 @@ pub fn run(args: &InitArgs) -> Result<u8> {
             match args.kind {
                 Starter::Schedule => "schedule",
                 Starter::Design => "design",
+                Starter::Machine => "machine",
             }
         );
     }

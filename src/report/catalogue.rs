@@ -2,7 +2,7 @@
 //! files or a folder), in every format. Keys are the check JSON's summary
 //! keys where there is one (`verdict`, `draw_passes`, `anneals`,
 //! `worst_draw_ratio`, `worst_step`, `throughput_t_per_shift`,
-//! `total_power_kw`), plus `file`, `title`, `finish_speed_m_s` (the exit
+//! `attainable_speed_m_s`, `attainable_t_per_shift`, `total_power_kw`), plus `file`, `title`, `finish_speed_m_s` (the exit
 //! speed of the last draw) and `error` (why a file could not be checked).
 //! The table leaves the titles to JSON, YAML and CSV so that it stays narrow.
 
@@ -41,6 +41,10 @@ pub struct Product {
     pub finish_speed_m_s: Option<f64>,
     /// Tonnes per shift (none without a `line` block).
     pub throughput_t_per_shift: Option<f64>,
+    /// Highest finish speed the machine allows, m/s (with a machine).
+    pub attainable_speed_m_s: Option<f64>,
+    /// Tonnes per shift at that speed (with a machine).
+    pub attainable_t_per_shift: Option<f64>,
     /// Sum of the pass powers, kW.
     pub total_power_kw: Option<f64>,
     /// Why the file could not be checked.
@@ -72,6 +76,8 @@ impl Product {
                 .find(|r| r.kind == StepKind::Draw)
                 .and_then(|r| r.exit_speed_m_s),
             throughput_t_per_shift: s.throughput_t_per_shift,
+            attainable_speed_m_s: s.attainable_speed_m_s,
+            attainable_t_per_shift: s.attainable_t_per_shift,
             total_power_kw: s.total_power_kw,
             error: None,
             over: rep.is_over(),
@@ -90,6 +96,8 @@ impl Product {
             worst_step: None,
             finish_speed_m_s: None,
             throughput_t_per_shift: None,
+            attainable_speed_m_s: None,
+            attainable_t_per_shift: None,
             total_power_kw: None,
             error: Some(error),
             over: false,
@@ -103,7 +111,7 @@ struct Whole<'a> {
     caution: &'static str,
 }
 
-const KEYS: [&str; 12] = [
+const KEYS: [&str; 14] = [
     "file",
     "title",
     "verdict",
@@ -113,6 +121,8 @@ const KEYS: [&str; 12] = [
     "worst_step",
     "finish_speed_m_s",
     "throughput_t_per_shift",
+    "attainable_speed_m_s",
+    "attainable_t_per_shift",
     "total_power_kw",
     "error",
     "caution",
@@ -123,19 +133,32 @@ fn n<T: ToString>(x: Option<T>) -> String {
 }
 
 fn cells(p: &Product, units: Units) -> Vec<String> {
+    // With a machine, the speed and tonnes it allows (marked *); else the line's.
+    let on_machine = p.attainable_speed_m_s.is_some();
     let speed = p
-        .finish_speed_m_s
+        .attainable_speed_m_s
+        .or(p.finish_speed_m_s)
         .map(|v| Quantity::Speed.convert(v, units));
+    let tonnes = if on_machine {
+        p.attainable_t_per_shift
+    } else {
+        p.throughput_t_per_shift
+    };
+    let mark = |s: String| if on_machine { format!("{s} *") } else { s };
     let power = p.total_power_kw.map(|v| Quantity::Power.convert(v, units));
+    // The file's name only, to keep the table narrow (the path is in JSON and CSV).
+    let name = std::path::Path::new(&p.file)
+        .file_name()
+        .map_or_else(|| p.file.clone(), |n| n.to_string_lossy().into_owned());
     vec![
-        p.file.clone(),
+        name,
         p.verdict.clone(),
         n(p.draw_passes),
         n(p.anneals),
         fixed(p.worst_draw_ratio, 3),
         n(p.worst_step),
-        fixed(speed, Quantity::Speed.decimals(2, units)),
-        fixed(p.throughput_t_per_shift, 1),
+        mark(fixed(speed, Quantity::Speed.decimals(2, units))),
+        mark(fixed(tonnes, 1)),
         fixed(power, 1),
     ]
 }
@@ -148,7 +171,7 @@ fn headers(units: Units) -> Vec<String> {
         "anneals".into(),
         "worst draw ratio".into(),
         "worst step".into(),
-        format!("finish speed {}", Quantity::Speed.label(units)),
+        format!("speed {}", Quantity::Speed.label(units)),
         "t per shift".into(),
         format!("total power {}", Quantity::Power.label(units)),
     ]
@@ -185,6 +208,8 @@ pub fn render(products: &[Product], format: Format, look: &Look) -> Result<Vec<u
                     n(p.worst_step),
                     n(p.finish_speed_m_s.map(super::csv::sig)),
                     n(p.throughput_t_per_shift.map(super::csv::sig)),
+                    n(p.attainable_speed_m_s.map(super::csv::sig)),
+                    n(p.attainable_t_per_shift.map(super::csv::sig)),
                     n(p.total_power_kw.map(super::csv::sig)),
                     p.error.clone().unwrap_or_default(),
                     CAUTION.to_string(),
@@ -207,6 +232,9 @@ pub fn render(products: &[Product], format: Format, look: &Look) -> Result<Vec<u
                     .priority(PriorityMax::right()),
             );
             let mut out = format!("Catalogue: {} products\n{t}\n", products.len());
+            if products.iter().any(|p| p.attainable_speed_m_s.is_some()) {
+                out.push_str("* at the speed the machine allows (attainable_speed_m_s); others at line.finish_speed_m_s\n");
+            }
             let errors: Vec<&Product> = products.iter().filter(|p| p.error.is_some()).collect();
             if !errors.is_empty() {
                 out.push_str("\nCould not be checked\n");

@@ -373,6 +373,32 @@ pub fn schedule_sections(rep: &ScheduleReport, file: &ScheduleFile, units: Units
     if !rep.material.is_empty() {
         facts.push(("Material".to_string(), rep.material.clone()));
     }
+    if let Some(m) = &rep.machine {
+        let kind = serde_json::to_value(m.kind)
+            .ok()
+            .and_then(|v| v.as_str().map(str::to_string))
+            .unwrap_or_default();
+        let speed = |v: f64| {
+            format!(
+                "{} {}",
+                super::fixed(
+                    Some(Quantity::Speed.convert(v, units)),
+                    Quantity::Speed.decimals(2, units)
+                ),
+                Quantity::Speed.label(units)
+            )
+        };
+        facts.push((
+            "Machine".to_string(),
+            format!(
+                "{} ({kind}, {} blocks); attainable finish speed {}",
+                m.name,
+                m.blocks_available,
+                m.attainable_speed_m_s
+                    .map_or_else(|| "none (too hot at any speed)".to_string(), speed)
+            ),
+        ));
+    }
     facts.push((
         "Governing method".to_string(),
         format!(
