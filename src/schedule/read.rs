@@ -248,7 +248,10 @@ fn allowed(path: &str, expected: &str) -> String {
     }
     match e {
         "f64" | "a number" | "a float" => "a number (such as 0.05 or 8)".into(),
-        "u32" | "a whole number" => "a whole number of 0 or more (such as 30)".into(),
+        "u32" | "a whole number" if path.ends_with("max_passes") => {
+            "a whole number from 1 to 200".into()
+        }
+        "u32" | "a whole number" => "a whole number from 0 to 4294967295".into(),
         "a string" | "a borrowed string" | "text" => "text".into(),
         "a sequence" => "a list (one `- item` per line, or [a, b])".into(),
         "any value" => "a number of ordinary size".into(),
@@ -358,14 +361,18 @@ fn rewrite(path: &str, msg: &str, written: Option<&str>) -> (String, String) {
         if got.starts_with("unit value") {
             return (key, format!("no value is given; {allowed} is needed"));
         }
-        let shown = written.map(strip_key).unwrap_or_else(|| serde_value(got));
-        let hint = hint(&shown, got, expected);
+        // A block list or mapping has its mark at its first item: name its kind.
+        let block = (got.starts_with("sequence") || got.starts_with("map"))
+            && !written.is_some_and(|w| w.starts_with(['[', '{']));
+        let shown = match written {
+            Some(w) if !block => format!("`{}`", cut(&strip_key(w))),
+            _ if block => serde_value(got),
+            _ => format!("`{}`", cut(&serde_value(got))),
+        };
+        let hint = hint(shown.trim_matches('`'), got, expected);
         return (
             key,
-            format!(
-                "`{}` is not allowed: {allowed} is needed{hint}",
-                cut(&shown)
-            ),
+            format!("{shown} is not allowed: {allowed} is needed{hint}"),
         );
     }
     if let Some(rest) = msg.strip_prefix("invalid length ") {
