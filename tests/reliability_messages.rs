@@ -233,3 +233,29 @@ fn a_multi_megabyte_bad_cell_in_a_tensile_record_is_not_echoed_whole() {
         "{e}"
     );
 }
+
+#[test]
+fn a_number_key_holding_the_word_sizetext_is_not_taken_for_a_diameter() {
+    // Found by the schedule_yaml fuzz target: the classification looked for
+    // the internal type name anywhere in the message, the value included.
+    let dir = tempfile::tempdir().unwrap();
+    let text = std::fs::read_to_string(root(COPPER)).unwrap();
+    let path = dir.path().join("bad.yaml");
+    std::fs::write(
+        &path,
+        text.replacen(
+            "wire_temperature_max_c: 150",
+            "wire_temperature_max_c: 150SizeText",
+            1,
+        ),
+    )
+    .unwrap();
+    let o = coldpass(&["check", path.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(1));
+    let e = stderr(&o);
+    assert!(
+        e.contains("limits.wire_temperature_max_c") && e.contains("a number"),
+        "{e}"
+    );
+    assert!(!e.contains("diameter"), "{e}");
+}

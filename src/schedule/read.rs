@@ -303,7 +303,7 @@ fn rewrite(path: &str, msg: &str, written: Option<&str>) -> (String, String) {
             format!("this is not a schedule file: it reads as {kind}, where a schedule is YAML blocks of keys (material:, start:, dies:, limits:, passes:); is it a CSV or another kind of file?"),
         );
     }
-    if msg.contains("SizeText") {
+    if msg.contains("untagged enum SizeText") {
         key = diameter_key(&key);
         let value = written
             .map(|w| format!("`{}` is not ", strip_key(w)))
