@@ -1,13 +1,24 @@
-//! Benchmark of `design`: a 30-pass equal-ratio schedule with two anneals
-//! (forced by the cold-work limit) and a six-angle die stock. Target: under
-//! 50 ms in the release build (issue 5). The inputs are demo values.
+//! Benchmarks of `design` (demo values):
+//!
+//! - `design 30 passes, 2 anneals, 6 angles`: an equal-ratio schedule whose
+//!   two anneals the cold-work limit forces, from a six-angle die stock
+//!   (target: under 2 ms in the release build, issues 10 and 14);
+//! - `design growth/N`: the same mill drawing to finer sizes, so that the
+//!   design has about N passes (growth with the passes designed should be
+//!   near linear);
+//! - `design with no solution`: reductions of 19-20 % with at most two
+//!   anneals, which no split meets within 40 passes (target: under 50 ms);
+//! - `design temperature limit below ambient`: refused as the file is read
+//!   (issue 15: it must not search).
+//!
+//! Run with `cargo bench --bench design`.
 
 use coldpass::design::{design, DesignOptions};
 use coldpass::schedule;
-use criterion::{black_box, criterion_group, criterion_main, Criterion};
+use criterion::{black_box, criterion_group, criterion_main, BenchmarkId, Criterion};
 
 const FILE: &str = r#"
-title: Bench, 10 mm copper to 0.9 mm, two anneals (demo values)
+title: Bench, 10 mm copper to 0.87 mm, two anneals (demo values)
 material:
   label: copper (demo values)
   density_kg_m3: 8940
@@ -26,7 +37,7 @@ limits:
   draw_ratio_max: 0.6
   delta_max: 4.0
 target:
-  diameter: 0.9
+  diameter: 0.87
   reduction_max: 0.2
   strategy: equal-ratio
   max_passes: 40
@@ -42,6 +53,44 @@ fn bench(c: &mut Criterion) {
     assert_eq!(d.summary.die_angles_deg.len(), 6);
     c.bench_function("design 30 passes, 2 anneals, 6 angles", |b| {
         b.iter(|| design(black_box(&file), &options).unwrap())
+    });
+
+    let mut group = c.benchmark_group("design growth");
+    for finish_mm in [3.5, 0.87, 0.2, 0.02] {
+        let text = FILE
+            .replace("diameter: 0.87", &format!("diameter: {finish_mm}"))
+            .replace("max_passes: 40", "max_passes: 200");
+        let file = schedule::parse(&text).expect("the growth file parses");
+        let n = design(&file, &options)
+            .expect("the growth file has a design")
+            .summary
+            .draw_passes;
+        group.bench_with_input(BenchmarkId::from_parameter(n), &file, |b, f| {
+            b.iter(|| design(black_box(f), &options).unwrap())
+        });
+    }
+    group.finish();
+
+    let text = FILE.replace(
+        "reduction_max: 0.2",
+        "reduction_max: 0.2\n  reduction_min: 0.19\n  max_anneals: 2",
+    );
+    let none = schedule::parse(&text).expect("the infeasible file parses");
+    assert!(design(&none, &options).is_err());
+    c.bench_function("design with no solution", |b| {
+        b.iter(|| design(black_box(&none), &options).unwrap_err())
+    });
+
+    let text = FILE
+        .replace(
+            "delta_max: 4.0",
+            "delta_max: 4.0\n  wire_temperature_max_c: 20",
+        )
+        .replace("max_passes: 40", "max_passes: 5");
+    let cold = schedule::parse(&text).expect("the temperature file parses");
+    assert!(design(&cold, &options).is_err());
+    c.bench_function("design temperature limit below ambient", |b| {
+        b.iter(|| design(black_box(&cold), &options).unwrap_err())
     });
 }
 

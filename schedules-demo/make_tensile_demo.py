@@ -116,10 +116,53 @@ def aluminium(rng):
     )
 
 
+def steel_lueders(rng):
+    # Low-carbon steel with a yield drop, exported as a European machine does
+    # (semicolons, decimal commas). Elastic E=205 GPa to an upper yield of
+    # 345 MPa, a Lueders plateau at constant force to true plastic strain
+    # 0.018 (serrations of +-1.5 MPa), then Hollomon K=720 MPa, n=0.21;
+    # 6.5 mm rod, 50 mm gauge, force in kN with 20 N noise.
+    e_mpa, k, n, lu = 205_000.0, 720.0, 0.21, 0.018
+    area = math.pi * 6.5**2 / 4.0
+    reh = 345.0
+    rel = k * lu**n * math.exp(-lu)  # engineering stress of the plateau
+    e_el = np.linspace(0.0, reh / e_mpa, 60)
+    s_el = e_mpa * e_el
+    # plateau: constant engineering stress with a sawtooth of serrations
+    ep_pl = np.linspace(0.0005, lu, 120)
+    saw = 1.5 * (2.0 * ((np.arange(ep_pl.size) / 7.0) % 1.0) - 1.0)
+    s_pl = rel + saw
+    e_pl = np.expm1(ep_pl + rel / e_mpa)
+    # hardening: Hollomon from lu to the maximum load (at true plastic strain n)
+    ep_h = np.linspace(lu, n, 300)[1:]
+    st_h = k * ep_h**n
+    et_h = ep_h + st_h / e_mpa
+    e_h, s_h = np.expm1(et_h), st_h * np.exp(-et_h)
+    t = np.linspace(0.0, 1.0, 41)[1:]
+    e_nk = e_h[-1] + 0.08 * t
+    s_nk = s_h[-1] * (1.0 - 0.3 * t**2)
+    e = np.concatenate([e_el, e_pl, e_h, e_nk])
+    s = np.concatenate([s_el, s_pl, s_h, s_nk])
+    force_kn = s * area / 1000.0 + rng.normal(0.0, 0.020, s.size)
+    force_kn[0] = 0.0
+    path = HERE / "tensile-steel-lueders.csv"
+    with path.open("w", newline="\n") as f:
+        for line in [
+            MARK,
+            "Brennock Rod Works, 6.5 mm low-carbon steel rod (as rolled), coil S-0502, gauge length 50 mm; semicolons and decimal commas as exported.",
+            "Made from an upper yield of 345 MPa, a Lueders plateau to plastic strain 0.018, Hollomon K=720 MPa, n=0.21, E=205 GPa, noise 20 N (make_tensile_demo.py).",
+        ]:
+            f.write(f"# {line}\n")
+        f.write("Extension (mm);Force (kN)\n")
+        for x, y in zip(e * 50.0, np.maximum(force_kn, 0.0)):
+            f.write(f"{x:.5f};{y:.4f}\n".replace(".", ","))
+
+
 def main():
     copper(np.random.default_rng(20240401))
     steel(np.random.default_rng(20240402))
     aluminium(np.random.default_rng(20240403))
+    steel_lueders(np.random.default_rng(20240404))
 
 
 if __name__ == "__main__":

@@ -5,14 +5,14 @@
 
 use clap::Parser;
 
-use crate::commands::Command;
+use crate::commands::{Command, EXIT_CODES};
 
 /// Plan the cold drawing of round wire and bar: strain, flow stress, drawing
 /// stress, limits, anneals, speeds and power. Figures are planning estimates
 /// to confirm by trial; the machine maker's limits, local codes and licensed
 /// practice govern.
 #[derive(Debug, Parser)]
-#[command(name = "coldpass", version, about, long_about = None)]
+#[command(name = "coldpass", version, about, long_about = None, after_help = EXIT_CODES)]
 pub struct Cli {
     #[command(subcommand)]
     pub command: Command,

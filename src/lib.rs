@@ -10,6 +10,7 @@ pub mod design;
 pub mod evaluation;
 pub mod fit;
 pub mod flow;
+pub mod machine;
 pub mod param;
 pub mod pass;
 pub mod quad;

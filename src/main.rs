@@ -26,7 +26,7 @@ fn main() -> ExitCode {
     // A long computation may ask to be told instead (output::stop_on_interrupt).
     let _ = ctrlc::set_handler(|| output::on_interrupt(EXIT_INTERRUPTED));
     let cli = cli::Cli::parse();
-    match commands::run(cli.command) {
+    match commands::run(cli.command, <cli::Cli as clap::CommandFactory>::command) {
         Ok(status) => ExitCode::from(status),
         Err(err) => {
             if output::is_broken_pipe(&err) {

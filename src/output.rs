@@ -379,6 +379,23 @@ pub fn is_broken_pipe(err: &anyhow::Error) -> bool {
     })
 }
 
+/// Writes `bytes` to a new file at `path`, refusing (with the path named) when
+/// a file is already there: the check and the creation are one step
+/// (`create_new`), so nothing is ever overwritten.
+pub fn write_new_file(path: &Path, bytes: &[u8]) -> Result<()> {
+    let mut f = std::fs::OpenOptions::new()
+        .write(true)
+        .create_new(true)
+        .open(path)
+        .with_context(|| format!("creating '{}'", path.display()))?;
+    let result = f.write_all(bytes).and_then(|()| f.sync_all());
+    if let Err(e) = result {
+        let _ = std::fs::remove_file(path);
+        return Err(e).with_context(|| format!("writing '{}'", path.display()));
+    }
+    Ok(())
+}
+
 /// Refuses a result holding a number that is not finite (an overflow or a
 /// NaN): such a figure is not a result, and JSON would print it as `null`,
 /// a table as `inf`. The error names the figure by its report key

@@ -37,6 +37,9 @@ pub enum ScheduleError {
         /// The core's reason.
         problem: crate::pass::PassError,
     },
+    /// The machine cannot take the schedule (more dies than blocks, ...).
+    #[error("machine: {0}")]
+    Machine(#[from] crate::machine::MachineError),
     /// The file lacks a key that this use of it needs.
     #[error("{key} is missing: {why}")]
     Missing {
@@ -109,6 +112,10 @@ pub struct ScheduleFile {
     /// Line speed and capacity (optional).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub line: Option<Line>,
+    /// The drawing machine the schedule runs on: a machine file's path,
+    /// relative to the schedule file (the binary reads it).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub machine: Option<String>,
     /// What to design (design files only).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub target: Option<Target>,
@@ -151,6 +158,32 @@ pub struct Material {
     /// flow scatter for `coldpass risk`.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub flow_scatter: Option<crate::risk::FlowScatter>,
+    /// Yield stress of the annealed stock, MPa (for the back-tension check);
+    /// default: the law at a 0.002 offset strain.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub yield_mpa: Option<f64>,
+    /// Largest true plastic strain the flow law was fitted over (`fit` emits
+    /// it beside `flow:`); past it the law is extrapolated.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub flow_valid_to_strain: Option<f64>,
+    /// Measured tensile strengths of drawn wire (the mill's own points).
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub drawn_strengths: Vec<DrawnStrength>,
+}
+
+/// A measured tensile strength of drawn wire, at a strain or a diameter.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct DrawnStrength {
+    /// Accumulated true strain of the wire (give this or `diameter`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub strain: Option<f64>,
+    /// Wire diameter drawn from the start stock (strain
+    /// `start.strain + 2 ln(D_start/D)`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub diameter: Option<Diameter>,
+    /// Measured tensile strength, MPa.
+    pub tensile_strength_mpa: f64,
 }
 
 /// Reads a flow law, naming its key in a validation error (`flow: `n` = 1.5 ...`).
@@ -232,6 +265,10 @@ pub struct Limits {
     /// C of the redundant-work factor; default 0.21.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub redundant_c: Option<f64>,
+    /// Per-pass area reduction above which a pass is `heavy-reduction`;
+    /// default 0.30 (0.45 on a single-block machine).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub reduction_warn: Option<f64>,
 }
 
 /// Line speed and capacity.
@@ -301,6 +338,39 @@ pub struct Target {
     /// Most draw passes to consider.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub max_passes: Option<u32>,
+    /// Exactly this many draw passes (a machine with a fixed count of dies).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub passes: Option<u32>,
+    /// Most anneals; with it the design takes the fewest passes with at most
+    /// this many anneals. Default: the fewest anneals any design needs.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub max_anneals: Option<u32>,
+    /// Draw ratio the design aims its passes at, at or under
+    /// `limits.draw_ratio_max`; default 0.95 x `limits.draw_ratio_warn`.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub draw_ratio_aim: Option<f64>,
+    /// For `equal-ratio`: one ratio in each run between anneals (`each-run`,
+    /// the default) or one ratio over the whole schedule (`whole-schedule`).
+    #[serde(default)]
+    pub ratio_across: RatioAcross,
+    /// Die-room size step, mm: every die but the finish die is rounded to a
+    /// multiple of it.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub die_step_mm: Option<f64>,
+    /// Die sizes the die room stocks, mm: every die but the finish die is one of them.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub die_sizes_mm: Option<Vec<f64>>,
+}
+
+/// Where an equal-ratio design holds its one draw ratio.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize, Default)]
+#[serde(rename_all = "kebab-case")]
+pub enum RatioAcross {
+    /// One ratio in each run between anneals; runs may differ.
+    #[default]
+    EachRun,
+    /// One ratio over every pass of the schedule.
+    WholeSchedule,
 }
 
 /// One step of a schedule: a draw pass or an anneal.
@@ -495,6 +565,34 @@ impl ScheduleFile {
                 param::within("heat_fraction", b, 0.0, 1.0, Ends::Closed),
             )?;
         }
+        if let Some(y) = m.yield_mpa {
+            value("material.yield_mpa", param::positive("yield_mpa", y))?;
+        }
+        if let Some(e) = m.flow_valid_to_strain {
+            value(
+                "material.flow_valid_to_strain",
+                param::positive("flow_valid_to_strain", e),
+            )?;
+        }
+        for (i, p) in m.drawn_strengths.iter().enumerate() {
+            let key = |k: &str| format!("material.drawn_strengths[{i}].{k}");
+            value(
+                &key("tensile_strength_mpa"),
+                param::positive("tensile_strength_mpa", p.tensile_strength_mpa),
+            )?;
+            match (p.strain, &p.diameter) {
+                (Some(e), None) => {
+                    value(&key("strain"), param::non_negative("strain", e))?;
+                }
+                (None, Some(_)) => {}
+                _ => {
+                    return Err(ScheduleError::Missing {
+                        key: key("strain"),
+                        why: "give a point's strain or its diameter (one of them)".into(),
+                    })
+                }
+            }
+        }
         value(
             "start.strain",
             param::within("strain", self.start.strain, 0.0, STRAIN_MAX, Ends::Closed),
@@ -588,6 +686,12 @@ impl ScheduleFile {
         if let Some(x) = l.redundant_c {
             value("limits.redundant_c", param::non_negative("redundant_c", x))?;
         }
+        if let Some(x) = l.reduction_warn {
+            value(
+                "limits.reduction_warn",
+                param::within("reduction_warn", x, 0.0, 1.0, Ends::Open),
+            )?;
+        }
         if l.method == Some(Method::Efficiency) && d.efficiency.is_none() {
             return Err(ScheduleError::Missing {
                 key: "dies.efficiency".into(),
@@ -677,16 +781,72 @@ impl ScheduleFile {
                     param::within("taper", x, 0.0, 1.0, Ends::OpenClosed),
                 )?;
             }
-            if let Some(n) = t.max_passes {
-                if !(1..=MAX_PASSES_ALLOWED).contains(&n) {
+            for (key, n) in [
+                ("target.max_passes", t.max_passes),
+                ("target.passes", t.passes),
+            ] {
+                if let Some(n) = n {
+                    if !(1..=MAX_PASSES_ALLOWED).contains(&n) {
+                        return Err(ScheduleError::Value {
+                            key: key.into(),
+                            problem: ParamError::new(
+                                &key[7..],
+                                n,
+                                format!("must be in [1, {MAX_PASSES_ALLOWED}]"),
+                            ),
+                        });
+                    }
+                }
+            }
+            if let Some(n) = t.max_anneals {
+                if n > MAX_PASSES_ALLOWED {
                     return Err(ScheduleError::Value {
-                        key: "target.max_passes".into(),
+                        key: "target.max_anneals".into(),
                         problem: ParamError::new(
-                            "max_passes",
+                            "max_anneals",
                             n,
-                            format!("must be in [1, {MAX_PASSES_ALLOWED}]"),
+                            format!("must be in [0, {MAX_PASSES_ALLOWED}]"),
                         ),
                     });
+                }
+            }
+            if let Some(x) = t.draw_ratio_aim {
+                value(
+                    "target.draw_ratio_aim",
+                    param::within(
+                        "draw_ratio_aim",
+                        x,
+                        0.0,
+                        self.limits.draw_ratio_max,
+                        Ends::OpenClosed,
+                    ),
+                )?;
+            }
+            if let Some(x) = t.die_step_mm {
+                value(
+                    "target.die_step_mm",
+                    param::within("die_step_mm", x, 0.0, 10.0, Ends::OpenClosed),
+                )?;
+            }
+            if let Some(list) = &t.die_sizes_mm {
+                if t.die_step_mm.is_some() {
+                    return Err(ScheduleError::Value {
+                        key: "target.die_sizes_mm".into(),
+                        problem: ParamError::new(
+                            "die_sizes_mm",
+                            format!("{list:?}"),
+                            "give either die_step_mm or die_sizes_mm, not both",
+                        ),
+                    });
+                }
+                if list.is_empty() {
+                    return Err(ScheduleError::Value {
+                        key: "target.die_sizes_mm".into(),
+                        problem: ParamError::new("die_sizes_mm", "[]", "needs at least one size"),
+                    });
+                }
+                for x in list {
+                    value("target.die_sizes_mm", param::positive("die_sizes_mm", *x))?;
                 }
             }
         }

@@ -247,30 +247,56 @@ fn design_emitting(file: &Path, dir: &Path) -> (Output, bool) {
 
 #[test]
 fn too_few_max_passes_asks_for_the_passes_the_design_needs_not_an_infinite_ratio() {
-    // The demo design is 8 + 5 passes around its temper anneal (13 in all):
-    // with 3 or 12 allowed, the error asks for 13; with 13 the design is made.
+    // With enough passes the demo design is 8 + 5 around its temper anneal;
+    // fewer passes need more anneals (each softens the wire for heavier
+    // passes). With 3 allowed the error asks for the least count any design
+    // has; that count is then designed, and one fewer is refused.
     let dir = tempfile::tempdir().unwrap();
-    for n in [3, 12] {
-        let (o, written) = design_emitting(&copper_demo_with_max_passes(dir.path(), n), dir.path());
-        let err = String::from_utf8_lossy(&o.stderr);
-        assert_eq!(o.status.code(), Some(1), "{err}");
-        assert!(!written && o.stdout.is_empty());
-        assert!(
-            err.contains(&format!("target.max_passes {n} is too few"))
-                && err.contains("takes 13 draw passes (8 + 5 around the temper anneal)")
-                && err.contains("allow at least 13 (target.max_passes)"),
-            "{err}"
-        );
-        // Here the reduction limit, not the ratio limit, sets both counts.
-        assert!(err.contains("target.reduction_max 0.35"), "{err}");
-        for bad in ["inf", "NaN", " 0 passes", "draw ratio of"] {
-            assert!(!err.contains(bad), "{bad:?} in {err}");
-        }
+    let (o, written) = design_emitting(&copper_demo_with_max_passes(dir.path(), 3), dir.path());
+    let err = String::from_utf8_lossy(&o.stderr).to_string();
+    assert_eq!(o.status.code(), Some(1), "{err}");
+    assert!(!written && o.stdout.is_empty());
+    assert!(err.contains("target.max_passes 3 is too few"), "{err}");
+    // Here the reduction limit, not the ratio limit, sets the counts.
+    assert!(err.contains("target.reduction_max 0.35"), "{err}");
+    for bad in [
+        "inf",
+        "NaN",
+        " 0 passes",
+        "draw ratio of",
+        ", ;",
+        "with 0 passes",
+    ] {
+        assert!(!err.contains(bad), "{bad:?} in {err}");
     }
-    let (o, written) = design_emitting(&copper_demo_with_max_passes(dir.path(), 13), dir.path());
+    let needed: u32 = err
+        .split("takes ")
+        .nth(1)
+        .and_then(|t| t.split(' ').next())
+        .and_then(|t| t.parse().ok())
+        .unwrap_or_else(|| panic!("{err}"));
+    assert!(
+        err.contains(&format!("allow at least {needed} (target.max_passes)")),
+        "{err}"
+    );
+    let (o, _) = design_emitting(
+        &copper_demo_with_max_passes(dir.path(), needed - 1),
+        dir.path(),
+    );
+    assert_eq!(o.status.code(), Some(1));
+    let (o, written) =
+        design_emitting(&copper_demo_with_max_passes(dir.path(), needed), dir.path());
     assert_eq!(o.status.code(), Some(0));
     assert!(written);
-    assert!(String::from_utf8_lossy(&o.stdout).contains("13 draw passes (at most 13)"));
+    assert!(String::from_utf8_lossy(&o.stdout)
+        .contains(&format!("{needed} draw passes (at most {needed})")));
+    // With 13 the design needs only the temper anneal: 8 + 5.
+    let (o, _) = design_emitting(&copper_demo_with_max_passes(dir.path(), 13), dir.path());
+    let out = String::from_utf8_lossy(&o.stdout);
+    assert!(
+        out.contains("13 draw passes (at most 13), 1 anneal;"),
+        "{out}"
+    );
 }
 
 #[test]
@@ -378,4 +404,165 @@ fn tapered_without_a_taper_is_designed_with_the_documented_default_and_says_so()
         notes.contains("taper 0.9 (the default; set target.taper)"),
         "{notes}"
     );
+}
+
+#[test]
+fn the_temper_anneal_reports_the_window_of_anneal_sizes() {
+    // Voce inverse (Voce 1948; docs/physics.md) at the window's ends,
+    // 380 and 420 MPa: eps = -ec ln((ss - s)/(ss - s0)); an anneal at
+    // D = D_f exp(eps/2) for any eps between lands in the window.
+    let v = json(&coldpass(&[
+        "design",
+        "schedules-demo/design-copper-temper.yaml",
+        "--format",
+        "json",
+    ]));
+    let a = &v["design"]["anneals"][0];
+    assert_eq!(a["reason"], "temper");
+    let d = |s: f64| 1.2 * (-0.8 * ((470.0 - s) / (470.0f64 - 80.0)).ln() / 2.0).exp();
+    let w = &a["window_mm"];
+    assert!(
+        (w["min_mm"].as_f64().unwrap() / d(380.0) - 1.0).abs() < 1e-9,
+        "{w}"
+    );
+    assert!(
+        (w["max_mm"].as_f64().unwrap() / d(420.0) - 1.0).abs() < 1e-9,
+        "{w}"
+    );
+    let at = a["diameter_mm"].as_f64().unwrap();
+    assert!(d(380.0) <= at && at <= d(420.0));
+}
+
+#[test]
+fn dies_are_rounded_to_the_die_room_step_and_listed() {
+    let v = json(&coldpass(&[
+        "design",
+        "schedules-demo/design-copper-die-room.yaml",
+        "--format",
+        "json",
+    ]));
+    let s = &v["design"];
+    assert_eq!(s["draw_passes"], 11, "target.passes: 11");
+    let dies = s["dies"].as_array().unwrap();
+    let mut count = 0;
+    for d in dies {
+        let mm = d["size_mm"].as_f64().unwrap();
+        // A multiple of 0.01 mm, written as such.
+        assert!(((mm * 100.0).round() - mm * 100.0).abs() < 1e-9, "{mm}");
+        assert!(
+            format!("{mm}")
+                .split('.')
+                .nth(1)
+                .is_none_or(|f| f.len() <= 2),
+            "{mm}"
+        );
+        assert_eq!(d["land_length_mm"], 0.3);
+        count += d["count"].as_u64().unwrap();
+    }
+    assert_eq!(count, 11);
+    // The rounded schedule is what check evaluates, and it is within the limits.
+    for r in v["schedule"]["passes"].as_array().unwrap() {
+        assert!(r["flags"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .all(|f| f != "over-draw-limit"));
+    }
+}
+
+#[test]
+fn a_pass_count_that_cannot_meet_the_limits_is_refused_with_the_least_that_can() {
+    let dir = tempfile::tempdir().unwrap();
+    let text = std::fs::read_to_string(root("schedules-demo/design-copper-die-room.yaml")).unwrap();
+    let f = write(
+        dir.path(),
+        "p5.yaml",
+        &text.replace("passes: 11", "passes: 5"),
+    );
+    let (o, written) = design_emitting(&f, dir.path());
+    let err = String::from_utf8_lossy(&o.stderr).to_string();
+    assert_eq!(o.status.code(), Some(1), "{err}");
+    assert!(!written);
+    assert!(
+        err.contains("target.passes 5 cannot meet every limit"),
+        "{err}"
+    );
+    let least: u32 = err
+        .split("set target.passes to ")
+        .nth(1)
+        .and_then(|t| t.split(' ').next())
+        .and_then(|t| t.parse().ok())
+        .unwrap_or_else(|| panic!("{err}"));
+    assert!(least > 5);
+    let f = write(
+        dir.path(),
+        "pl.yaml",
+        &text.replace("passes: 11", &format!("passes: {least}")),
+    );
+    let (o, _) = design_emitting(&f, dir.path());
+    assert_eq!(
+        o.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&o.stderr)
+    );
+    let f = write(
+        dir.path(),
+        "pm.yaml",
+        &text.replace("passes: 11", &format!("passes: {}", least - 1)),
+    );
+    assert_eq!(design_emitting(&f, dir.path()).0.status.code(), Some(1));
+}
+
+#[test]
+fn a_wire_temperature_limit_below_ambient_is_refused_without_a_search() {
+    // Issue 15: every pass leaves the die above the ambient it entered at.
+    let dir = tempfile::tempdir().unwrap();
+    let f = write(
+        dir.path(),
+        "cold.yaml",
+        &format!(
+            "{}  wire_temperature_max_c: 20\ntarget:\n  diameter: 2.0\n  max_passes: 5\n",
+            COPPER
+        ),
+    );
+    let (o, written) = design_emitting(&f, dir.path());
+    let err = String::from_utf8_lossy(&o.stderr);
+    assert_eq!(o.status.code(), Some(1), "{err}");
+    assert!(!written);
+    assert!(
+        err.contains("limits.wire_temperature_max_c")
+            && err.contains("20 C")
+            && err.contains("25 C"),
+        "{err}"
+    );
+}
+
+#[test]
+fn one_ratio_over_the_whole_schedule_when_asked() {
+    // Two cold-work anneals; with ratio_across: whole-schedule every pass of
+    // every run is at one draw ratio (spread within the 0.5 % equal-ratio band).
+    let dir = tempfile::tempdir().unwrap();
+    let f = write(
+        dir.path(),
+        "whole.yaml",
+        &(COPPER
+            .replace(
+                "flow: {law: voce, sigma0_mpa: 80, saturation_mpa: 470, eps_c: 0.8}",
+                "flow: {law: voce, sigma0_mpa: 80, saturation_mpa: 470, eps_c: 0.8}\n  cold_work_limit: 2.0",
+            )
+            .replace("diameter: 8.0", "diameter: 10.0")
+            + "target:\n  diameter: 0.87\n  reduction_max: 0.2\n  ratio_across: whole-schedule\n  max_passes: 40\n"),
+    );
+    let v = json(&coldpass(&[
+        "design",
+        f.to_str().unwrap(),
+        "--format",
+        "json",
+    ]));
+    let s = &v["design"];
+    assert!(s["anneals"].as_array().unwrap().len() >= 2, "{s}");
+    let spread = s["draw_ratio_spread"].as_f64().unwrap();
+    assert!(spread <= 0.005, "{spread}");
+    assert_eq!(s["ratio_across"], "whole-schedule");
 }

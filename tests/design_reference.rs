@@ -31,6 +31,7 @@ limits:
   draw_ratio_max: 1
 target:
   diameter: {df}
+  draw_ratio_aim: 1  # held to the limit itself: these checks are about the ratio limit
 {extra}
 "#
     )

@@ -104,6 +104,7 @@ proptest! {
             data: if engineering { DataKind::Engineering } else { DataKind::True },
             shear_modulus_gpa: None,
             reach_strain: None,
+            ..FitOptions::default()
         };
         if let Err(e) = fit_record(&strain, &stress, &options) {
             prop_assert!(!e.to_string().is_empty());

@@ -228,10 +228,8 @@ fn a_multi_megabyte_bad_cell_in_a_tensile_record_is_not_echoed_whole() {
     assert_eq!(o.status.code(), Some(1));
     let e = stderr(&o);
     assert!(e.len() < 4000, "message of {} bytes", e.len());
-    assert!(
-        e.contains("characters cut") && e.contains("not a number"),
-        "{e}"
-    );
+    // The cell is named by its line and column and shown cut short.
+    assert!(e.contains("not a number") && e.contains("line "), "{e}");
 }
 
 #[test]

@@ -55,9 +55,10 @@ fn zeroed(mut file: ScheduleFile) -> ScheduleFile {
     file
 }
 
-/// Zero scatter is the nominal schedule: every sample's draw ratio is
-/// `check`'s to the last bit, and each probability is 0 or 1 as `check`'s
-/// flags say (over-draw-limit: ratio > max; near: ratio > warn).
+/// Zero scatter is the nominal schedule: every sample's draw ratio and
+/// tensile strength are `check`'s to the last bit, and each probability is 0
+/// or 1 as `check`'s figures and flags say (over-draw-limit: ratio > max;
+/// near: ratio > warn).
 #[test]
 fn zero_scatter_reproduces_check_exactly_for_every_demo() {
     for path in common::demo_schedules() {
@@ -88,7 +89,15 @@ fn zero_scatter_reproduces_check_exactly_for_every_demo() {
                 }
             }
             let one = |b: bool| if b { 1.0 } else { 0.0 };
-            assert_eq!(p.break_probability, one(r >= 1.0), "{at}");
+            // Break: the governing drawing stress at or over the drawn wire's
+            // tensile strength, as check reports both.
+            let uts = c.tensile_strength_mpa.unwrap_or(c.flow_stress_exit_mpa);
+            assert_eq!(p.tensile_strength_mpa, uts, "{at}");
+            assert_eq!(
+                p.break_probability,
+                one(c.governing_draw_stress_mpa.unwrap() >= uts),
+                "{at}"
+            );
             assert_eq!(
                 p.over_max_probability,
                 one(c.flags.contains(&Flag::OverDrawLimit)),

@@ -10,7 +10,7 @@ use coldpass::design::{design, schedule_yaml, DesignOptions};
 use coldpass::schedule;
 use coldpass::Method;
 
-use super::check::parse_method;
+use super::check::method_parser;
 use super::options::{ReportArgs, ViewArgs};
 use super::{EXIT_OK, EXIT_OVER};
 use crate::{output, report};
@@ -21,7 +21,7 @@ pub struct DesignArgs {
     /// The design file (YAML): a schedule file's blocks plus `target`, no `passes`.
     pub file: PathBuf,
     /// Governing method, overriding the file's `limits.method` (written into the emitted schedule).
-    #[arg(long, value_name = "NAME", value_parser = parse_method)]
+    #[arg(long, value_name = "NAME", value_parser = method_parser())]
     pub method: Option<Method>,
     #[command(flatten)]
     pub report: ReportArgs,
@@ -37,7 +37,7 @@ pub struct DesignArgs {
 /// none can (the message names the binding constraint) or the file is bad.
 pub fn run(args: &DesignArgs) -> Result<u8> {
     let name = args.file.display().to_string();
-    let text = crate::input::read_text(&args.file)?;
+    let text = super::check::read_schedule_text(&args.file)?;
     let file = schedule::parse(&text).with_context(|| format!("reading design '{name}'"))?;
     let d = design(
         &file,

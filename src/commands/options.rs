@@ -49,6 +49,10 @@ pub struct ViewArgs {
     /// step,exit_diameter_mm,draw_ratio,flags).
     #[arg(long, value_name = "KEY,KEY,...", value_delimiter = ',')]
     pub columns: Option<Vec<String>>,
+    /// CSV: one row of the summary keys (passes, anneals, worst ratio,
+    /// throughput, tonnes per shift, total power, verdict) instead of one row per step.
+    #[arg(long)]
+    pub summary: bool,
 }
 
 impl ViewArgs {
@@ -64,6 +68,7 @@ impl ViewArgs {
                 units: self.units,
                 width: terminal_width(),
             },
+            csv_summary: self.summary,
         }
     }
 }

@@ -13,7 +13,7 @@ use coldpass::risk::{self, RiskError, RiskOptions, Sampling};
 use coldpass::schedule;
 use coldpass::Method;
 
-use super::check::parse_method;
+use super::check::method_parser;
 use super::{EXIT_OK, EXIT_OVER};
 use crate::commands::options::ReportArgs;
 use crate::{output, report};
@@ -49,7 +49,7 @@ pub struct RiskArgs {
     #[arg(long, value_name = "P")]
     pub target_probability: Option<f64>,
     /// Governing method, overriding the file's `limits.method`.
-    #[arg(long, value_name = "NAME", value_parser = parse_method)]
+    #[arg(long, value_name = "NAME", value_parser = method_parser())]
     pub method: Option<Method>,
     #[command(flatten)]
     pub report: ReportArgs,
@@ -59,7 +59,7 @@ pub struct RiskArgs {
 /// is over `--target-probability`; 130 when stopped by Ctrl-C (nothing written).
 pub fn run(args: &RiskArgs) -> Result<u8> {
     let name = args.file.display().to_string();
-    let text = crate::input::read_text(&args.file)?;
+    let text = super::check::read_schedule_text(&args.file)?;
     let mut file = schedule::parse(&text).with_context(|| format!("reading schedule '{name}'"))?;
     if file.target.is_some() && file.passes.is_empty() {
         let scatter = file.scatter.clone();

@@ -12,6 +12,15 @@ use super::Flag;
 pub(super) struct FlagLimits {
     /// Largest distance from the optimum semi-angle, degrees.
     pub angle_tolerance_deg: f64,
+    /// Per-pass area reduction above which a pass is `heavy-reduction`.
+    pub reduction_warn: f64,
+    /// Highest wire temperature at a die exit (the lower of the file's and
+    /// the machine's), deg C.
+    pub temperature_max_c: Option<f64>,
+    /// Largest slip (on a slip machine).
+    pub slip_max: Option<f64>,
+    /// Power limit per die without a machine, kW (`line.block_power_kw`).
+    pub block_power_kw: Option<f64>,
 }
 
 /// The flags of one draw pass.
@@ -39,22 +48,43 @@ pub(super) fn pass_flags(
             flags.push(Flag::CentralBurstRisk);
         }
     }
-    if let Some(tmax) = l.wire_temperature_max_c {
+    if let Some(tmax) = limits.temperature_max_c {
         if line.wire_temperature_c > tmax {
             flags.push(Flag::TooHot);
         }
     }
-    if let (Some(p), Some(pmax)) = (
-        line.power_kw,
-        file.line.as_ref().and_then(|l| l.block_power_kw),
-    ) {
+    if let (Some(p), Some(pmax)) = (line.power_kw, limits.block_power_kw) {
         if p > pmax {
             flags.push(Flag::OverBlockPower);
         }
     }
+    // A relative margin keeps a block exactly at its limit (the attainable
+    // speed) within it despite rounding.
+    const AT_LIMIT: f64 = 1.0 + 1e-9;
+    if let Some(b) = &line.block {
+        if b.motor_load > AT_LIMIT {
+            flags.push(Flag::OverBlockPower);
+        }
+        if b.surface_speed_m_s > b.max_surface_speed_m_s * AT_LIMIT {
+            flags.push(Flag::OverCapstanSpeed);
+        }
+        if b.slip < -1e-9 {
+            flags.push(Flag::NegativeSlip);
+        } else if limits.slip_max.is_some_and(|s| b.slip > s) {
+            flags.push(Flag::SlipOverLimit);
+        }
+    }
     let back = mech.back_tension_mpa;
-    if back > 0.0 && back >= mech.flow_stress_entry_mpa {
+    if back > 0.0 && back >= f.entry_yield_mpa {
         flags.push(Flag::BackTensionOverYield);
+    }
+    if mech.area_reduction > limits.reduction_warn {
+        flags.push(Flag::HeavyReduction);
+    }
+    if let Some(valid) = file.material.flow_valid_to_strain {
+        if mech.strain_after > valid {
+            flags.push(Flag::PastLawRange);
+        }
     }
     if let Some(o) = f.optimum {
         if !o.at_search_limit

@@ -60,11 +60,14 @@ pub(super) fn finish_diameter_mm(file: &ScheduleFile) -> f64 {
 
 /// Lays out every step: sizes, dies, strains and laws, refusing an exit at
 /// or above its entry, a pass with no semi-angle, and the efficiency method
-/// without an efficiency.
-pub(super) fn plan_steps(
-    file: &ScheduleFile,
+/// without an efficiency. `dancers[k]` is the back tension a machine's
+/// dancer holds on draw `k` (from 0) when the pass gives none.
+pub(super) fn plan_steps<'a>(
+    file: &'a ScheduleFile,
     needs_efficiency: bool,
-) -> Result<Vec<Planned<'_>>, ScheduleError> {
+    dancers: &[Option<f64>],
+) -> Result<Vec<Planned<'a>>, ScheduleError> {
+    let mut draw_no = 0usize;
     let mut law: &FlowLaw = &file.material.flow;
     let mut strain = file.start.strain;
     let mut d_in = file.start.diameter.mm();
@@ -122,13 +125,17 @@ pub(super) fn plan_steps(
                 entry_diameter_mm: d_in,
                 exit_diameter_mm: d_out,
                 strain_before: strain,
-                back_tension_mpa: draw.back_tension_mpa.unwrap_or(0.0),
+                back_tension_mpa: draw
+                    .back_tension_mpa
+                    .or(dancers.get(draw_no).copied().flatten())
+                    .unwrap_or(0.0),
                 die,
             },
             law,
             cumulative_reduction: pass::area_reduction(d_since_anneal, d_out),
         }));
         strain += pass::true_strain(d_in, d_out);
+        draw_no += 1;
         d_in = d_out;
     }
     Ok(out)

@@ -7,7 +7,7 @@ use crate::pass::{self, analyse_pass, optimum_semi_angle, Method, PassMechanics,
 use crate::schedule::ScheduleError;
 
 use super::geometry::PlannedDraw;
-use super::pass_error;
+use super::{pass_error, strength};
 
 /// What stage 2 gives for one draw pass.
 #[derive(Debug, Clone)]
@@ -26,6 +26,10 @@ pub(super) struct PassFigures {
     pub temperature_rise_c: f64,
     /// The die's semi-angle, degrees.
     pub semi_angle_deg: f64,
+    /// The yield the back tension is held against, MPa.
+    pub entry_yield_mpa: f64,
+    /// Tensile strength of the wire after the pass, MPa (Considere).
+    pub tensile_strength_mpa: Option<f64>,
 }
 
 /// Material constants the temperature rise needs.
@@ -39,12 +43,15 @@ pub(super) struct Heat {
     pub heat_fraction: f64,
 }
 
-/// Evaluates one planned draw by `method`.
+/// Evaluates one planned draw by `method`; `yield_mpa` is the file's yield
+/// of annealed stock and `eps_u` the law's Considere strain.
 pub(super) fn analyse(
     draw: &PlannedDraw<'_>,
     settings: &Settings,
     method: Method,
     heat: Heat,
+    yield_mpa: Option<f64>,
+    eps_u: Option<f64>,
 ) -> Result<PassFigures, ScheduleError> {
     let i = draw.index;
     let dp = &draw.pass;
@@ -68,6 +75,8 @@ pub(super) fn analyse(
         optimum,
         temperature_rise_c: rise,
         semi_angle_deg: dp.die.semi_angle_deg,
+        entry_yield_mpa: strength::entry_yield_mpa(draw.law, dp.strain_before, yield_mpa),
+        tensile_strength_mpa: strength::tensile_strength_mpa(draw.law, eps_u, mech.strain_after),
         mech,
     })
 }

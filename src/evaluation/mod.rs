@@ -1,16 +1,20 @@
 //! Evaluating a schedule pass by pass: strain accumulation, flow stress,
 //! drawing stress, limits, anneals, speeds, power and throughput.
 //!
-//! [`evaluate`] is a pipeline of five stages, each in a file named for it:
+//! [`evaluate`] is a pipeline of stages, each in a file named for it:
 //! `geometry` (sizes, dies and strain), `mechanics` (each pass by every
-//! method), `line` (speeds, power, temperatures), `flags` (each pass against
-//! the limits) and `summary` (totals and the verdict).
+//! method, with `strength`: Considere and the entry yield), `line` (speeds,
+//! net power, temperatures, and the machine run of [`crate::machine`]),
+//! `flags` and `rows` (each pass against the limits), `summary` (totals and
+//! the verdict) and `notes` (what the report says in words).
 //!
 //! Speeds follow volume constancy on a continuous line, `v_i A_i = v_f A_f`
 //! (common practice), from the finish speed through every pass; mass
-//! throughput is `rho A_f v_f`. The wire is taken to enter every die at the
-//! ambient temperature (cooled on the capstan between dies), so its exit
-//! temperature is ambient plus the pass's mean adiabatic rise.
+//! throughput is `rho A_f v_f`. Without a machine the wire is taken to enter
+//! every die at the ambient temperature (cooled on the capstan between
+//! dies), so its exit temperature is ambient plus the pass's mean adiabatic
+//! rise; the no-cooling upper bound sums the rises. On a machine the
+//! temperature is carried die to die through its cooling.
 
 use serde::Serialize;
 
@@ -18,23 +22,32 @@ mod flags;
 mod geometry;
 mod line;
 mod mechanics;
+mod notes;
+mod rows;
+pub mod strength;
 mod summary;
 
 use crate::flow::FlowLaw;
+use crate::machine::{Machine, MachineKind, MachineRun, SpeedLimit};
 use crate::pass::{self, DrawStresses, Method, Settings};
 use crate::schedule::{self, ScheduleError, ScheduleFile, Step};
 
 use flags::FlagLimits;
-use geometry::{Planned, PlannedDraw};
-use line::LineFigures;
-use mechanics::{Heat, PassFigures};
+use geometry::Planned;
+use mechanics::Heat;
 
 /// The caution every report carries.
 pub const CAUTION: &str = "Planning estimates only: confirm every figure by trial. Wire under tension whips when it breaks and running capstans trap hands; the machine maker's limits, local codes and licensed practice govern.";
 
-/// Accumulated strain past which the finished flow stress is taken as close to
-/// the wire's tensile strength (common practice; a judgement, not a law).
-pub const HEAVILY_DRAWN_STRAIN: f64 = 1.0;
+/// Per-pass area reduction above which a multi-die wire pass is flagged
+/// `heavy-reduction`: fine and medium wire takes 15 to 25 % a pass and
+/// larger sizes 20 to 45 % (Kalpakjian & Schmid, Manufacturing Engineering
+/// and Technology, ch. on drawing; from memory), so 30 % is the common
+/// ceiling on a multi-die machine.
+pub const REDUCTION_WARN_WIRE: f64 = 0.30;
+/// The same for a single draft on a single-block machine (bar, rod): the
+/// top of the 20 to 45 % range above.
+pub const REDUCTION_WARN_SINGLE_DRAFT: f64 = 0.45;
 
 /// A flag raised on a pass. Names are plain words, the same in every format.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize)]
@@ -54,9 +67,20 @@ pub enum Flag {
     OverBlockPower,
     /// Semi-angle more than `angle_tolerance_deg` from the optimum.
     AngleOffOptimum,
-    /// Back tension at or above the entry flow stress: the wire would yield
+    /// Back tension at or above the entry yield: the wire would yield
     /// before it reaches the die.
     BackTensionOverYield,
+    /// Area reduction of the pass above `reduction_warn` (common practice).
+    HeavyReduction,
+    /// The pass takes the wire past the strain its flow law was fitted over.
+    PastLawRange,
+    /// Capstan surface speed above the block's highest.
+    OverCapstanSpeed,
+    /// Capstan slower than the wire on it: it does not pull, and the next
+    /// capstan draws through two dies (a common cause of breaks).
+    NegativeSlip,
+    /// Slip above the machine's `slip_max`: capstan and wire wear.
+    SlipOverLimit,
 }
 
 impl Flag {
@@ -71,6 +95,11 @@ impl Flag {
             Flag::OverBlockPower => "over-block-power",
             Flag::AngleOffOptimum => "angle-off-optimum",
             Flag::BackTensionOverYield => "back-tension-over-yield",
+            Flag::HeavyReduction => "heavy-reduction",
+            Flag::PastLawRange => "past-law-range",
+            Flag::OverCapstanSpeed => "over-capstan-speed",
+            Flag::NegativeSlip => "negative-slip",
+            Flag::SlipOverLimit => "slip-over-limit",
         }
     }
 
@@ -84,6 +113,8 @@ impl Flag {
                 | Flag::TooHot
                 | Flag::OverBlockPower
                 | Flag::BackTensionOverYield
+                | Flag::OverCapstanSpeed
+                | Flag::NegativeSlip
         )
     }
 }
@@ -171,8 +202,21 @@ pub struct StepReport {
     pub power_kw: Option<f64>,
     /// Mean adiabatic temperature rise, deg C.
     pub temperature_rise_c: Option<f64>,
-    /// Mean wire temperature at the die exit, deg C.
+    /// Mean wire temperature at the die exit, deg C (on a machine: carried
+    /// from die to die through its cooling).
     pub wire_temperature_c: Option<f64>,
+    /// Mean wire temperature at the die entry, deg C.
+    pub wire_temperature_entry_c: Option<f64>,
+    /// Upper bound of the exit temperature with no cooling at all, deg C:
+    /// ambient plus the rises of every die since the last anneal.
+    pub wire_temperature_no_cooling_c: Option<f64>,
+    /// Yield the back tension is held against, MPa (the entry flow stress,
+    /// or the offset yield of annealed stock).
+    pub entry_yield_mpa: Option<f64>,
+    /// Tensile strength of the wire after the step, MPa (Considere).
+    pub tensile_strength_mpa: Option<f64>,
+    /// The machine block the die is on.
+    pub block: Option<usize>,
     /// Flags raised on this step.
     pub flags: Vec<Flag>,
 }
@@ -206,8 +250,20 @@ pub struct Summary {
     pub throughput_t_per_shift: Option<f64>,
     /// Minutes to draw one coil (with `coil_mass_kg`).
     pub coil_time_min: Option<f64>,
-    /// Sum of the capstans' net pulling power, kW (with a `line`).
+    /// Sum of the capstans' net pulling power, kW (with a `line` or a machine).
     pub total_power_kw: Option<f64>,
+    /// Tensile strength of the finished wire, MPa (Considere).
+    pub tensile_strength_mpa: Option<f64>,
+    /// Considere strain of the finishing law (where `d sigma/d eps = sigma`).
+    pub considere_strain: Option<f64>,
+    /// Highest finish speed the machine allows, m/s (with a machine).
+    pub attainable_speed_m_s: Option<f64>,
+    /// The block that limits the speed (with a machine).
+    pub binding_block: Option<usize>,
+    /// The limit that binds: `motor-rating`, `capstan-speed` or `wire-temperature`.
+    pub binding_limit: Option<SpeedLimit>,
+    /// Tonnes per shift at the attainable speed (with a machine).
+    pub attainable_t_per_shift: Option<f64>,
     /// `ok`, `warn` or `over`.
     pub verdict: Verdict,
 }
@@ -233,6 +289,10 @@ pub struct ScheduleReport {
     pub passes: Vec<StepReport>,
     /// The summary.
     pub summary: Summary,
+    /// The run on the machine, block by block (with a machine).
+    pub machine: Option<MachineRun>,
+    /// The law against the mill's measured strengths of drawn wire.
+    pub strength_checks: Vec<StrengthCheck>,
     /// The caution footer.
     pub caution: String,
 }
@@ -242,6 +302,19 @@ impl ScheduleReport {
     pub fn is_over(&self) -> bool {
         self.summary.verdict == Verdict::Over
     }
+}
+
+/// A measured strength of drawn wire against the law's estimate.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct StrengthCheck {
+    /// Accumulated true strain of the point.
+    pub strain: f64,
+    /// Measured tensile strength, MPa.
+    pub measured_mpa: f64,
+    /// The law's tensile strength there (Considere), MPa.
+    pub predicted_mpa: f64,
+    /// `(predicted - measured) / measured`.
+    pub difference: f64,
 }
 
 /// Where the governing method is chosen.
@@ -264,13 +337,32 @@ pub(crate) fn pass_error(i: usize, source: pass::PassError) -> ScheduleError {
     }
 }
 
-/// Evaluates every step of `file` (see the module documentation for the
-/// assumptions): a pipeline of the five stages, each in its own file.
+/// Evaluates every step of `file` on its line alone (see the module
+/// documentation for the assumptions).
 pub fn evaluate(
     file: &ScheduleFile,
     options: &EvaluateOptions,
 ) -> Result<ScheduleReport, ScheduleError> {
+    evaluate_on(file, options, None)
+}
+
+/// Evaluates every step of `file`, on `machine` when one is given: a
+/// pipeline of the five stages, each in its own file.
+pub fn evaluate_on(
+    file: &ScheduleFile,
+    options: &EvaluateOptions,
+    machine: Option<&Machine>,
+) -> Result<ScheduleReport, ScheduleError> {
     refuse_without_draws(file)?;
+    if let Some(m) = machine {
+        refuse_anneal_inside_run(file)?;
+        let draws = file
+            .passes
+            .iter()
+            .filter(|s| matches!(s, Step::Draw(_)))
+            .count();
+        m.check_fit(draws)?;
+    }
     let (method, method_source) = governing_method(file, options);
     let mut notes = Vec::new();
     if method_source == "default" {
@@ -293,20 +385,52 @@ pub fn evaluate(
             .heat_fraction
             .unwrap_or(schedule::DEFAULT_HEAT_FRACTION),
     };
+    let temperature_max_c = match (
+        limits.wire_temperature_max_c,
+        machine.and_then(|m| m.wire_temperature_max_c),
+    ) {
+        (Some(a), Some(b)) => Some(a.min(b)),
+        (a, b) => a.or(b),
+    };
     let flag_limits = FlagLimits {
         angle_tolerance_deg: limits
             .angle_tolerance_deg
             .unwrap_or(schedule::DEFAULT_ANGLE_TOLERANCE_DEG),
+        reduction_warn: limits.reduction_warn.unwrap_or(
+            if machine.is_some_and(|m| m.kind == MachineKind::SingleBlock) {
+                REDUCTION_WARN_SINGLE_DRAFT
+            } else {
+                REDUCTION_WARN_WIRE
+            },
+        ),
+        temperature_max_c,
+        slip_max: machine.map(|m| m.slip_limit()),
+        block_power_kw: if machine.is_some() {
+            None
+        } else {
+            file.line.as_ref().and_then(|l| l.block_power_kw)
+        },
     };
     let finish_d = geometry::finish_diameter_mm(file);
+    let considere = Considere {
+        flow: strength::considere_strain(&file.material.flow),
+        annealed: strength::considere_strain(file.annealed_law()),
+    };
 
     // 1. Geometry and strain.
-    let planned = geometry::plan_steps(file, method == Method::Efficiency)?;
+    let dancers: Vec<Option<f64>> = machine
+        .map(|m| m.blocks.iter().map(|b| b.dancer_back_tension_mpa).collect())
+        .unwrap_or_default();
+    let planned = geometry::plan_steps(file, method == Method::Efficiency, &dancers)?;
     // 2. Mechanics per pass.
     let figures = planned
         .iter()
         .map(|p| match p {
-            Planned::Draw(d) => mechanics::analyse(d, &settings, method, heat).map(Some),
+            Planned::Draw(d) => {
+                let eps_u = considere.of(file, d.law);
+                mechanics::analyse(d, &settings, method, heat, file.material.yield_mpa, eps_u)
+                    .map(Some)
+            }
             Planned::Anneal { .. } => Ok(None),
         })
         .collect::<Result<Vec<_>, _>>()?;
@@ -322,23 +446,71 @@ pub fn evaluate(
             ));
         }
     }
-    // 3. Line (and machine).
+    // 3. Line and machine.
     let line = file.line.as_ref();
-    let line_figures = line::run_line(&planned, &figures, line, finish_d, ambient);
+    let run = match machine {
+        Some(m) => Some(line::run_machine(
+            m,
+            &planned,
+            &figures,
+            line.map(|l| l.finish_speed_m_s),
+            ambient,
+            temperature_max_c,
+        )?),
+        None => None,
+    };
+    let speed = line
+        .map(|l| l.finish_speed_m_s)
+        .or(run.as_ref().map(|r| r.running_speed_m_s));
+    let line_figures = line::run_line(&planned, &figures, speed, finish_d, ambient, run.as_ref());
     // 4. Flags.
-    let rows = build_rows(file, flag_limits, &planned, &figures, &line_figures);
-    if let Some(limit) = file.material.cold_work_limit {
-        if let Some(r) = rows.iter().find(|r| r.flags.contains(&Flag::AnnealDue)) {
-            notes.push(format!(
-                "cold-work limit {limit} is passed at step {}: schedule an anneal before it",
-                r.step
-            ));
+    let rows = rows::build_rows(file, flag_limits, &planned, &figures, &line_figures);
+    notes.extend(notes::flag_notes(file, &rows, &flag_limits));
+    // 5. Summary.
+    notes.extend(notes::closing_notes(
+        &rows,
+        ambient,
+        line.is_some() || run.is_some(),
+        considere.of(file, last_law(&planned)),
+        run.as_ref(),
+    ));
+    if let Some(r) = &run {
+        notes.extend(notes::machine_notes(r, line.map(|l| l.finish_speed_m_s)));
+        if line.is_some_and(|l| l.block_power_kw.is_some()) {
+            notes.push(
+                "line.block_power_kw is not used on a machine: each block's motor_kw applies"
+                    .into(),
+            );
         }
     }
-    // 5. Summary.
-    notes.extend(closing_notes(&rows, ambient, line.is_some()));
-    let total_power = line.map(|_| rows.iter().filter_map(|r| r.power_kw).sum());
-    let summary = summary::summarise(file, &rows, finish_d, total_power);
+    let total_power = speed.map(|_| rows.iter().filter_map(|r| r.power_kw).sum());
+    let mut summary = summary::summarise(file, &rows, finish_d, total_power);
+    summary.considere_strain = considere.of(file, last_law(&planned));
+    if let Some(r) = &run {
+        summary.attainable_speed_m_s = r.attainable_speed_m_s;
+        summary.binding_block = Some(r.binding_block);
+        summary.binding_limit = Some(r.binding_limit);
+        summary.attainable_t_per_shift = r.attainable_speed_m_s.map(|v| {
+            summary::tonnes_per_shift(
+                line,
+                summary::throughput_kg_h(file.material.density_kg_m3, finish_d, v),
+            )
+        });
+    }
+    let strength_checks = notes::strength_checks(file, &considere);
+    if let Some(worst) = strength_checks
+        .iter()
+        .max_by(|a, b| a.difference.abs().total_cmp(&b.difference.abs()))
+    {
+        notes.push(format!(
+            "law against the mill's measured strengths: {} points, farthest at strain {:.3}: law {:.0} MPa vs measured {:.0} MPa ({:+.1} %)",
+            strength_checks.len(),
+            worst.strain,
+            worst.predicted_mpa,
+            worst.measured_mpa,
+            100.0 * worst.difference
+        ));
+    }
     Ok(ScheduleReport {
         title: file.title.clone(),
         material: file.material.label.clone(),
@@ -349,8 +521,54 @@ pub fn evaluate(
         notes,
         passes: rows,
         summary,
+        machine: run,
+        strength_checks,
         caution: CAUTION.to_string(),
     })
+}
+
+/// The Considere strains of the file's two laws.
+#[derive(Debug, Clone, Copy)]
+struct Considere {
+    flow: Option<f64>,
+    annealed: Option<f64>,
+}
+
+impl Considere {
+    fn of(&self, file: &ScheduleFile, law: &FlowLaw) -> Option<f64> {
+        if std::ptr::eq(law, &file.material.flow) {
+            self.flow
+        } else {
+            self.annealed
+        }
+    }
+}
+
+/// The law in force at the end of the schedule.
+fn last_law<'a>(planned: &[Planned<'a>]) -> &'a FlowLaw {
+    match planned.last().expect("a schedule has steps") {
+        Planned::Draw(d) => d.law,
+        Planned::Anneal { law, .. } => law,
+    }
+}
+
+/// A machine draws one continuous run: an anneal may come before the
+/// first die or after the last, not between dies.
+fn refuse_anneal_inside_run(file: &ScheduleFile) -> Result<(), ScheduleError> {
+    let is_draw = |s: &Step| matches!(s, Step::Draw(_));
+    let first = file.passes.iter().position(is_draw);
+    let last = file.passes.iter().rposition(is_draw);
+    if let (Some(a), Some(b)) = (first, last) {
+        if let Some(i) = (a..b).find(|&i| matches!(file.passes[i], Step::Anneal)) {
+            return Err(ScheduleError::Machine(
+                crate::machine::MachineError::DoesNotFit(format!(
+                    "{}: a machine draws one continuous run of dies, so an anneal between dies cannot run on it; check each run between anneals on its own",
+                    step_key(i, "")
+                )),
+            ));
+        }
+    }
+    Ok(())
 }
 
 /// A schedule needs a draw; a design file given to `check` is named as such.
@@ -377,139 +595,6 @@ fn governing_method(file: &ScheduleFile, options: &EvaluateOptions) -> (Method, 
         (None, Some(m)) => (m, "file"),
         (None, None) => (schedule::DEFAULT_METHOD, "default"),
     }
-}
-
-/// One report row per step, with its flags.
-fn build_rows(
-    file: &ScheduleFile,
-    flag_limits: FlagLimits,
-    planned: &[Planned<'_>],
-    figures: &[Option<PassFigures>],
-    line_figures: &[Option<LineFigures>],
-) -> Vec<StepReport> {
-    planned
-        .iter()
-        .zip(figures)
-        .zip(line_figures)
-        .map(|((p, f), l)| match (p, f, l) {
-            (Planned::Draw(d), Some(f), Some(l)) => {
-                draw_row(d, f, l, flags::pass_flags(file, flag_limits, f, l))
-            }
-            (
-                Planned::Anneal {
-                    index,
-                    diameter_mm,
-                    strain_before,
-                    law,
-                },
-                _,
-                _,
-            ) => anneal_row(*index, *diameter_mm, *strain_before, law),
-            _ => unreachable!("stages 2 and 3 give figures for every draw"),
-        })
-        .collect()
-}
-
-fn draw_row(d: &PlannedDraw<'_>, f: &PassFigures, l: &LineFigures, flags: Vec<Flag>) -> StepReport {
-    let mech = &f.mech;
-    let dp = &d.pass;
-    StepReport {
-        step: d.index + 1,
-        kind: StepKind::Draw,
-        die_size: d.die_size.clone(),
-        entry_diameter_mm: dp.entry_diameter_mm,
-        exit_diameter_mm: dp.exit_diameter_mm,
-        area_reduction: Some(mech.area_reduction),
-        elongation: Some(mech.elongation),
-        cumulative_reduction: d.cumulative_reduction,
-        pass_strain: Some(mech.pass_strain),
-        strain_before: mech.strain_before,
-        strain_after: mech.strain_after,
-        flow_stress_entry_mpa: Some(mech.flow_stress_entry_mpa),
-        mean_flow_stress_mpa: Some(mech.mean_flow_stress_mpa),
-        flow_stress_exit_mpa: mech.flow_stress_exit_mpa,
-        delta: Some(mech.delta),
-        semi_angle_deg: Some(dp.die.semi_angle_deg),
-        friction: Some(dp.die.friction),
-        friction_factor: Some(mech.friction_factor),
-        back_tension_mpa: Some(dp.back_tension_mpa),
-        draw_stress_mpa: Some(mech.draw_stress_mpa),
-        governing_draw_stress_mpa: Some(f.governing_mpa),
-        draw_ratio: Some(f.draw_ratio),
-        optimum_semi_angle_deg: f.optimum.map(|o| o.semi_angle_deg),
-        force_kn: Some(f.force_kn),
-        exit_speed_m_s: l.exit_speed_m_s,
-        net_pull_kn: Some(l.net_pull_kn),
-        power_kw: l.power_kw,
-        temperature_rise_c: Some(f.temperature_rise_c),
-        wire_temperature_c: Some(l.wire_temperature_c),
-        flags,
-    }
-}
-
-fn anneal_row(index: usize, diameter_mm: f64, strain_before: f64, law: &FlowLaw) -> StepReport {
-    StepReport {
-        step: index + 1,
-        kind: StepKind::Anneal,
-        die_size: None,
-        entry_diameter_mm: diameter_mm,
-        exit_diameter_mm: diameter_mm,
-        area_reduction: None,
-        elongation: None,
-        cumulative_reduction: 0.0,
-        pass_strain: None,
-        strain_before,
-        strain_after: 0.0,
-        flow_stress_entry_mpa: None,
-        mean_flow_stress_mpa: None,
-        flow_stress_exit_mpa: law.stress_mpa(0.0),
-        delta: None,
-        semi_angle_deg: None,
-        friction: None,
-        friction_factor: None,
-        back_tension_mpa: None,
-        draw_stress_mpa: None,
-        governing_draw_stress_mpa: None,
-        draw_ratio: None,
-        optimum_semi_angle_deg: None,
-        force_kn: None,
-        exit_speed_m_s: None,
-        net_pull_kn: None,
-        power_kw: None,
-        temperature_rise_c: None,
-        wire_temperature_c: None,
-        flags: Vec::new(),
-    }
-}
-
-/// The notes every report ends with: the finished strength, the temperature
-/// model and the speed model.
-fn closing_notes(rows: &[StepReport], ambient: f64, has_line: bool) -> Vec<String> {
-    let mut notes = Vec::new();
-    if let Some(last) = rows.last() {
-        // Common practice: heavily drawn wire has almost no uniform elongation
-        // left, so its tensile strength is close to its flow stress; a lightly
-        // drawn or annealed wire still work-hardens in the test (Considere).
-        notes.push(if last.strain_after >= HEAVILY_DRAWN_STRAIN {
-            format!(
-                "finished flow stress {:.0} MPa: for wire drawn this far (strain {:.2} since anneal) the tensile strength is close to it",
-                last.flow_stress_exit_mpa, last.strain_after
-            )
-        } else {
-            format!(
-                "finished flow stress {:.0} MPa: the wire is lightly drawn (strain {:.2} since anneal), so its tensile strength is higher than this (Considere)",
-                last.flow_stress_exit_mpa, last.strain_after
-            )
-        });
-    }
-    notes.push(format!(
-        "wire temperature: the wire enters every die at ambient ({ambient} C), cooled between dies; the figure is the bulk mean at the die exit (the surface runs hotter)"
-    ));
-    if has_line {
-        notes.push("speeds by volume constancy from the finish speed through every pass (one continuous line)".into());
-        notes.push("power: each capstan's net pull (its front pull less the back pull it holds on the next die) times its speed; the total counts each back pull once".into());
-    }
-    notes
 }
 
 fn method_uses_m(method: Method) -> bool {

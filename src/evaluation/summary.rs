@@ -88,6 +88,12 @@ pub(super) fn summarise(
         throughput_t_per_shift: per_shift,
         coil_time_min: coil,
         total_power_kw,
+        tensile_strength_mpa: last.tensile_strength_mpa,
+        considere_strain: None,
+        attainable_speed_m_s: None,
+        binding_block: None,
+        binding_limit: None,
+        attainable_t_per_shift: None,
         verdict: verdict(rows),
     }
 }

@@ -28,6 +28,18 @@
 //! prescribe; for ideal, efficiency and Siebel it is added whole (the energy
 //! balance of a die with a back pull). Angles are degrees at the interface and
 //! radians inside.
+//!
+//! A die land (bearing) of length `L` acts on the cone's exit stress of
+//! Sachs, Siebel and redundant through the slab balance
+//! `Y - (Y - sigma_cone) e^(-4 mu L / d)` ([`land_exit_stress`]); the upper
+//! bound carries Avitzur's own land term. Ideal and efficiency see no land.
+//!
+//! [`PreparedPass`] computes the die-independent part of a pass once (sizes,
+//! flow stresses, the angle-independent part of the Sachs integral) for
+//! callers that try many dies; [`analyse_pass`] and [`optimum_semi_angle`]
+//! are thin wrappers over it. The files of this folder: `prepared.rs` (the
+//! prepared pass and every method), `sachs.rs` (the Sachs integral by law),
+//! `optimum.rs` (Brent's search for the optimum angle).
 
 use serde::{Deserialize, Serialize};
 use std::f64::consts::PI;
@@ -38,7 +50,7 @@ use crate::flow::{FlowError, FlowLaw};
 use crate::param::{self, Ends, ParamError};
 use crate::quad;
 
-mod optimum;
+pub(crate) mod optimum;
 mod prepared;
 mod sachs;
 
@@ -408,6 +420,12 @@ pub fn delta(semi_angle_rad: f64, area_reduction: f64) -> f64 {
 /// alpha in radians; tends to 1 as alpha tends to 0 (Avitzur 1963; from memory).
 pub fn avitzur_f(alpha_rad: f64) -> f64 {
     let (s, c) = alpha_rad.sin_cos();
+    avitzur_f_of(s, c)
+}
+
+/// [`avitzur_f`] from `sin(alpha)` and `cos(alpha)` already at hand.
+#[inline]
+pub(crate) fn avitzur_f_of(s: f64, c: f64) -> f64 {
     let s2 = s * s;
     let k = 11.0 / 12.0;
     let root = (1.0 - k * s2).sqrt();

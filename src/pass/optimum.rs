@@ -65,14 +65,9 @@ impl PreparedPass<'_> {
 
 /// Brent's minimisation of a unimodal `f` on `[a, b]` to absolute tolerance
 /// `tol`: returns the abscissa, the value there and the number of probes.
-pub(crate) fn brent_minimum<F>(
-    mut f: F,
-    a: f64,
-    b: f64,
-    tol: f64,
-) -> Result<(f64, f64, u32), PassError>
+pub(crate) fn brent_minimum<F, E>(mut f: F, a: f64, b: f64, tol: f64) -> Result<(f64, f64, u32), E>
 where
-    F: FnMut(f64) -> Result<f64, PassError>,
+    F: FnMut(f64) -> Result<f64, E>,
 {
     const GOLDEN: f64 = 0.381_966_011_250_105_1; // (3 - sqrt 5) / 2
     let (mut a, mut b) = (a, b);
@@ -154,16 +149,52 @@ mod tests {
 
     #[test]
     fn brent_finds_a_parabola_minimum_in_few_probes() {
-        let (x, fx, probes) =
-            brent_minimum(|x| Ok((x - 7.3) * (x - 7.3) + 2.0), 1.0, 20.0, 1e-4).unwrap();
+        let (x, fx, probes) = brent_minimum(
+            |x| Ok::<f64, PassError>((x - 7.3) * (x - 7.3) + 2.0),
+            1.0,
+            20.0,
+            1e-4,
+        )
+        .unwrap();
         assert!((x - 7.3).abs() < 1e-4, "{x}");
         assert!((fx - 2.0).abs() < 1e-8);
         assert!(probes <= 8, "{probes}");
     }
 
     #[test]
+    fn brent_needs_about_ten_probes_on_drawing_stress_curves() {
+        // Issue 14: the former scan + golden section spent 28 probes a pass.
+        use crate::{Die, DrawPass, FlowLaw, Settings};
+        let law = FlowLaw::voce(80.0, 470.0, 0.8).unwrap();
+        let pass = DrawPass {
+            entry_diameter_mm: 8.0,
+            exit_diameter_mm: 7.2,
+            strain_before: 0.4,
+            back_tension_mpa: 0.0,
+            die: Die::new(6.0, 0.05).unwrap(),
+        };
+        let p = PreparedPass::new(&law, &pass, &Settings::default()).unwrap();
+        let t = p.die_terms(&pass.die);
+        for m in [
+            Method::Siebel,
+            Method::Redundant,
+            Method::UpperBound,
+            Method::Max,
+        ] {
+            let (_, _, probes) = brent_minimum(
+                |deg: f64| p.stress(&t, m, deg.to_radians()),
+                1.0,
+                20.0,
+                ANGLE_TOLERANCE_DEG,
+            )
+            .unwrap();
+            assert!(probes <= 14, "{m}: {probes} probes");
+        }
+    }
+
+    #[test]
     fn brent_converges_onto_the_end_of_a_falling_curve() {
-        let (x, _, _) = brent_minimum(|x| Ok(1.0 / x), 1.0, 20.0, 1e-4).unwrap();
+        let (x, _, _) = brent_minimum(|x| Ok::<f64, PassError>(1.0 / x), 1.0, 20.0, 1e-4).unwrap();
         assert!(20.0 - x < 2e-3, "{x}");
     }
 }

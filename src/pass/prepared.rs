@@ -29,7 +29,7 @@ use crate::param;
 
 use super::sachs::{self, SachsForm};
 use super::{
-    area_reduction, avitzur_f, delta, finite_or_overflow, land_exit_stress, true_strain, Die,
+    area_reduction, avitzur_f_of, delta, finite_or_overflow, land_exit_stress, true_strain, Die,
     DrawPass, DrawStresses, Method, PassError, PassMechanics, Settings,
 };
 
@@ -143,6 +143,7 @@ impl<'a> PreparedPass<'a> {
         let t = DieTerms::new(die, self.exit_diameter_mm);
         let alpha = die.semi_angle_deg.to_radians();
         let strain_after = self.strain_before + self.eps;
+        let shape = delta(alpha, self.reduction);
         let result = PassMechanics {
             entry_diameter_mm: self.entry_diameter_mm,
             exit_diameter_mm: self.exit_diameter_mm,
@@ -151,8 +152,8 @@ impl<'a> PreparedPass<'a> {
             pass_strain: self.eps,
             strain_before: self.strain_before,
             strain_after,
-            delta: delta(alpha, self.reduction),
-            redundant_factor: self.redundant_factor(alpha),
+            delta: shape,
+            redundant_factor: self.factor_of(shape),
             flow_stress_entry_mpa: self.flow_entry,
             flow_stress_exit_mpa: self.flow_exit,
             mean_flow_stress_mpa: self.mean,
@@ -258,7 +259,7 @@ impl<'a> PreparedPass<'a> {
     fn sachs_cone(&self, t: &DieTerms, alpha: f64) -> Result<f64, PassError> {
         let b = t.mu / alpha.tan();
         let decay = (-b * self.eps).exp();
-        let integral = match self.form.integral(b, self.eps) {
+        let integral = match self.form.integral(b, self.eps, decay) {
             Some(v) => v,
             None => sachs::integral_by_quadrature(self.law, self.strain_before, self.eps, b)?,
         };
@@ -270,7 +271,12 @@ impl<'a> PreparedPass<'a> {
     }
 
     fn redundant_factor(&self, alpha: f64) -> f64 {
-        let d = delta(alpha, self.reduction);
+        self.factor_of(delta(alpha, self.reduction))
+    }
+
+    /// `Phi = 1 + C (Delta - 1)` for `Delta > 1`, else 1.
+    #[inline]
+    fn factor_of(&self, d: f64) -> f64 {
         if d > 1.0 {
             1.0 + self.c * (d - 1.0)
         } else {
@@ -289,7 +295,7 @@ impl<'a> PreparedPass<'a> {
         let k = 2.0 / 3f64.sqrt();
         self.back
             + self.mean
-                * (2.0 * avitzur_f(alpha) * half
+                * (2.0 * avitzur_f_of(s, c) * half
                     + k * (alpha / (s * s) - cot)
                     + k * t.m * (cot * half + t.land_over_rf))
     }

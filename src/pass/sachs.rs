@@ -37,6 +37,23 @@ use super::PassError;
 /// normal f64 and the series needs under 1000 terms there.
 const SERIES_Z_MAX: f64 = 600.0;
 
+/// Terms the series may take: beyond `z + 8 sqrt(z) + 40` at `z = 600`.
+const SERIES_TERMS: usize = 1024;
+
+/// `1/k` for `k < SERIES_TERMS` (index 0 unused), so that each term of the
+/// series costs one division, not two.
+static RECIPROCALS: [f64; SERIES_TERMS] = reciprocals();
+
+const fn reciprocals() -> [f64; SERIES_TERMS] {
+    let mut table = [0.0; SERIES_TERMS];
+    let mut k = 1;
+    while k < SERIES_TERMS {
+        table[k] = 1.0 / k as f64;
+        k += 1;
+    }
+    table
+}
+
 /// One linear piece of a tabulated law inside the pass, in pass strain `t`.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub(crate) struct Piece {
@@ -62,6 +79,8 @@ pub(crate) enum SachsForm {
         /// `(ss - s0) e^(-eps_a/ec)`.
         drop_mpa: f64,
         eps_c: f64,
+        /// `e^(-eps/ec)`.
+        pass_decay: f64,
     },
     Power {
         /// Additive constant (Ludwik s0; 0 otherwise).
@@ -126,6 +145,7 @@ impl SachsForm {
                 saturation_mpa,
                 drop_mpa: (saturation_mpa - sigma0_mpa) * (-eps_a / eps_c).exp(),
                 eps_c,
+                pass_decay: (-eps / eps_c).exp(),
             },
             FlowLawSpec::Hollomon { k_mpa, n } => power(0.0, k_mpa, n, eps_a),
             FlowLawSpec::Ludwik {
@@ -162,10 +182,10 @@ impl SachsForm {
         }
     }
 
-    /// `I(B)` for pass strain `eps` (the one the form was prepared with),
-    /// or `None` where the fast path does not apply (the caller falls back
-    /// to quadrature).
-    pub(crate) fn integral(&self, b: f64, eps: f64) -> Option<f64> {
+    /// `I(B)` for pass strain `eps` (the one the form was prepared with) and
+    /// `decay = e^(-B eps)`, or `None` where the fast path does not apply
+    /// (the caller falls back to quadrature).
+    pub(crate) fn integral(&self, b: f64, eps: f64, decay: f64) -> Option<f64> {
         // g = int_0^eps e^(-B(eps-t)) dt = (1 - e^(-B eps)) / B
         let g = weight_integral(b, eps);
         let value = match self {
@@ -178,6 +198,7 @@ impl SachsForm {
                 saturation_mpa,
                 drop_mpa,
                 eps_c,
+                pass_decay,
             } => {
                 // int_0^eps e^(-t/ec) e^(-B(eps-t)) dt = (e^(-eps/ec) - e^(-B eps)) / x, x = B - 1/ec
                 let x = b - 1.0 / eps_c;
@@ -187,9 +208,9 @@ impl SachsForm {
                     } else {
                         (x * eps).exp_m1() / x
                     };
-                    (-b * eps).exp() * series
+                    decay * series
                 } else {
-                    ((-eps / eps_c).exp() - (-b * eps).exp()) / x
+                    (pass_decay - decay) / x
                 };
                 saturation_mpa * g - drop_mpa * k
             }
@@ -252,13 +273,18 @@ fn power_series(z: f64, n: f64, c: f64, b: f64, eps: f64, d0: f64, c_n1: f64) ->
     let mut q = c_n1;
     let mut sum = 0.0;
     let mut k = 0.0f64;
+    let mut i = 0usize;
     loop {
         sum += p * d / (n + 1.0 + k);
         // Next term's pieces.
         d += step * q;
         q *= ratio;
         k += 1.0;
-        p *= z / k;
+        i += 1;
+        if i >= SERIES_TERMS {
+            break;
+        }
+        p *= z * RECIPROCALS[i];
         // Past the Poisson peak the weights fall at least geometrically by
         // r = z/(k+1) < 1, and d_k <= b^(n+1) = d0 + c^(n+1): the tail is
         // under the next term's bound over (1 - r).

@@ -1,5 +1,8 @@
 //! CSV: one row per step, with the JSON names (nested keys joined by a dot,
 //! flags joined by `;`); every row carries the caution in its last column.
+//! Figures are rounded to [`SIGNIFICANT_DIGITS`] significant digits (the JSON
+//! keeps full precision). `--summary` gives the summary instead: one row of
+//! the JSON's `summary` keys.
 
 use anyhow::Result;
 use coldpass::evaluation::{ScheduleReport, StepKind};
@@ -45,8 +48,75 @@ const HEADER: [&str; 38] = [
     "caution",
 ];
 
+/// Significant digits of every CSV figure: finer than any input is measured
+/// (a die to 1 um in 10 mm is 5 digits), short enough to read.
+pub const SIGNIFICANT_DIGITS: usize = 6;
+
+/// `v` rounded to [`SIGNIFICANT_DIGITS`] significant digits, written in the
+/// shortest form that reads back as the rounded value (`7.1`, `0.123457`).
+pub fn sig(v: f64) -> String {
+    if !v.is_finite() || v == 0.0 {
+        return v.to_string();
+    }
+    let rounded: f64 = format!("{:.*e}", SIGNIFICANT_DIGITS - 1, v)
+        .parse()
+        .unwrap_or(v);
+    rounded.to_string()
+}
+
 fn num(x: Option<f64>) -> String {
-    x.map(|v| v.to_string()).unwrap_or_default()
+    x.map(sig).unwrap_or_default()
+}
+
+/// The summary as one CSV row of the JSON `summary` keys, with the method,
+/// title and caution.
+pub fn summary(rep: &ScheduleReport) -> Result<Vec<u8>> {
+    let s = &rep.summary;
+    let mut w = csv::Writer::from_writer(Vec::new());
+    w.write_record([
+        "start_diameter_mm",
+        "finish_diameter_mm",
+        "total_area_reduction",
+        "total_strain",
+        "final_strain",
+        "draw_passes",
+        "anneals",
+        "worst_draw_ratio",
+        "worst_step",
+        "final_flow_stress_mpa",
+        "throughput_kg_h",
+        "throughput_t_per_shift",
+        "coil_time_min",
+        "total_power_kw",
+        "verdict",
+        "method",
+        "title",
+        "caution",
+    ])?;
+    w.write_record([
+        num(Some(s.start_diameter_mm)),
+        num(Some(s.finish_diameter_mm)),
+        num(Some(s.total_area_reduction)),
+        num(Some(s.total_strain)),
+        num(Some(s.final_strain)),
+        s.draw_passes.to_string(),
+        s.anneals.to_string(),
+        num(s.worst_draw_ratio),
+        s.worst_step.map(|n| n.to_string()).unwrap_or_default(),
+        num(Some(s.final_flow_stress_mpa)),
+        num(s.throughput_kg_h),
+        num(s.throughput_t_per_shift),
+        num(s.coil_time_min),
+        num(s.total_power_kw),
+        serde_json::to_value(s.verdict)?
+            .as_str()
+            .unwrap_or_default()
+            .into(),
+        rep.method.name().into(),
+        rep.title.clone(),
+        rep.caution.clone(),
+    ])?;
+    Ok(w.into_inner()?)
 }
 
 /// The steps as CSV.
@@ -59,7 +129,7 @@ pub fn schedule(rep: &ScheduleReport) -> Result<Vec<u8>> {
     let mut w = csv::WriterBuilder::new()
         .buffer_capacity((2 * longest + 64).max(8 * 1024))
         .from_writer(Vec::new());
-    w.write_record(HEADER)?;
+    w.write_record(super::machine::csv_header(&HEADER))?;
     for r in &rep.passes {
         let d = r.draw_stress_mpa;
         let record: Vec<String> = vec![
@@ -112,7 +182,23 @@ pub fn schedule(rep: &ScheduleReport) -> Result<Vec<u8>> {
             rep.title.clone(),
             rep.caution.clone(),
         ];
-        w.write_record(&record)?;
+        w.write_record(super::machine::csv_record(rep, r, record))?;
     }
     Ok(w.into_inner()?)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn six_significant_digits() {
+        assert_eq!(sig(0.123_456_789), "0.123457");
+        assert_eq!(sig(1234.5678), "1234.57");
+        assert_eq!(sig(7.1), "7.1");
+        assert_eq!(sig(8.001_000_000_000_001), "8.001");
+        assert_eq!(sig(-0.000_012_345_678), "-0.0000123457");
+        assert_eq!(sig(123_456_789.0), "123457000");
+        assert_eq!(sig(0.0), "0");
+    }
 }

@@ -6,7 +6,7 @@
 //!   `schedule` part exactly what `check --format json` gives for the emitted file;
 //! - CSV: the check CSV, one row per step, with four more columns: `strategy`,
 //!   `run` (the run between anneals the step belongs to; an anneal ends its run),
-//!   `anneal_reason` (`cold-work` or `temper` on anneal rows); the caution column comes from the check CSV.
+//!   `anneal_reason` (`cold-work`, `temper` or `fewer-passes` on anneal rows); the caution column comes from the check CSV.
 
 use anyhow::Result;
 use coldpass::design::Design;
@@ -74,9 +74,11 @@ pub fn summary(d: &Design) -> String {
     ));
     let angles: Vec<String> = s.die_angles_deg.iter().map(|a| a.to_string()).collect();
     out.push_str(&format!(
-        "Die semi-angles chosen from: {} deg; largest draw-ratio spread within a run {:.3} %\n",
+        "Die semi-angles chosen from: {} deg; draw-ratio spread {:.3} % within a run (largest), {:.3} % over the schedule; passes aimed at a draw ratio of at most {}\n",
         angles.join(", "),
-        100.0 * s.run_draw_ratio_spread
+        100.0 * s.run_draw_ratio_spread,
+        100.0 * s.draw_ratio_spread,
+        fixed(Some(s.draw_ratio_aimed), 4)
     ));
     match (s.strength_window_mpa, s.aimed_flow_stress_mpa) {
         (Some(w), aim) => out.push_str(&format!(
@@ -123,8 +125,18 @@ pub fn summary(d: &Design) -> String {
     } else {
         out.push_str("\nAnneals\n");
         for a in &s.anneals {
+            let window = a
+                .window_mm
+                .map(|w| {
+                    format!(
+                        " [window {}-{} mm]",
+                        fixed(Some(w.min_mm), 3),
+                        fixed(Some(w.max_mm), 3)
+                    )
+                })
+                .unwrap_or_default();
             out.push_str(&format!(
-                "- step {} at {} mm ({}): {}\n",
+                "- step {} at {} mm ({}){window}: {}\n",
                 a.step,
                 fixed(Some(a.diameter_mm), 3),
                 a.reason.name(),
@@ -132,6 +144,25 @@ pub fn summary(d: &Design) -> String {
             ));
         }
     }
+    let mut b = Builder::default();
+    b.push_record(["die mm", "semi-angle deg", "land mm", "count"]);
+    for d in &s.dies {
+        b.push_record([
+            d.size_mm.to_string(),
+            d.semi_angle_deg.to_string(),
+            d.land_length_mm.to_string(),
+            d.count.to_string(),
+        ]);
+    }
+    let mut t = b.build();
+    t.with(Style::sharp());
+    t.modify(Columns::new(0..), Alignment::right());
+    out.push_str(&format!(
+        "\nDie list ({})\n{t}\n",
+        s.die_rounding
+            .as_deref()
+            .unwrap_or("full precision: set target.die_step_mm or target.die_sizes_mm to round")
+    ));
     if !s.notes.is_empty() {
         out.push_str("\nDesign notes\n");
         for n in &s.notes {

@@ -11,7 +11,7 @@ use serde::Serialize;
 use tabled::builder::Builder;
 use tabled::settings::Style;
 
-use coldpass::fit::{DataKind, FitLaw, FitReport, LawFit};
+use coldpass::fit::{self, DataKind, FitLaw, FitReport, LawFit, Scatter, Yielding};
 use coldpass::FlowLaw;
 
 /// The caution every report carries.
@@ -63,6 +63,8 @@ struct FitOut {
     schedule_law: Option<&'static str>,
     uts_mpa: Option<f64>,
     stress_at_reach_mpa: Option<f64>,
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    not_finite: Vec<String>,
 }
 
 #[derive(Serialize)]
@@ -72,22 +74,57 @@ struct ReportOut<'a> {
     data: &'static str,
     points_read: usize,
     youngs_modulus_gpa: Option<f64>,
+    youngs_modulus_std_error_gpa: Option<f64>,
+    modulus_band_mpa: Option<[f64; 2]>,
+    modulus_points: Option<usize>,
     toe_strain: Option<f64>,
     yield_mpa: Option<f64>,
+    yielding: Option<&'static str>,
+    upper_yield_mpa: Option<f64>,
+    lower_yield_mpa: Option<f64>,
+    lueders_strain: Option<f64>,
     uts_mpa: Option<f64>,
     uniform_strain: Option<f64>,
+    noise_mpa: Option<f64>,
+    points_merged_or_dropped: usize,
     fitted_points: usize,
     strain_from: f64,
     strain_to: f64,
+    flow_valid_to_strain: f64,
     reach_strain: Option<f64>,
+    standard_errors: &'static str,
     fits: Vec<FitOut>,
     best: Option<&'static str>,
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    drawn_points: Vec<[f64; 2]>,
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    fits_with_drawn_points: Vec<FitOut>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    best_with_drawn_points: Option<&'static str>,
     warnings: Vec<String>,
     caution: &'static str,
 }
 
+/// What the standard errors assume, said beside them in every format.
+pub const STD_ERROR_NOTE: &str = "standard errors assume the law is right and the residuals independent (see the warnings for where the record says otherwise)";
+
 fn fit_out(f: &LawFit) -> FitOut {
+    let mut not_finite = Vec::new();
+    for p in &f.params {
+        if !p.value.is_finite() {
+            not_finite.push(format!("params.{}", p.name));
+        }
+        if p.std_error.is_some_and(|v| !v.is_finite()) {
+            not_finite.push(format!("std_errors.{}", p.name));
+        }
+    }
+    for (k, v) in [("rms_mpa", f.rms_mpa), ("r2", f.r2), ("aic", f.aic)] {
+        if !v.is_finite() {
+            not_finite.push(k.to_string());
+        }
+    }
     FitOut {
+        not_finite,
         law: f.law.name(),
         strain: if f.law.is_total_strain_form() {
             "total"
@@ -119,16 +156,46 @@ fn report_out<'a>(r: &FitReport, src: &'a Source) -> ReportOut<'a> {
         data: data_name(r.data),
         points_read: r.points_read,
         youngs_modulus_gpa: r.youngs_modulus_gpa,
+        youngs_modulus_std_error_gpa: r.modulus.as_ref().map(|m| m.std_error_mpa / 1000.0),
+        modulus_band_mpa: r.modulus.as_ref().map(|m| [m.band_mpa.0, m.band_mpa.1]),
+        modulus_points: r.modulus.as_ref().map(|m| m.points),
         toe_strain: r.toe_strain,
         yield_mpa: r.yield_mpa,
+        yielding: r.yielding.as_ref().map(|y| match y {
+            Yielding::Continuous { .. } => "continuous",
+            Yielding::Discontinuous { .. } => "discontinuous",
+        }),
+        upper_yield_mpa: match r.yielding {
+            Some(Yielding::Discontinuous { upper_mpa, .. }) => Some(upper_mpa),
+            _ => None,
+        },
+        lower_yield_mpa: match r.yielding {
+            Some(Yielding::Discontinuous { lower_mpa, .. }) => Some(lower_mpa),
+            _ => None,
+        },
+        lueders_strain: match r.yielding {
+            Some(Yielding::Discontinuous { lueders_strain, .. }) => Some(lueders_strain),
+            _ => None,
+        },
         uts_mpa: r.uts_mpa,
         uniform_strain: r.uniform_strain,
+        noise_mpa: finite(r.noise_mpa),
+        points_merged_or_dropped: r.cleaning.changed(),
         fitted_points: r.plastic_strain.len(),
         strain_from: r.strain_from(),
         strain_to: r.strain_to(),
+        flow_valid_to_strain: r.valid_to_strain(),
         reach_strain: r.reach_strain,
+        standard_errors: STD_ERROR_NOTE,
         fits: r.fits.iter().map(fit_out).collect(),
         best: r.best.map(FitLaw::name),
+        drawn_points: r
+            .drawn
+            .iter()
+            .map(|d| [d.strain, d.tensile_strength_mpa])
+            .collect(),
+        fits_with_drawn_points: r.drawn_fits.iter().map(fit_out).collect(),
+        best_with_drawn_points: r.best_with_drawn.map(FitLaw::name),
         warnings: r.warnings.iter().map(ToString::to_string).collect(),
         caution: CAUTION,
     }
@@ -148,6 +215,148 @@ pub fn yaml(r: &FitReport, src: &Source) -> Result<String> {
     Ok(serde_yaml::to_string(&report_out(r, src))?)
 }
 
+#[derive(Serialize)]
+struct CorrelationOut {
+    between: [&'static str; 2],
+    r: f64,
+}
+
+#[derive(Serialize)]
+struct SetOut {
+    law: &'static str,
+    specimens: usize,
+    mean: BTreeMap<&'static str, f64>,
+    sd: BTreeMap<&'static str, f64>,
+    correlation: Vec<CorrelationOut>,
+    with_drawn_points: bool,
+    flow_valid_to_strain: f64,
+}
+
+#[derive(Serialize)]
+struct AllOut<'a> {
+    specimens: Vec<ReportOut<'a>>,
+    set: Option<SetOut>,
+    caution: &'static str,
+}
+
+fn set_out(set: &Set, reports: &[FitReport]) -> SetOut {
+    let sc = &set.scatter;
+    SetOut {
+        law: sc.law.name(),
+        specimens: sc.specimens,
+        mean: sc
+            .names
+            .iter()
+            .copied()
+            .zip(sc.mean.iter().copied())
+            .collect(),
+        sd: sc
+            .names
+            .iter()
+            .copied()
+            .zip(sc.sd.iter().copied())
+            .collect(),
+        correlation: sc
+            .correlation
+            .iter()
+            .map(|&(a, b, r)| CorrelationOut { between: [a, b], r })
+            .collect(),
+        with_drawn_points: set.with_drawn,
+        flow_valid_to_strain: reports
+            .iter()
+            .map(FitReport::valid_to_strain)
+            .fold(0.0, f64::max),
+    }
+}
+
+fn all_out<'a>(rs: &[FitReport], srcs: &'a [Source], set: Option<&Set>) -> AllOut<'a> {
+    AllOut {
+        specimens: rs.iter().zip(srcs).map(|(r, s)| report_out(r, s)).collect(),
+        set: set.map(|s| set_out(s, rs)),
+        caution: CAUTION,
+    }
+}
+
+/// JSON of one record (as [`json`]) or, for several, `specimens[]` and `set`.
+pub fn json_all(rs: &[FitReport], srcs: &[Source], set: Option<&Set>) -> Result<String> {
+    if rs.len() == 1 {
+        return json(&rs[0], &srcs[0]);
+    }
+    let mut s = serde_json::to_string_pretty(&all_out(rs, srcs, set))?;
+    s.push('\n');
+    Ok(s)
+}
+
+/// YAML with the same keys as the JSON.
+pub fn yaml_all(rs: &[FitReport], srcs: &[Source], set: Option<&Set>) -> Result<String> {
+    if rs.len() == 1 {
+        return yaml(&rs[0], &srcs[0]);
+    }
+    Ok(serde_yaml::to_string(&all_out(rs, srcs, set))?)
+}
+
+/// CSV of one record (as [`csv`]) or, for several, the same rows with the
+/// record's `file` in a first column.
+pub fn csv_all(rs: &[FitReport], srcs: &[Source]) -> Result<String> {
+    if rs.len() == 1 {
+        return csv(&rs[0], &srcs[0]);
+    }
+    let mut out = String::new();
+    for (i, (r, s)) in rs.iter().zip(srcs).enumerate() {
+        let one = csv(r, s)?;
+        let quoted = format!("\"{}\"", s.file.replace('"', "\"\""));
+        for (k, line) in one.lines().enumerate() {
+            if k == 0 {
+                if i == 0 {
+                    out.push_str("file,");
+                    out.push_str(line);
+                    out.push('\n');
+                }
+                continue;
+            }
+            out.push_str(&quoted);
+            out.push(',');
+            out.push_str(line);
+            out.push('\n');
+        }
+    }
+    Ok(out)
+}
+
+/// The tables of every record, then the set's law and scatter.
+pub fn table_all(rs: &[FitReport], srcs: &[Source], set: Option<&Set>) -> String {
+    if rs.len() == 1 {
+        return table(&rs[0], &srcs[0]);
+    }
+    let mut out = String::new();
+    for (r, s) in rs.iter().zip(srcs) {
+        out.push_str(&table(r, s));
+        out.push('\n');
+    }
+    if let Some(set) = set {
+        let sc = &set.scatter;
+        let _ = writeln!(
+            out,
+            "Set of {} specimens: {}{}, parameters over the specimens (mean ± standard deviation):",
+            sc.specimens,
+            sc.law,
+            if set.with_drawn {
+                " (with the drawn-wire points)"
+            } else {
+                ""
+            }
+        );
+        for ((n, m), sd) in sc.names.iter().zip(&sc.mean).zip(&sc.sd) {
+            let _ = writeln!(out, "  {n} = {} ± {}", sig(*m, 5), sig(*sd, 2));
+        }
+        for (a, b, r) in &sc.correlation {
+            let _ = writeln!(out, "  correlation of {a} and {b}: {r:.3}");
+        }
+        let _ = writeln!(out, "\n{CAUTION}");
+    }
+    out
+}
+
 /// A number to `digits` significant figures, without exponent for everyday sizes.
 fn sig(v: f64, digits: usize) -> String {
     if !v.is_finite() {
@@ -159,6 +368,15 @@ fn sig(v: f64, digits: usize) -> String {
     let mag = v.abs().log10().floor() as i32;
     let decimals = (digits as i32 - 1 - mag).max(0) as usize;
     format!("{v:.decimals$}")
+}
+
+/// A number to `decimals` places, or "not finite" (an overflow) when it is not.
+fn fixed(v: f64, decimals: usize) -> String {
+    if v.is_finite() {
+        format!("{v:.decimals$}")
+    } else {
+        "not finite".into()
+    }
 }
 
 fn opt(v: Option<f64>, digits: usize) -> String {
@@ -178,21 +396,112 @@ pub fn table(r: &FitReport, src: &Source) -> String {
         sig(r.strain_from(), 3),
         sig(r.strain_to(), 3),
         match r.data {
-            DataKind::Engineering => "0.2 % offset yield to maximum load",
+            DataKind::Engineering => match r.yielding {
+                Some(Yielding::Discontinuous { .. }) =>
+                    "end of the Lueders plateau to maximum force",
+                _ => "0.2 % proof strength to maximum force",
+            },
             DataKind::True => "true data as given",
         }
     );
     if r.data == DataKind::Engineering {
+        if let Some(m) = &r.modulus {
+            let _ = writeln!(
+                out,
+                "  Young's modulus {} ± {} GPa (one line over stress {} to {} MPa, 10-40 % of the yield strength, {} points; ISO 6892-1)",
+                sig(m.modulus_mpa / 1000.0, 4),
+                sig(m.std_error_mpa / 1000.0, 2),
+                sig(m.band_mpa.0, 3),
+                sig(m.band_mpa.1, 3),
+                m.points
+            );
+        }
+        match &r.yielding {
+            Some(Yielding::Discontinuous {
+                upper_mpa,
+                lower_mpa,
+                lueders_strain,
+                ..
+            }) => {
+                let _ = writeln!(
+                    out,
+                    "  yield drop: upper yield ReH {} MPa | lower yield ReL {} MPa | Lueders strain {} (hardening fitted after the plateau)",
+                    sig(*upper_mpa, 4),
+                    sig(*lower_mpa, 4),
+                    sig(*lueders_strain, 3)
+                );
+            }
+            _ => {
+                let _ = writeln!(
+                    out,
+                    "  continuous yielding: 0.2 % proof strength Rp0.2 {} MPa",
+                    opt(r.yield_mpa, 4)
+                );
+            }
+        }
         let _ = writeln!(
             out,
-            "  Young's modulus {} GPa | 0.2 % offset yield {} MPa | UTS {} MPa | uniform strain {} (true plastic, at maximum load)",
-            opt(r.youngs_modulus_gpa, 4),
-            opt(r.yield_mpa, 4),
+            "  tensile strength {} MPa | uniform strain {} (true plastic, at maximum force) | record noise {} MPa",
             opt(r.uts_mpa, 4),
             opt(r.uniform_strain, 3),
+            sig(r.noise_mpa, 2),
         );
     }
+    let _ = writeln!(out, "  Note: {STD_ERROR_NOTE}.");
     let _ = writeln!(out);
+    let _ = writeln!(out, "{}", law_table(r, &r.fits, r.best));
+    match r.best {
+        Some(best) => {
+            let _ = writeln!(
+                out,
+                "Best by AIC: {best} (among the converged plastic-strain laws; the total-strain forms are for the record and not ranked)."
+            );
+        }
+        None => {
+            let _ = writeln!(
+                out,
+                "Best by AIC: none of the fits converged to a valid law."
+            );
+        }
+    }
+    if !r.drawn_fits.is_empty() {
+        let pts = r
+            .drawn
+            .iter()
+            .map(|d| {
+                format!(
+                    "{} MPa at strain {}",
+                    sig(d.tensile_strength_mpa, 4),
+                    sig(d.strain, 3)
+                )
+            })
+            .collect::<Vec<_>>()
+            .join(", ");
+        let _ = writeln!(
+            out,
+            "\nWith the drawn-wire points ({pts}; together weighted as much as the record):"
+        );
+        let _ = writeln!(out, "{}", law_table(r, &r.drawn_fits, r.best_with_drawn));
+        if let Some(b) = r.best_with_drawn {
+            let _ = writeln!(
+                out,
+                "Best by AIC with the drawn-wire points: {b}; the law holds to strain {}.",
+                sig(r.valid_to_strain(), 3)
+            );
+        }
+    }
+    if !r.warnings.is_empty() {
+        let _ = writeln!(out, "\nWarnings:");
+        for w in &r.warnings {
+            let _ = writeln!(out, "  - {w}");
+        }
+    }
+    let _ = writeln!(out, "\n{CAUTION}");
+    out
+}
+
+/// The table of fitted laws.
+fn law_table(r: &FitReport, fits: &[LawFit], best: Option<FitLaw>) -> String {
     let mut b = Builder::default();
     let reach = r
         .reach_strain
@@ -209,9 +518,9 @@ pub fn table(r: &FitReport, src: &Source) -> String {
         reach,
         "converged".to_string(),
     ]);
-    for f in &r.fits {
+    for f in fits {
         let mut name = f.law.name().to_string();
-        if Some(f.law) == r.best {
+        if Some(f.law) == best {
             name.push_str(" (best)");
         }
         if f.law.is_total_strain_form() {
@@ -235,33 +544,14 @@ pub fn table(r: &FitReport, src: &Source) -> String {
             name,
             params,
             sig(f.rms_mpa, 3),
-            format!("{:.5}", f.r2),
-            format!("{:.1}", f.aic),
+            fixed(f.r2, 5),
+            fixed(f.aic, 1),
             opt(f.uts_mpa, 4),
             opt(f.stress_at_reach_mpa, 4),
             conv,
         ]);
     }
-    let _ = writeln!(out, "{}", b.build().with(Style::sharp()));
-    match r.best {
-        Some(best) => {
-            let _ = writeln!(
-                out,
-                "Best by AIC: {best} (among the six plastic-strain laws; the total-strain forms are for the record and not ranked)."
-            );
-        }
-        None => {
-            let _ = writeln!(out, "Best by AIC: none of the fits is a valid law.");
-        }
-    }
-    if !r.warnings.is_empty() {
-        let _ = writeln!(out, "\nWarnings:");
-        for w in &r.warnings {
-            let _ = writeln!(out, "  - {w}");
-        }
-    }
-    let _ = writeln!(out, "\n{CAUTION}");
-    out
+    b.build().with(Style::sharp()).to_string()
 }
 
 /// CSV: one row per fit with every parameter key as a column (empty where a
@@ -318,55 +608,114 @@ pub fn csv(r: &FitReport, _src: &Source) -> Result<String> {
     Ok(String::from_utf8(w.into_inner().context("writing CSV")?)?)
 }
 
-/// The chosen law as a `flow:` block a schedule file can paste under
-/// `material:`, parameters to 6 significant figures, with comment lines
-/// naming the record, the fitted range and the caution.
-pub fn law_yaml(r: &FitReport, law: FitLaw, src: &Source) -> Result<String> {
-    let fit = r
-        .fit(law)
-        .with_context(|| format!("the law '{law}' was not fitted to this record"))?;
+/// The `flow_scatter:` block: `{sd: {key: value}, correlation: [{between:
+/// [a, b], r}], specimens: n}` (the shape the risk analysis reads).
+fn scatter_yaml(sc: &Scatter) -> Result<serde_yaml::Value> {
+    use serde_yaml::{Mapping, Value};
+    let round = |v: f64| -> Value { Value::from(sig(v, 4).parse::<f64>().unwrap_or(v)) };
+    let mut sd = Mapping::new();
+    for (n, v) in sc.names.iter().zip(&sc.sd) {
+        sd.insert(Value::from(*n), round(*v));
+    }
+    let corr: Vec<Value> = sc
+        .correlation
+        .iter()
+        .map(|(a, b, r)| {
+            let mut m = Mapping::new();
+            m.insert(
+                Value::from("between"),
+                Value::Sequence(vec![Value::from(*a), Value::from(*b)]),
+            );
+            m.insert(Value::from("r"), round(*r));
+            Value::Mapping(m)
+        })
+        .collect();
+    let mut m = Mapping::new();
+    m.insert(Value::from("sd"), Value::Mapping(sd));
+    m.insert(Value::from("correlation"), Value::Sequence(corr));
+    m.insert(Value::from("specimens"), Value::from(sc.specimens as u64));
+    Ok(Value::Mapping(m))
+}
+
+/// The blocks after the comments: `flow:`, `flow_valid_to_strain:`, `flow_scatter:`.
+fn law_blocks(flow: &FlowLaw, valid_to: f64, scatter: Option<&Scatter>) -> Result<String> {
+    use serde_yaml::{Mapping, Value};
+    let rounded = round_law(flow)?;
+    let mut m = Mapping::new();
+    m.insert(Value::from("flow"), serde_yaml::to_value(&rounded)?);
+    m.insert(
+        Value::from("flow_valid_to_strain"),
+        Value::from(sig(valid_to, 6).parse::<f64>().unwrap_or(valid_to)),
+    );
+    if let Some(sc) = scatter {
+        m.insert(Value::from("flow_scatter"), scatter_yaml(sc)?);
+    }
+    Ok(serde_yaml::to_string(&Value::Mapping(m))?)
+}
+
+/// The chosen fit as a `flow:` block a schedule file can paste under
+/// `material:`, parameters to 6 significant figures, with
+/// `flow_valid_to_strain` (the largest true plastic strain fitted, drawn
+/// points included) and `flow_scatter` (one specimen: the fit's standard
+/// errors and correlation), and comment lines naming the record, the fitted
+/// range and the caution.
+pub fn law_yaml(r: &FitReport, fit: &LawFit, src: &Source) -> Result<String> {
+    let law = fit.law;
     let flow = fit.flow_law.as_ref().with_context(|| {
         format!("the fitted '{law}' parameters are not a valid law for a schedule")
     })?;
-    let rounded = round_law(flow)?;
-    #[derive(Serialize)]
-    struct Block<'a> {
-        flow: &'a FlowLaw,
-    }
+    let with_drawn = r.drawn_fits.iter().any(|f| std::ptr::eq(f, fit));
+    let best = if with_drawn {
+        r.best_with_drawn
+    } else {
+        r.best
+    };
     let mut out = String::new();
     let _ = writeln!(
         out,
-        "# coldpass fit: {law}{} fitted to '{}' ({} points).",
-        if Some(law) == r.best {
+        "# coldpass fit: {law}{} fitted to '{}' ({} points{}).",
+        if Some(law) == best {
             " (best by AIC)"
         } else {
             ""
         },
         src.file,
-        fit.points
+        fit.points,
+        if with_drawn {
+            format!(", {} of them drawn-wire points", r.drawn.len())
+        } else {
+            String::new()
+        }
     );
     let _ = writeln!(
         out,
-        "# True plastic strain {} to {}; RMS {} MPa; R^2 {:.5}.",
+        "# True plastic strain {} to {}; RMS {} MPa; R^2 {}.",
         sig(r.strain_from(), 3),
-        sig(r.strain_to(), 3),
+        sig(r.valid_to_strain(), 3),
         sig(fit.rms_mpa, 3),
-        fit.r2
+        fixed(fit.r2, 5)
     );
+    if !fit.converged {
+        let _ = writeln!(
+            out,
+            "# NOT CONVERGED after {} iterations: written on request (--allow-unconverged); treat it as rough.",
+            fit.iterations
+        );
+    }
     match r.reach_strain {
-        Some(x) if x > r.strain_to() => {
+        Some(x) if x > r.valid_to_strain() => {
             let _ = writeln!(
                 out,
-                "# A schedule reaching strain {} uses this law {:.1} times past the test: check it against drawn-wire strength.",
+                "# A schedule reaching strain {} uses this law {:.1} times past its data: check it against drawn-wire strength.",
                 sig(x, 3),
-                x / r.strain_to()
+                x / r.valid_to_strain()
             );
         }
         _ => {
             let _ = writeln!(
                 out,
-                "# Beyond strain {} this law is extrapolated: check it against drawn-wire strength.",
-                sig(r.strain_to(), 3)
+                "# Beyond strain {} (flow_valid_to_strain) this law is extrapolated: check it against drawn-wire strength.",
+                sig(r.valid_to_strain(), 3)
             );
         }
     }
@@ -377,8 +726,75 @@ pub fn law_yaml(r: &FitReport, law: FitLaw, src: &Source) -> Result<String> {
             flow.name()
         );
     }
+    let scatter = fit::fit_uncertainty(fit);
+    if scatter.is_some() {
+        let _ = writeln!(
+            out,
+            "# flow_scatter is the fit uncertainty of one specimen (standard errors and correlation of the fit, assuming the law is right), not a spread between specimens."
+        );
+    }
     let _ = writeln!(out, "# {CAUTION}");
-    out.push_str(&serde_yaml::to_string(&Block { flow: &rounded })?);
+    out.push_str(&law_blocks(flow, r.valid_to_strain(), scatter.as_ref())?);
+    Ok(out)
+}
+
+/// The law of a set of specimens and its scatter.
+pub struct Set {
+    /// The scatter (mean, sd, correlation) of the chosen law.
+    pub scatter: Scatter,
+    /// Whether the specimens' fits with drawn-wire points were used.
+    pub with_drawn: bool,
+}
+
+impl Set {
+    /// The set of several reports (`None` for one): `law` or the law with
+    /// the lowest summed AIC.
+    pub fn of(reports: &[FitReport], law: Option<FitLaw>) -> Result<Option<Set>> {
+        if reports.len() < 2 {
+            return Ok(None);
+        }
+        let with_drawn = reports.iter().all(|r| !r.drawn_fits.is_empty());
+        let law = match law {
+            Some(l) => l,
+            None => fit::set_law(reports, with_drawn)
+                .context("no law converged to a valid fit in every specimen")?,
+        };
+        let scatter = fit::set_scatter(reports, law, with_drawn)?;
+        Ok(Some(Set {
+            scatter,
+            with_drawn,
+        }))
+    }
+}
+
+/// The set's law as a `flow:` block with its scatter between specimens.
+pub fn set_law_yaml(set: &Set, reports: &[FitReport], sources: &[Source]) -> Result<String> {
+    let sc = &set.scatter;
+    let flow = sc
+        .flow_law()
+        .map_err(|e| anyhow::anyhow!("the mean parameters of the set are not a valid law: {e}"))?;
+    let valid_to = reports
+        .iter()
+        .map(FitReport::valid_to_strain)
+        .fold(0.0, f64::max);
+    let mut out = String::new();
+    let _ = writeln!(
+        out,
+        "# coldpass fit: {} fitted to each of {} specimens ({}); the law is at the mean parameters.",
+        sc.law,
+        sc.specimens,
+        sources
+            .iter()
+            .map(|s| format!("'{}'", s.file))
+            .collect::<Vec<_>>()
+            .join(", ")
+    );
+    let _ = writeln!(
+        out,
+        "# flow_scatter: standard deviation and correlation of the parameters between the specimens."
+    );
+    let _ = writeln!(out, "# {CAUTION}");
+    out.push_str(&law_blocks(&flow, valid_to, Some(sc))?);
     Ok(out)
 }
 
@@ -418,7 +834,13 @@ fn colour(law: FitLaw) -> RGBColor {
 pub fn svg(r: &FitReport, src: &Source) -> Result<String> {
     let mut buf = String::new();
     {
-        let wide = r.reach_strain.is_some_and(|x| x > r.strain_to());
+        // The run-out panel reaches the schedule's strain or the farthest drawn point.
+        let far = r
+            .drawn
+            .iter()
+            .map(|d| d.strain * 1.05)
+            .fold(r.reach_strain.unwrap_or(0.0), f64::max);
+        let wide = far > r.strain_to();
         let size = if wide { (1200, 620) } else { (760, 620) };
         // The caution in as many lines as the width needs, so none runs off the edge.
         let caution = wrap_words(CAUTION, (size.0 as usize - 32) / CAUTION_CHAR_PX);
@@ -449,7 +871,7 @@ pub fn svg(r: &FitReport, src: &Source) -> Result<String> {
         if wide {
             let (left, right) = body.split_horizontally(size.0 / 2);
             panel(&left, r, &laws, r.strain_to() * 1.05, false)?;
-            panel(&right, r, &laws, r.reach_strain.unwrap_or(1.0), true)?;
+            panel(&right, r, &laws, far, true)?;
         } else {
             panel(&body, r, &laws, r.strain_to() * 1.05, false)?;
         }
@@ -522,6 +944,9 @@ where
             }
         }
     }
+    for d in r.drawn.iter().filter(|d| d.strain <= x_max) {
+        y_max = y_max.max(d.tensile_strength_mpa);
+    }
     let y_max = (y_max * 1.12).max(1.0);
     let curve = |f: &LawFit, a: f64, b: f64| -> Vec<(f64, f64)> {
         curve(f, a, b)
@@ -580,6 +1005,60 @@ where
                 .draw_series(DashedLineSeries::new(curve(f, end, x_max), 8, 5, style))
                 .map_err(plot_err)?;
         }
+    }
+    // The best law's confidence band: +-2 standard errors of its predicted
+    // stress (delta method on the covariance; assumes the law is right).
+    if let Some(best) = r.best.and_then(|b| r.fit(b)) {
+        let c = colour(best.law);
+        let n = 120;
+        let pts: Vec<(f64, f64, f64)> = (0..=n)
+            .filter_map(|i| {
+                let x = x_max * (i as f64 / n as f64).max(1e-4);
+                best.stress_with_error_mpa(x).map(|(f, se)| (x, f, se))
+            })
+            .collect();
+        if !pts.is_empty() {
+            let mut poly: Vec<(f64, f64)> = pts
+                .iter()
+                .map(|&(x, f, se)| (x, (f + 2.0 * se).min(y_max)))
+                .collect();
+            poly.extend(
+                pts.iter()
+                    .rev()
+                    .map(|&(x, f, se)| (x, (f - 2.0 * se).clamp(0.0, y_max))),
+            );
+            chart
+                .draw_series(std::iter::once(Polygon::new(poly, c.mix(0.18).filled())))
+                .map_err(plot_err)?
+                .label(format!("{} ±2 std errors (law assumed right)", best.law))
+                .legend(move |(x, y)| {
+                    Rectangle::new([(x, y - 4), (x + 20, y + 4)], c.mix(0.18).filled())
+                });
+        }
+    }
+    // With drawn-wire points: their best law (black, dashed) and the points (triangles).
+    if let Some(wd) = r.best_with_drawn.and_then(|b| r.drawn_fit(b)) {
+        let black = ShapeStyle::from(&BLACK).stroke_width(2);
+        chart
+            .draw_series(DashedLineSeries::new(curve(wd, 0.0, x_max), 6, 4, black))
+            .map_err(plot_err)?
+            .label(format!("{} with drawn-wire points", wd.law))
+            .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], black));
+        let inside: Vec<(f64, f64)> = r
+            .drawn
+            .iter()
+            .map(|d| (d.strain, d.tensile_strength_mpa))
+            .filter(|&(x, y)| x <= x_max && y <= y_max)
+            .collect();
+        chart
+            .draw_series(
+                inside
+                    .iter()
+                    .map(|&p| TriangleMarker::new(p, 6, BLACK.filled())),
+            )
+            .map_err(plot_err)?
+            .label("drawn-wire tensile strength")
+            .legend(|(x, y)| TriangleMarker::new((x + 10, y), 6, BLACK.filled()));
     }
     // The data over the laws, a white rim round each dot so that it stands
     // out on a curve, thinned to one dot per few pixels along the record.

@@ -420,7 +420,10 @@ pub fn schedule_sections(rep: &ScheduleReport, file: &ScheduleFile, units: Units
                 true,
             ),
             methods,
-        ],
+        ]
+        .into_iter()
+        .chain(super::machine::html_tables(rep))
+        .collect(),
         charts: vec![Chart {
             caption: "Draw ratio per pass against the warn and max lines; flow stress against the total strain drawn, with each pass and anneal marked.".to_string(),
             svg,
@@ -447,7 +450,9 @@ pub fn design_page(d: &Design, units: Units) -> Result<String> {
             .lines()
             .take_while(|l| !l.trim().is_empty())
             .collect::<Vec<_>>()
-            .join("; "),
+            .join("; ")
+            .trim_start_matches("Design: ")
+            .to_string(),
     ));
     let len = |mm: f64| {
         super::fixed(
@@ -502,6 +507,16 @@ pub fn design_page(d: &Design, units: Units) -> Result<String> {
     Ok(render(&page))
 }
 
+/// `v` to `digits` significant digits, in plain decimals.
+fn sig(v: f64, digits: usize) -> String {
+    if !v.is_finite() || v == 0.0 {
+        return format!("{v}");
+    }
+    let mag = v.abs().log10().floor() as i32;
+    let decimals = (digits as i32 - 1 - mag).max(0) as usize;
+    format!("{v:.decimals$}")
+}
+
 /// The page of a hardening-law fit: the record, the fits ranked, the chart,
 /// warnings and the caution.
 pub fn fit_page(r: &FitReport, src: &super::fit::Source) -> Result<String> {
@@ -543,8 +558,8 @@ pub fn fit_page(r: &FitReport, src: &super::fit::Source) -> Result<String> {
                 f.params
                     .iter()
                     .map(|p| match p.std_error {
-                        Some(se) => format!("{} = {:.5} ± {:.2}", p.name, p.value, se),
-                        None => format!("{} = {:.5}", p.name, p.value),
+                        Some(se) => format!("{} = {} ± {}", p.name, sig(p.value, 5), sig(se, 2)),
+                        None => format!("{} = {}", p.name, sig(p.value, 5)),
                     })
                     .collect::<Vec<_>>()
                     .join("; "),

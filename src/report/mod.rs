@@ -1,11 +1,14 @@
 //! Report formats. Each format renders a neutral result from the core into
 //! bytes; only `crate::output` writes them anywhere.
 
+pub mod catalogue;
 pub mod columns;
+pub mod compare;
 pub mod csv;
 pub mod design;
 pub mod fit;
 pub mod html;
+pub mod machine;
 pub mod risk;
 pub mod svg;
 pub mod table;
@@ -39,6 +42,8 @@ pub enum Format {
 pub struct Look {
     /// The table's view, units and width.
     pub table: table::TableOptions,
+    /// CSV: the summary row instead of one row per step.
+    pub csv_summary: bool,
 }
 
 /// Renders a schedule report in `format` (JSON and YAML straight from serde).
@@ -59,6 +64,7 @@ pub fn render_schedule(
             s.into_bytes()
         }
         Format::Yaml => serde_yaml::to_string(report)?.into_bytes(),
+        Format::Csv if look.csv_summary => csv::summary(report)?,
         Format::Csv => csv::schedule(report)?,
     })
 }

@@ -326,10 +326,11 @@ pub fn page(rep: &RiskReport) -> Result<String> {
     Ok(super::html::render(&page))
 }
 
-const CSV_HEADER: [&str; 31] = [
+const CSV_HEADER: [&str; 32] = [
     "step",
     "exit_diameter_mm",
     "draw_ratio",
+    "tensile_strength_mpa",
     "break_probability",
     "break_standard_error",
     "over_warn_probability",
@@ -376,6 +377,7 @@ pub fn csv(rep: &RiskReport) -> Result<Vec<u8>> {
             p.step.to_string(),
             p.exit_diameter_mm.to_string(),
             p.draw_ratio.to_string(),
+            p.tensile_strength_mpa.to_string(),
             p.break_probability.to_string(),
             p.break_standard_error.to_string(),
             p.over_warn_probability.to_string(),

@@ -1,9 +1,12 @@
 //! The schedule chart (plotters, SVG backend): draw ratio per pass against
 //! the warn and max lines, and flow stress against the total strain drawn,
-//! with each pass's exit and each anneal marked.
+//! with each pass's exit and each anneal marked; on a machine, the motor
+//! load per block against 100 % and the wire temperature in and out of each
+//! die against the limit. The caution runs along the foot.
 
 use anyhow::{anyhow, Result};
 use coldpass::evaluation::{ScheduleReport, StepKind};
+use coldpass::machine::MachineRun;
 use coldpass::schedule::ScheduleFile;
 use plotters::prelude::*;
 
@@ -20,7 +23,8 @@ fn err<E: std::fmt::Display>(e: E) -> anyhow::Error {
 pub fn schedule(rep: &ScheduleReport, file: &ScheduleFile) -> Result<Vec<u8>> {
     let mut buf = String::new();
     {
-        let root = SVGBackend::with_string(&mut buf, (960, 760)).into_drawing_area();
+        let height = if rep.machine.is_some() { 1120 } else { 780 };
+        let root = SVGBackend::with_string(&mut buf, (960, height)).into_drawing_area();
         root.fill(&WHITE).map_err(err)?;
         let title = if rep.title.is_empty() {
             "Schedule".to_string()
@@ -33,9 +37,32 @@ pub fn schedule(rep: &ScheduleReport, file: &ScheduleFile) -> Result<Vec<u8>> {
                 ("sans-serif", 20),
             )
             .map_err(err)?;
-        let (upper, lower) = root.split_vertically(350);
+        let (body, foot) = root.split_vertically(height - 30);
+        let (upper, lower) = body.split_vertically(350);
         draw_ratios(rep, &upper)?;
-        draw_flow(rep, file, &lower)?;
+        match &rep.machine {
+            Some(m) => {
+                let (flow, machine) = lower.split_vertically(386);
+                draw_flow(rep, file, &flow)?;
+                let (load, heat) = machine.split_horizontally(480);
+                draw_load(m, &load)?;
+                draw_heat(m, &heat)?;
+            }
+            None => draw_flow(rep, file, &lower)?,
+        }
+        // The caution in two lines (it is wider than the chart in one).
+        let (first, rest) = match rep.caution.split_once(". ") {
+            Some((a, b)) => (format!("{a}."), b.to_string()),
+            None => (rep.caution.clone(), String::new()),
+        };
+        for (k, line) in [first, rest].into_iter().enumerate() {
+            foot.draw(&Text::new(
+                line,
+                (8, 2 + 13 * k as i32),
+                ("sans-serif", 11).into_font().color(&GREY),
+            ))
+            .map_err(err)?;
+        }
         root.present().map_err(err)?;
     }
     Ok(buf.into_bytes())
@@ -274,6 +301,167 @@ fn draw_flow(
     chart
         .configure_series_labels()
         .position(SeriesLabelPosition::LowerRight)
+        .background_style(WHITE.mix(0.85))
+        .border_style(BLACK)
+        .draw()
+        .map_err(err)?;
+    Ok(())
+}
+
+type Area<'a> = DrawingArea<SVGBackend<'a>, plotters::coord::Shift>;
+
+/// Motor load per block (bars, coloured against 100 %).
+fn draw_load(m: &MachineRun, area: &Area<'_>) -> Result<()> {
+    let n = m.blocks.len() as f64;
+    let top = m
+        .blocks
+        .iter()
+        .map(|b| 100.0 * b.motor_load)
+        .fold(100.0, f64::max)
+        * 1.2;
+    let bottom = m
+        .blocks
+        .iter()
+        .map(|b| 100.0 * b.motor_load)
+        .fold(0.0, f64::min);
+    let mut chart = ChartBuilder::on(area)
+        .caption(
+            format!("Motor load per block at {:.2} m/s", m.running_speed_m_s),
+            ("sans-serif", 15),
+        )
+        .margin(10)
+        .x_label_area_size(34)
+        .y_label_area_size(48)
+        .build_cartesian_2d(0.5f64..n + 0.5, bottom..top)
+        .map_err(err)?;
+    chart
+        .configure_mesh()
+        .x_desc("block")
+        .y_desc("load, % of rating")
+        .x_labels(m.blocks.len() + 1)
+        .x_label_formatter(&|x| {
+            let k = x.round();
+            if (x - k).abs() < 1e-6 && k >= 1.0 && k <= n {
+                format!("{k:.0}")
+            } else {
+                String::new()
+            }
+        })
+        .light_line_style(WHITE.mix(0.0))
+        .draw()
+        .map_err(err)?;
+    chart
+        .draw_series(DashedLineSeries::new(
+            vec![(0.5, 100.0), (n + 0.5, 100.0)],
+            10,
+            5,
+            OVER.stroke_width(2),
+        ))
+        .map_err(err)?
+        .label("motor rating (100 %)")
+        .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 18, y)], OVER.stroke_width(2)));
+    chart
+        .draw_series(m.blocks.iter().map(|b| {
+            let x = b.block as f64;
+            let y = 100.0 * b.motor_load;
+            let c = if b.motor_load > 1.0 { OVER } else { OK };
+            Rectangle::new([(x - 0.3, 0.0), (x + 0.3, y)], c.mix(0.85).filled())
+        }))
+        .map_err(err)?;
+    chart
+        .configure_series_labels()
+        .position(SeriesLabelPosition::UpperLeft)
+        .background_style(WHITE.mix(0.85))
+        .border_style(BLACK)
+        .draw()
+        .map_err(err)?;
+    Ok(())
+}
+
+/// Wire temperature into and out of each block's die, against the limit.
+fn draw_heat(m: &MachineRun, area: &Area<'_>) -> Result<()> {
+    let n = m.blocks.len() as f64;
+    let hottest = m
+        .blocks
+        .iter()
+        .map(|b| b.wire_temperature_out_c)
+        .fold(m.wire_temperature_max_c.unwrap_or(0.0), f64::max);
+    let coolest = m
+        .blocks
+        .iter()
+        .map(|b| b.wire_temperature_in_c)
+        .fold(f64::INFINITY, f64::min)
+        .min(0.0);
+    let mut chart = ChartBuilder::on(area)
+        .caption(
+            format!(
+                "Wire temperature, cooling {:.0} % between dies",
+                100.0 * m.cooling_between_dies
+            ),
+            ("sans-serif", 15),
+        )
+        .margin(10)
+        .x_label_area_size(34)
+        .y_label_area_size(48)
+        .build_cartesian_2d(0.5f64..n + 0.5, coolest..hottest * 1.2 + 1.0)
+        .map_err(err)?;
+    chart
+        .configure_mesh()
+        .x_desc("block")
+        .y_desc("wire temperature, C")
+        .x_labels(m.blocks.len() + 1)
+        .x_label_formatter(&|x| {
+            let k = x.round();
+            if (x - k).abs() < 1e-6 && k >= 1.0 && k <= n {
+                format!("{k:.0}")
+            } else {
+                String::new()
+            }
+        })
+        .light_line_style(WHITE.mix(0.0))
+        .draw()
+        .map_err(err)?;
+    if let Some(t) = m.wire_temperature_max_c {
+        chart
+            .draw_series(DashedLineSeries::new(
+                vec![(0.5, t), (n + 0.5, t)],
+                10,
+                5,
+                OVER.stroke_width(2),
+            ))
+            .map_err(err)?
+            .label(format!("limit {t} C"))
+            .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 18, y)], OVER.stroke_width(2)));
+    }
+    // A sawtooth: up through each die, down through the cooling to the next.
+    let saw: Vec<(f64, f64)> = m
+        .blocks
+        .iter()
+        .flat_map(|b| {
+            let x = b.block as f64;
+            [
+                (x - 0.3, b.wire_temperature_in_c),
+                (x + 0.3, b.wire_temperature_out_c),
+            ]
+        })
+        .collect();
+    chart
+        .draw_series(LineSeries::new(saw, WARN.stroke_width(2)))
+        .map_err(err)?
+        .label("in -> out of each die")
+        .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 18, y)], WARN.stroke_width(2)));
+    chart
+        .draw_series(m.blocks.iter().map(|b| {
+            Circle::new(
+                (b.block as f64 + 0.3, b.wire_temperature_out_c),
+                3,
+                BLACK.filled(),
+            )
+        }))
+        .map_err(err)?;
+    chart
+        .configure_series_labels()
+        .position(SeriesLabelPosition::UpperLeft)
         .background_style(WHITE.mix(0.85))
         .border_style(BLACK)
         .draw()

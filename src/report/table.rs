@@ -62,7 +62,12 @@ pub fn terminal_width() -> usize {
         .unwrap_or(120)
 }
 
-fn build(header: Vec<String>, rows: Vec<Vec<String>>, width: Option<usize>) -> String {
+fn build(
+    header: Vec<String>,
+    rows: Vec<Vec<String>>,
+    width: Option<usize>,
+    text_cols: &[usize],
+) -> String {
     let mut b = Builder::default();
     b.push_record(header);
     for r in rows {
@@ -71,6 +76,9 @@ fn build(header: Vec<String>, rows: Vec<Vec<String>>, width: Option<usize>) -> S
     let mut t = b.build();
     t.with(Style::sharp());
     t.modify(Columns::new(1..), Alignment::right());
+    for &i in text_cols {
+        t.modify(Columns::new(i..=i), Alignment::left());
+    }
     if let Some(w) = width {
         t.with(
             Width::wrap(w)
@@ -112,7 +120,13 @@ fn pass_table(
                 .collect()
         })
         .collect();
-    build(header, rows, stacked.then_some(opts.width))
+    let text_cols: Vec<usize> = cols
+        .iter()
+        .enumerate()
+        .filter(|(_, c)| matches!(c.key, "die_size" | "flags"))
+        .map(|(i, _)| i)
+        .collect();
+    build(header, rows, stacked.then_some(opts.width), &text_cols)
 }
 
 /// Wraps `text` to `width` characters at spaces, indenting continuation lines by `indent`.
@@ -346,6 +360,7 @@ pub fn schedule(rep: &ScheduleReport, opts: &TableOptions) -> Result<String, Str
         }
     }
 
+    out.push_str(&super::machine::table(rep, opts.width));
     let mut b = Builder::default();
     for (k, v) in summary_rows(rep, opts.units) {
         b.push_record([k, v]);

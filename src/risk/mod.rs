@@ -7,8 +7,9 @@
 //! ([`distribution`]), placed by Latin hypercube or Monte Carlo ([`plan`]),
 //! and evaluates every pass with the core's pass mechanics ([`model`]),
 //! as `check` does. A pass breaks in a sample when its governing drawing
-//! stress reaches the drawn wire's strength, taken (as `check` takes it) as
-//! the exit flow stress: draw ratio `>= 1`. Statistics stream ([`stats`]):
+//! stress reaches the drawn wire's tensile strength (Considere, as `check`
+//! reports it in `tensile_strength_mpa`): for wire drawn past its Considere
+//! strain that is the exit flow stress, a draw ratio of 1. Statistics stream ([`stats`]):
 //! memory does not grow with the number of samples, and chunks of
 //! [`CHUNK_SAMPLES`] are merged in index order, so a seed gives the same
 //! figures to the last bit whatever the thread count.
@@ -137,7 +138,10 @@ pub struct PassRisk {
     pub exit_diameter_mm: f64,
     /// Nominal draw ratio (exactly `check`'s).
     pub draw_ratio: f64,
-    /// Probability that the draw ratio reaches 1 (break).
+    /// Nominal tensile strength of the wire after the pass, MPa (exactly `check`'s).
+    pub tensile_strength_mpa: f64,
+    /// Probability that the governing drawing stress reaches the drawn
+    /// wire's tensile strength (break).
     pub break_probability: f64,
     /// Its standard error.
     pub break_standard_error: f64,
@@ -361,7 +365,7 @@ pub fn run_chunk(model: &Model, plan: &Plan, nominal: &[f64], c: u64) -> Tally {
             let r = out.ratio[j];
             worst = worst.max(r);
             p.ratio.add(r);
-            if r >= 1.0 {
+            if out.breaks[j] {
                 p.breaks += 1;
                 broke = true;
             }
@@ -476,10 +480,17 @@ pub fn assess(
         .evaluate(None, &mut nominal_out)
         .map_err(RiskError::Nominal)?;
     let nominal = nominal_out.ratio.clone();
+    let nominal_strength = nominal_out.tensile_strength_mpa.clone();
     let plan = Plan::new(options.samples, options.seed, options.sampling, model.dims);
     let tally = sample(&model, &plan, &nominal, progress, cancel)?;
     Ok(build_report(
-        file, options, &check, &model, &listed, &nominal, &tally,
+        file,
+        options,
+        &check,
+        &model,
+        &listed,
+        (&nominal, &nominal_strength),
+        &tally,
     ))
 }
 
@@ -489,7 +500,7 @@ fn build_report(
     check: &evaluation::ScheduleReport,
     model: &Model,
     listed: &[InputScatter],
-    nominal: &[f64],
+    (nominal, nominal_strength): (&[f64], &[f64]),
     t: &Tally,
 ) -> RiskReport {
     let n = t.accepted;
@@ -536,6 +547,7 @@ fn build_report(
             step: row.step,
             exit_diameter_mm: row.exit_diameter_mm,
             draw_ratio: nominal[j],
+            tensile_strength_mpa: nominal_strength[j],
             break_probability: pb,
             break_standard_error: sb,
             over_warn_probability: pw,
@@ -635,7 +647,7 @@ fn build_report(
     }
     let mut notes = vec![
         format!(
-            "break: the governing drawing stress ({}) reaches the exit flow stress, the model's drawn-wire strength (draw ratio >= 1); for lightly drawn wire the tensile strength is higher, so the figure errs high",
+            "break: the governing drawing stress ({}) reaches the drawn wire's tensile strength (Considere, tensile_strength_mpa as check reports it; for wire drawn past its Considere strain, the exit flow stress: draw ratio 1)",
             check.method
         ),
         format!(

@@ -2,13 +2,17 @@
 //! moved by its drawn score, evaluated pass by pass with the core's
 //! [`analyse_pass`] exactly as `check` does (the draw ratio is the governing
 //! drawing stress over the exit flow stress; power is force times the exit
-//! speed by volume constancy from the finish speed).
+//! speed by volume constancy from the finish speed). A pass breaks when the
+//! governing drawing stress reaches the drawn wire's tensile strength from
+//! the Considere condition (`evaluation::strength`, as `check` reports it):
+//! the exit flow stress for wire drawn past its Considere strain.
 
+use crate::evaluation::strength;
 use crate::flow::{FlowLaw, FlowLawSpec};
 use crate::pass::{self, analyse_pass, Die, DrawPass, Method, Settings};
 use crate::schedule::{ScheduleFile, Step};
 
-use super::distribution::Law;
+use super::distribution::{Law, Sampler};
 use super::scatter::{flow_param, DieSpread, FlowSpread};
 
 /// A nominal step.
@@ -30,20 +34,28 @@ pub enum NominalStep {
 }
 
 /// A per-die input and where its scores sit in a sample's score vector:
-/// one common score and one per draw pass.
+/// one common score (unless the dies are independent) and one per draw pass
+/// (unless they move together).
 #[derive(Debug, Clone, PartialEq)]
 pub struct DieInput {
     /// The distribution and correlation between dies.
     pub spread: DieSpread,
-    /// Index of the common score; the pass scores follow it.
-    pub first_dim: usize,
+    /// The distribution fixed at each draw pass's nominal value.
+    pub samplers: Vec<Sampler>,
+    /// Index of the common score, when `between_dies > 0`.
+    pub common_dim: Option<usize>,
+    /// Index of the first pass's own score, when `between_dies < 1`.
+    pub own_dim: Option<usize>,
+    /// `(sqrt(r), sqrt(1 - r))`.
+    pub weights: (f64, f64),
 }
 
 impl DieInput {
     /// The standard normal score of pass `j`: `sqrt(r) z0 + sqrt(1 - r) e_j`.
     fn score(&self, z: &[f64], j: usize) -> f64 {
-        let r = self.spread.between_dies;
-        r.sqrt() * z[self.first_dim] + (1.0 - r).sqrt() * z[self.first_dim + 1 + j]
+        let common = self.common_dim.map_or(0.0, |k| self.weights.0 * z[k]);
+        let own = self.own_dim.map_or(0.0, |k| self.weights.1 * z[k + j]);
+        common + own
     }
 }
 
@@ -80,12 +92,14 @@ pub struct Model {
     start_strain: f64,
     flow: FlowLaw,
     annealed: FlowLaw,
+    /// Considere strains of the nominal laws.
+    considere: (Option<f64>, Option<f64>),
     finish_speed_m_s: Option<f64>,
     block_power_kw: Option<f64>,
     warn: f64,
     max: f64,
-    /// Rod diameter spread and its score index.
-    pub rod: Option<(Law, usize)>,
+    /// Rod diameter sampler and its score index.
+    pub rod: Option<(Sampler, usize)>,
     /// Friction.
     pub friction: Option<DieInput>,
     /// Semi-angle.
@@ -107,11 +121,18 @@ pub struct Model {
 pub struct SampleOut {
     /// Draw ratio per draw pass.
     pub ratio: Vec<f64>,
+    /// Whether the pass breaks: the governing drawing stress at or over the
+    /// drawn wire's tensile strength.
+    pub breaks: Vec<bool>,
+    /// Tensile strength of the wire after each pass, MPa (Considere; the
+    /// exit flow stress when the law has no Considere strain).
+    pub tensile_strength_mpa: Vec<f64>,
     /// Power per draw pass, kW (with a line).
     pub power_kw: Vec<f64>,
     /// Per draw pass, the score of each driver (`drivers` order), flattened.
     pub driver_scores: Vec<f64>,
     exits: Vec<f64>,
+    die_z: Vec<f64>,
     flow_dev: Vec<f64>,
 }
 
@@ -160,24 +181,72 @@ impl Model {
             .count();
         let mut dims = 0;
         let mut drivers = Vec::new();
-        let rod = spreads.rod.map(|l| {
+        let start_diameter_mm = file.start.diameter.mm();
+        let rod = spreads.rod.map(|l: Law| {
             dims += 1;
             drivers.push(Driver::RodDiameter);
             drivers.push(Driver::EntryDiameter);
-            (l, dims - 1)
+            (l.at(start_diameter_mm), dims - 1)
+        });
+        let nominal = |f: &dyn Fn(&NominalStep) -> Option<f64>| -> Vec<f64> {
+            steps.iter().filter_map(f).collect()
+        };
+        let exits = nominal(&|s| match s {
+            NominalStep::Draw {
+                exit_diameter_mm, ..
+            } => Some(*exit_diameter_mm),
+            NominalStep::Anneal => None,
+        });
+        let mus = nominal(&|s| match s {
+            NominalStep::Draw { die, .. } => Some(die.friction),
+            NominalStep::Anneal => None,
+        });
+        let angles = nominal(&|s| match s {
+            NominalStep::Draw { die, .. } => Some(die.semi_angle_deg),
+            NominalStep::Anneal => None,
+        });
+        let backs = nominal(&|s| match s {
+            NominalStep::Draw {
+                back_tension_mpa, ..
+            } => Some(*back_tension_mpa),
+            NominalStep::Anneal => None,
         });
         fn die_input(
             s: Option<DieSpread>,
             d: Driver,
             dims: &mut usize,
             drivers: &mut Vec<Driver>,
-            draws: usize,
+            nominal: &[f64],
         ) -> Option<DieInput> {
             s.map(|spread| {
-                let first_dim = *dims;
-                *dims += 1 + draws;
+                let r = spread.between_dies;
+                let common_dim = (r > 0.0).then(|| {
+                    *dims += 1;
+                    *dims - 1
+                });
+                let own_dim = (r < 1.0).then(|| {
+                    *dims += nominal.len();
+                    *dims - nominal.len()
+                });
                 drivers.push(d);
-                DieInput { spread, first_dim }
+                // Back tension scatters only where there is one.
+                let samplers = nominal
+                    .iter()
+                    .map(|&m| {
+                        if d == Driver::BackTension && m == 0.0 {
+                            Sampler::Fixed(0.0)
+                        } else {
+                            spread.law.at(m)
+                        }
+                    })
+                    .collect();
+                DieInput {
+                    spread,
+                    samplers,
+                    common_dim,
+                    own_dim,
+                    weights: (r.sqrt(), (1.0 - r).sqrt()),
+                }
             })
         }
         let die_diameter = die_input(
@@ -185,7 +254,7 @@ impl Model {
             Driver::DieDiameter,
             &mut dims,
             &mut drivers,
-            draws,
+            &exits,
         );
         if die_diameter.is_some() && rod.is_none() {
             drivers.push(Driver::EntryDiameter);
@@ -195,21 +264,21 @@ impl Model {
             Driver::Friction,
             &mut dims,
             &mut drivers,
-            draws,
+            &mus,
         );
         let semi_angle = die_input(
             spreads.semi_angle,
             Driver::SemiAngle,
             &mut dims,
             &mut drivers,
-            draws,
+            &angles,
         );
         let back_tension = die_input(
             spreads.back_tension,
             Driver::BackTension,
             &mut dims,
             &mut drivers,
-            draws,
+            &backs,
         );
         let flow_spread = spreads.flow.map(|f| {
             let first = dims;
@@ -230,10 +299,14 @@ impl Model {
             },
             steps,
             draws,
-            start_diameter_mm: file.start.diameter.mm(),
+            start_diameter_mm,
             start_strain: file.start.strain,
             flow: file.material.flow.clone(),
             annealed: file.annealed_law().clone(),
+            considere: (
+                strength::considere_strain(&file.material.flow),
+                strength::considere_strain(file.annealed_law()),
+            ),
             finish_speed_m_s: line.map(|l| l.finish_speed_m_s),
             block_power_kw: line.and_then(|l| l.block_power_kw),
             warn: file.limits.draw_ratio_warn,
@@ -268,9 +341,12 @@ impl Model {
     pub fn buffer(&self) -> SampleOut {
         SampleOut {
             ratio: vec![0.0; self.draws],
+            breaks: vec![false; self.draws],
+            tensile_strength_mpa: vec![0.0; self.draws],
             power_kw: vec![0.0; self.draws],
             driver_scores: vec![0.0; self.draws * self.drivers.len()],
             exits: vec![0.0; self.draws],
+            die_z: vec![0.0; self.draws],
             flow_dev: vec![0.0; self.flow_spread.as_ref().map_or(0, |f| f.0.keys.len())],
         }
     }
@@ -302,29 +378,33 @@ impl Model {
                 }
                 let flow = self.law_with(&self.flow, &out.flow_dev)?;
                 let annealed = self.law_with(&self.annealed, &out.flow_dev)?;
-                Some((flow, annealed))
+                let considere = (
+                    strength::considere_strain(&flow),
+                    strength::considere_strain(&annealed),
+                );
+                Some((flow, annealed, considere))
             }
             _ => None,
         };
-        let (flow, annealed) = match &laws {
-            Some((a, b)) => (a, b),
-            None => (&self.flow, &self.annealed),
+        let (flow, annealed, considere) = match &laws {
+            Some((a, b, c)) => (a, b, *c),
+            None => (&self.flow, &self.annealed, self.considere),
         };
         let rod_z = match (z, &self.rod) {
             (Some(z), Some((_, k))) => z[*k],
             _ => 0.0,
         };
         let start = match (z, &self.rod) {
-            (Some(_), Some((law, _))) => law.value(self.start_diameter_mm, rod_z),
+            (Some(_), Some((sampler, _))) => sampler.value(rod_z),
             _ => self.start_diameter_mm,
         };
         fn per_die<'m>(
             z: Option<&[f64]>,
             input: &'m Option<DieInput>,
             j: usize,
-        ) -> Option<(f64, &'m Law)> {
+        ) -> Option<(f64, &'m Sampler)> {
             match (z, input) {
-                (Some(z), Some(d)) => Some((d.score(z, j), &d.spread.law)),
+                (Some(z), Some(d)) => Some((d.score(z, j), &d.samplers[j])),
                 _ => None,
             }
         }
@@ -335,9 +415,9 @@ impl Model {
                 exit_diameter_mm, ..
             } = s
             {
-                out.exits[j] = match per_die(z, &self.die_diameter, j) {
-                    Some((zj, law)) => law.value(*exit_diameter_mm, zj),
-                    None => *exit_diameter_mm,
+                (out.exits[j], out.die_z[j]) = match per_die(z, &self.die_diameter, j) {
+                    Some((zj, sampler)) => (sampler.value(zj), zj),
+                    None => (*exit_diameter_mm, 0.0),
                 };
                 j += 1;
             }
@@ -345,6 +425,7 @@ impl Model {
         let finish = out.exits.last().copied().unwrap_or(start);
         let nd = self.drivers.len();
         let mut law = flow;
+        let mut eps_u = considere.0;
         let mut strain = self.start_strain;
         let mut d_in = start;
         let mut j = 0;
@@ -352,6 +433,7 @@ impl Model {
             let (step, die, back) = match s {
                 NominalStep::Anneal => {
                     law = annealed;
+                    eps_u = considere.1;
                     strain = 0.0;
                     continue;
                 }
@@ -371,7 +453,7 @@ impl Model {
             let mut die = *die;
             let fr = per_die(z, &self.friction, j);
             if let Some((zj, l)) = fr {
-                let mu = l.value(die.friction, zj);
+                let mu = l.value(zj);
                 if let Some(m) = die.friction_factor {
                     if die.friction > 0.0 {
                         die.friction_factor = Some((m * mu / die.friction).min(1.0));
@@ -381,7 +463,7 @@ impl Model {
             }
             let an = per_die(z, &self.semi_angle, j);
             if let Some((zj, l)) = an {
-                die.semi_angle_deg = l.value(die.semi_angle_deg, zj);
+                die.semi_angle_deg = l.value(zj);
             }
             let bt = if back > 0.0 {
                 per_die(z, &self.back_tension, j)
@@ -389,7 +471,7 @@ impl Model {
                 None
             };
             let back = match bt {
-                Some((zj, l)) => l.value(back, zj),
+                Some((zj, l)) => l.value(zj),
                 None => back,
             };
             let dp = DrawPass {
@@ -406,6 +488,10 @@ impl Model {
                 .get(self.method)
                 .map_err(|e| format!("step {step}: {e}"))?;
             out.ratio[j] = governing / mech.flow_stress_exit_mpa;
+            let uts = strength::tensile_strength_mpa(law, eps_u, mech.strain_after)
+                .unwrap_or(mech.flow_stress_exit_mpa);
+            out.tensile_strength_mpa[j] = uts;
+            out.breaks[j] = governing >= uts;
             if let Some(v) = self.finish_speed_m_s {
                 out.power_kw[j] = pass::power_kw(
                     pass::force_kn(governing, d_out),
@@ -421,12 +507,10 @@ impl Model {
                             if j == 0 {
                                 rod_z
                             } else {
-                                per_die(z, &self.die_diameter, j - 1).map_or(0.0, |x| x.0)
+                                out.die_z[j - 1]
                             }
                         }
-                        Driver::DieDiameter => {
-                            per_die(z, &self.die_diameter, j).map_or(0.0, |x| x.0)
-                        }
+                        Driver::DieDiameter => out.die_z[j],
                         Driver::Friction => fr.map_or(0.0, |x| x.0),
                         Driver::SemiAngle => an.map_or(0.0, |x| x.0),
                         Driver::BackTension => bt.map_or(0.0, |x| x.0),

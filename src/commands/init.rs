@@ -1,0 +1,61 @@
+//! `coldpass init schedule|design FILE`: writes a commented starter file
+//! that checks (or designs) clean, and never overwrites an existing file.
+
+use std::path::PathBuf;
+
+use anyhow::{bail, Result};
+use clap::{Args, ValueEnum};
+
+use super::EXIT_OK;
+use crate::output;
+
+/// Which starter file.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum Starter {
+    /// A pass schedule for `coldpass check`.
+    Schedule,
+    /// A design file for `coldpass design`.
+    Design,
+}
+
+/// Arguments of `coldpass init`.
+#[derive(Debug, Args)]
+pub struct InitArgs {
+    /// Which starter file to write.
+    #[arg(value_enum)]
+    pub kind: Starter,
+    /// Where to write it (default: schedule.yaml or design.yaml here); an
+    /// existing file is never overwritten.
+    pub file: Option<PathBuf>,
+}
+
+/// The starter text of `kind` (the files under `templates/`).
+pub fn starter(kind: Starter) -> &'static str {
+    match kind {
+        Starter::Schedule => include_str!("../../templates/schedule.yaml"),
+        Starter::Design => include_str!("../../templates/design.yaml"),
+    }
+}
+
+/// Runs `coldpass init`.
+pub fn run(args: &InitArgs) -> Result<u8> {
+    let path = args.file.clone().unwrap_or_else(|| {
+        PathBuf::from(match args.kind {
+            Starter::Schedule => "schedule.yaml",
+            Starter::Design => "design.yaml",
+        })
+    });
+    if path.exists() {
+        bail!(
+            "'{}' already exists; init never overwrites a file: name another (coldpass init {} NEW.yaml)",
+            path.display(),
+            match args.kind {
+                Starter::Schedule => "schedule",
+                Starter::Design => "design",
+            }
+        );
+    }
+    output::write_new_file(&path, starter(args.kind).as_bytes())?;
+    eprintln!("wrote '{}'", path.display());
+    Ok(EXIT_OK)
+}

@@ -1,0 +1,567 @@
+//! One designed pass against the mill's limits: the die angle chosen from
+//! the stock, the limits the pass breaks (the comparisons `check` makes), and
+//! the pass strain at which a pass has a given draw ratio.
+
+use crate::flow::FlowLaw;
+use crate::pass::{self, analyse_pass, Die, DrawPass, Method, PassError, Settings};
+use crate::schedule::{self, ScheduleFile};
+
+use super::{DesignError, PASS_STRAIN_CEILING, PASS_STRAIN_FLOOR};
+
+/// A limit a designed pass breaks.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub(super) enum Breach {
+    Ratio(f64),
+    ReductionMax(f64),
+    ReductionMin(f64),
+    Delta(f64),
+    ColdWork(f64),
+    Hot(f64),
+    Power(f64),
+}
+
+impl Breach {
+    /// Breaches that more (lighter) passes only make worse.
+    pub(super) fn is_light(self) -> bool {
+        matches!(self, Breach::ReductionMin(_) | Breach::Delta(_))
+    }
+
+    /// The limit broken, as the file names it, with its value.
+    pub(super) fn limit(self, c: &Ctx) -> String {
+        let l = &c.file.limits;
+        let v = |x: Option<f64>| x.map_or_else(String::new, |x| format!(" {x}"));
+        match self {
+            Breach::Ratio(_) => c.cap_name(),
+            Breach::ReductionMax(_) => format!("target.reduction_max{}", v(c.r_max)),
+            Breach::ReductionMin(_) => format!("target.reduction_min{}", v(c.r_min)),
+            Breach::Delta(_) => format!("limits.delta_max{}", v(c.delta_max)),
+            Breach::ColdWork(_) => format!("material.cold_work_limit{}", v(c.cold_work)),
+            Breach::Hot(_) => format!(
+                "limits.wire_temperature_max_c{}",
+                v(l.wire_temperature_max_c)
+            ),
+            Breach::Power(_) => format!(
+                "line.block_power_kw{}",
+                v(c.file.line.as_ref().and_then(|x| x.block_power_kw))
+            ),
+        }
+    }
+
+    pub(super) fn describe(self, c: &Ctx) -> String {
+        match self {
+            Breach::Ratio(x) => format!("draw ratio {x:.4} over {}", c.cap_name()),
+            Breach::ReductionMax(r) => format!(
+                "reduction {:.2} % over target.reduction_max {}",
+                100.0 * r,
+                c.r_max.unwrap_or(1.0)
+            ),
+            Breach::ReductionMin(r) => format!(
+                "reduction {:.2} % under target.reduction_min {}",
+                100.0 * r,
+                c.r_min.unwrap_or(0.0)
+            ),
+            Breach::Delta(d) => format!(
+                "Delta {d:.3} over limits.delta_max {} with every stock angle",
+                c.delta_max.unwrap_or(f64::INFINITY)
+            ),
+            Breach::ColdWork(e) => format!(
+                "strain {e:.4} over material.cold_work_limit {}",
+                c.cold_work.unwrap_or(f64::INFINITY)
+            ),
+            Breach::Hot(t) => format!(
+                "wire at {t:.1} C, over limits.wire_temperature_max_c {}",
+                c.file
+                    .limits
+                    .wire_temperature_max_c
+                    .unwrap_or(f64::INFINITY)
+            ),
+            Breach::Power(p) => format!(
+                "{p:.2} kW, over line.block_power_kw {}",
+                c.file
+                    .line
+                    .as_ref()
+                    .and_then(|l| l.block_power_kw)
+                    .unwrap_or(f64::INFINITY)
+            ),
+        }
+    }
+}
+
+/// A pass with its chosen die.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub(super) struct PassPick {
+    pub(super) exit_mm: f64,
+    pub(super) semi_angle_deg: f64,
+    pub(super) ratio: f64,
+    pub(super) reduction: f64,
+    pub(super) delta: f64,
+    pub(super) stress_mpa: f64,
+    pub(super) strain_after: f64,
+    pub(super) delta_ok: bool,
+}
+
+/// What the design needs from the file, read once.
+pub(super) struct Ctx<'a> {
+    pub(super) file: &'a ScheduleFile,
+    pub(super) method: Method,
+    pub(super) settings: Settings,
+    pub(super) angles: Vec<f64>,
+    /// The die of each stock angle, as the file gives it.
+    pub(super) dies: Vec<Die>,
+    pub(super) from_stock: bool,
+    /// The draw-ratio limit of the file.
+    pub(super) ratio_max: f64,
+    /// The draw ratio the search holds the passes to (the aim, the warn line or the limit).
+    pub(super) ratio_cap: f64,
+    pub(super) r_min: Option<f64>,
+    pub(super) r_max: Option<f64>,
+    pub(super) delta_max: Option<f64>,
+    pub(super) cold_work: Option<f64>,
+    pub(super) finish_mm: f64,
+}
+
+impl Ctx<'_> {
+    /// The ratio the passes are held to, as the file names it.
+    pub(super) fn cap_name(&self) -> String {
+        if self.ratio_cap >= self.ratio_max {
+            format!("limits.draw_ratio_max {}", self.ratio_max)
+        } else if self.ratio_cap == self.file.limits.draw_ratio_warn {
+            format!("limits.draw_ratio_warn {} (the warn line)", self.ratio_cap)
+        } else {
+            format!("the draw-ratio aim {}", self.ratio_cap)
+        }
+    }
+
+    /// The pass from `d_in` to `d_out` at accumulated strain `strain_before`,
+    /// with the stock angle of least governing stress within the Delta limit.
+    /// With `worst_land` the die land is scaled so that land over exit radius
+    /// is what it is at the finish size, the most any pass of the design sees
+    /// (the drawing stress depends on the size only through that ratio).
+    pub(super) fn pick(
+        &self,
+        law: &FlowLaw,
+        d_in: f64,
+        d_out: f64,
+        strain_before: f64,
+        worst_land: bool,
+    ) -> Result<PassPick, PassError> {
+        let mut best: Option<PassPick> = None;
+        let mut best_any: Option<PassPick> = None;
+        for (&a, die) in self.angles.iter().zip(&self.dies) {
+            let mut die = *die;
+            if worst_land {
+                die.land_length_mm *= d_out / self.finish_mm;
+            }
+            let dp = DrawPass {
+                entry_diameter_mm: d_in,
+                exit_diameter_mm: d_out,
+                strain_before,
+                back_tension_mpa: 0.0,
+                die,
+            };
+            let m = analyse_pass(law, &dp, &self.settings)?;
+            let stress = m.draw_stress_mpa.get(self.method)?;
+            let delta_ok = self.delta_max.is_none_or(|x| m.delta <= x);
+            let p = PassPick {
+                exit_mm: d_out,
+                semi_angle_deg: a,
+                ratio: stress / m.flow_stress_exit_mpa,
+                reduction: m.area_reduction,
+                delta: m.delta,
+                stress_mpa: stress,
+                strain_after: m.strain_after,
+                delta_ok,
+            };
+            if best_any.is_none_or(|b| p.stress_mpa < b.stress_mpa) {
+                best_any = Some(p);
+            }
+            if delta_ok && best.is_none_or(|b| p.stress_mpa < b.stress_mpa) {
+                best = Some(p);
+            }
+        }
+        // `angles` is never empty (checked when the context is built).
+        best.or(best_any).map_or_else(unreachable_pick, Ok)
+    }
+
+    /// The pass with one stock angle (`semi_angle_deg`, one of `angles`).
+    pub(super) fn pick_at(
+        &self,
+        law: &FlowLaw,
+        d_in: f64,
+        d_out: f64,
+        strain_before: f64,
+        worst_land: bool,
+        semi_angle_deg: f64,
+    ) -> Result<PassPick, PassError> {
+        let i = self
+            .angles
+            .iter()
+            .position(|a| *a == semi_angle_deg)
+            .unwrap_or(0);
+        let mut die = self.dies[i];
+        if worst_land {
+            die.land_length_mm *= d_out / self.finish_mm;
+        }
+        let dp = DrawPass {
+            entry_diameter_mm: d_in,
+            exit_diameter_mm: d_out,
+            strain_before,
+            back_tension_mpa: 0.0,
+            die,
+        };
+        let m = analyse_pass(law, &dp, &self.settings)?;
+        let stress = m.draw_stress_mpa.get(self.method)?;
+        Ok(PassPick {
+            exit_mm: d_out,
+            semi_angle_deg,
+            ratio: stress / m.flow_stress_exit_mpa,
+            reduction: m.area_reduction,
+            delta: m.delta,
+            stress_mpa: stress,
+            strain_after: m.strain_after,
+            delta_ok: self.delta_max.is_none_or(|x| m.delta <= x),
+        })
+    }
+
+    /// The limits the pass breaks, with the comparisons `check` makes.
+    pub(super) fn breaches(&self, p: &PassPick) -> Vec<Breach> {
+        let mut v = Vec::new();
+        if p.ratio > self.ratio_cap {
+            v.push(Breach::Ratio(p.ratio));
+        }
+        if self.r_max.is_some_and(|r| p.reduction > r) {
+            v.push(Breach::ReductionMax(p.reduction));
+        }
+        if self.r_min.is_some_and(|r| p.reduction < r) {
+            v.push(Breach::ReductionMin(p.reduction));
+        }
+        if !p.delta_ok {
+            v.push(Breach::Delta(p.delta));
+        }
+        if self.cold_work.is_some_and(|l| p.strain_after > l) {
+            v.push(Breach::ColdWork(p.strain_after));
+        }
+        let m = &self.file.material;
+        let l = &self.file.limits;
+        if let Some(tmax) = l.wire_temperature_max_c {
+            let rise = pass::temperature_rise_c(
+                p.stress_mpa.max(0.0),
+                m.density_kg_m3,
+                m.specific_heat_j_kg_k,
+                m.heat_fraction.unwrap_or(schedule::DEFAULT_HEAT_FRACTION),
+            );
+            let t = l.ambient_c.unwrap_or(schedule::DEFAULT_AMBIENT_C) + rise;
+            if t > tmax {
+                v.push(Breach::Hot(t));
+            }
+        }
+        if let Some(line) = &self.file.line {
+            if let Some(pmax) = line.block_power_kw {
+                let speed = line.finish_speed_m_s * (self.finish_mm / p.exit_mm).powi(2);
+                let power = pass::power_kw(pass::force_kn(p.stress_mpa, p.exit_mm), speed);
+                if power > pmax {
+                    v.push(Breach::Power(power));
+                }
+            }
+        }
+        v
+    }
+
+    /// How far a pass is inside its limits, as fractions of each limit
+    /// (negative: over): `(ratio, heavy, light)`, where heavy is the least of
+    /// the `reduction_max`, wire-temperature and block-power margins and
+    /// light the least of the `reduction_min` and `Delta` ones. They guide the
+    /// level solves; `breaches` decides.
+    pub(super) fn margins(&self, p: &PassPick) -> (f64, f64, f64) {
+        let ratio = (self.ratio_cap - p.ratio) / self.ratio_cap;
+        let mut heavy = f64::INFINITY;
+        let mut light = f64::INFINITY;
+        if let Some(r) = self.r_max {
+            heavy = heavy.min((r - p.reduction) / r);
+        }
+        if let Some(r) = self.r_min {
+            light = light.min((p.reduction - r) / r);
+        }
+        if let Some(d) = self.delta_max {
+            light = light.min((d - p.delta) / d);
+        }
+        let m = &self.file.material;
+        let l = &self.file.limits;
+        if let Some(tmax) = l.wire_temperature_max_c {
+            let rise = pass::temperature_rise_c(
+                p.stress_mpa.max(0.0),
+                m.density_kg_m3,
+                m.specific_heat_j_kg_k,
+                m.heat_fraction.unwrap_or(schedule::DEFAULT_HEAT_FRACTION),
+            );
+            let t = l.ambient_c.unwrap_or(schedule::DEFAULT_AMBIENT_C) + rise;
+            heavy = heavy.min((tmax - t) / tmax.abs().max(1.0));
+        }
+        if let Some(line) = &self.file.line {
+            if let Some(pmax) = line.block_power_kw {
+                let speed = line.finish_speed_m_s * (self.finish_mm / p.exit_mm).powi(2);
+                let power = pass::power_kw(pass::force_kn(p.stress_mpa, p.exit_mm), speed);
+                heavy = heavy.min((pmax - power) / pmax);
+            }
+        }
+        (ratio, heavy, light)
+    }
+
+    /// Draw ratio minus `rho` of a pass of strain `x` from `d_in`.
+    #[allow(clippy::too_many_arguments)]
+    pub(super) fn ratio_gap(
+        &self,
+        law: &FlowLaw,
+        d_in: f64,
+        strain_before: f64,
+        x: f64,
+        rho: f64,
+        worst_land: bool,
+    ) -> Result<(f64, PassPick), PassError> {
+        let p = self.pick(
+            law,
+            d_in,
+            d_in * (-0.5 * x).exp(),
+            strain_before,
+            worst_land,
+        )?;
+        Ok((p.ratio - rho, p))
+    }
+
+    /// The pass strain from `d_in` at which the draw ratio is `rho`, clamped to
+    /// `[PASS_STRAIN_FLOOR, PASS_STRAIN_CEILING]`; `guess` seeds the bracket.
+    #[allow(clippy::too_many_arguments)]
+    pub(super) fn strain_at_ratio(
+        &self,
+        law: &FlowLaw,
+        d_in: f64,
+        strain_before: f64,
+        rho: f64,
+        guess: f64,
+        worst_land: bool,
+        tol: f64,
+    ) -> Result<f64, DesignError> {
+        let f = |x: f64| {
+            self.ratio_gap(law, d_in, strain_before, x, rho, worst_land)
+                .map(|r| r.0)
+                .map_err(|problem| DesignError::Pass {
+                    pass: format!("a pass from {d_in:.4} mm"),
+                    problem,
+                })
+        };
+        let g0 = guess.clamp(PASS_STRAIN_FLOOR, PASS_STRAIN_CEILING);
+        // Fast path: solve with one die angle (a smooth ratio, a sixth of
+        // the work with six angles), then check that the stock's pick at the
+        // root is that angle, so the root is the full pick's root.
+        let mut angle = None;
+        for _ in 0..4 {
+            let a = match angle {
+                Some(a) => a,
+                None => {
+                    self.pick(
+                        law,
+                        d_in,
+                        d_in * (-0.5 * g0).exp(),
+                        strain_before,
+                        worst_land,
+                    )
+                    .map_err(|problem| DesignError::Pass {
+                        pass: format!("a pass from {d_in:.4} mm"),
+                        problem,
+                    })?
+                    .semi_angle_deg
+                }
+            };
+            let one = |x: f64| -> Result<f64, DesignError> {
+                self.pick_at(
+                    law,
+                    d_in,
+                    d_in * (-0.5 * x).exp(),
+                    strain_before,
+                    worst_land,
+                    a,
+                )
+                .map(|p| p.ratio - rho)
+                .map_err(|problem| DesignError::Pass {
+                    pass: format!("a pass from {d_in:.4} mm"),
+                    problem,
+                })
+            };
+            let Some(x) = secant(one, g0, tol)? else {
+                break;
+            };
+            let p = self
+                .pick(
+                    law,
+                    d_in,
+                    d_in * (-0.5 * x).exp(),
+                    strain_before,
+                    worst_land,
+                )
+                .map_err(|problem| DesignError::Pass {
+                    pass: format!("a pass from {d_in:.4} mm"),
+                    problem,
+                })?;
+            if p.semi_angle_deg == a {
+                return Ok(x);
+            }
+            angle = Some(p.semi_angle_deg);
+        }
+        let f0 = f(g0)?;
+        if f0 == 0.0 {
+            return Ok(g0);
+        }
+        // Secant from the guess with the full pick (the angle may change
+        // along the way); the bracketed solve below decides when it fails.
+        if let Some(x) = secant(&f, g0, tol)? {
+            return Ok(x);
+        }
+        // Step away from the guess by factors of 1.25 until the sign changes.
+        let (mut lo, mut hi, mut flo, mut fhi) = (g0, g0, f0, f0);
+        let mut found = false;
+        for _ in 0..120 {
+            if f0 < 0.0 {
+                if hi >= PASS_STRAIN_CEILING {
+                    return Ok(PASS_STRAIN_CEILING);
+                }
+                lo = hi;
+                flo = fhi;
+                hi = (hi * 1.25).min(PASS_STRAIN_CEILING);
+                fhi = f(hi)?;
+                if fhi >= 0.0 {
+                    found = true;
+                    break;
+                }
+            } else {
+                if lo <= PASS_STRAIN_FLOOR {
+                    return Ok(PASS_STRAIN_FLOOR);
+                }
+                hi = lo;
+                fhi = flo;
+                lo = (lo / 1.25).max(PASS_STRAIN_FLOOR);
+                flo = f(lo)?;
+                if flo <= 0.0 {
+                    found = true;
+                    break;
+                }
+            }
+        }
+        if !found {
+            return Err(DesignError::Solver {
+                what: "pass-strain bracket",
+                iterations: 120,
+            });
+        }
+        solve_increasing(f, lo, hi, flo, fhi, tol, "pass strain")
+    }
+}
+
+fn unreachable_pick() -> Result<PassPick, PassError> {
+    Err(PassError::Param(crate::param::ParamError::new(
+        "semi_angles_deg",
+        "[]",
+        "needs at least one angle",
+    )))
+}
+
+/// Root of an increasing function on `[lo, hi]` with `f(lo) <= 0 <= f(hi)`:
+/// regula falsi with the Illinois modification, and a bisection step whenever
+/// the bracket fails to halve in three steps; at most 200 evaluations.
+/// Root of a rising `f` by the secant method from `g0`, on the rising side
+/// only and within the solvers' strain range; `None` when it does not settle
+/// in 12 steps (the caller then brackets).
+fn secant(
+    mut f: impl FnMut(f64) -> Result<f64, DesignError>,
+    g0: f64,
+    tol: f64,
+) -> Result<Option<f64>, DesignError> {
+    let (mut x0, mut y0) = (g0, f(g0)?);
+    if y0 == 0.0 {
+        return Ok(Some(g0));
+    }
+    let mut x1 =
+        (g0 * if y0 > 0.0 { 0.98 } else { 1.02 }).clamp(PASS_STRAIN_FLOOR, PASS_STRAIN_CEILING);
+    let mut y1 = f(x1)?;
+    for _ in 0..12 {
+        let slope = (y1 - y0) / (x1 - x0);
+        if slope.is_nan() || slope <= 0.0 || slope.is_infinite() {
+            return Ok(None);
+        }
+        let x2 = (x1 - y1 / slope).clamp(0.5 * x1, 2.0 * x1);
+        if !(PASS_STRAIN_FLOOR..=PASS_STRAIN_CEILING).contains(&x2) {
+            return Ok(None);
+        }
+        if (x2 - x1).abs() <= tol * x2 {
+            return Ok(Some(x2));
+        }
+        (x0, y0) = (x1, y1);
+        x1 = x2;
+        y1 = f(x1)?;
+        if y1 == 0.0 {
+            return Ok(Some(x1));
+        }
+    }
+    Ok(None)
+}
+
+pub(super) fn solve_increasing(
+    mut f: impl FnMut(f64) -> Result<f64, DesignError>,
+    mut lo: f64,
+    mut hi: f64,
+    mut flo: f64,
+    mut fhi: f64,
+    tol: f64,
+    what: &'static str,
+) -> Result<f64, DesignError> {
+    const MAX_ITER: usize = 200;
+    if flo == 0.0 {
+        return Ok(lo);
+    }
+    if fhi == 0.0 {
+        return Ok(hi);
+    }
+    let mut side = 0i8;
+    let mut width_ref = hi - lo;
+    for it in 0..MAX_ITER {
+        let width = hi - lo;
+        if width <= tol * hi.abs().max(1e-300) {
+            return Ok(if -flo < fhi { lo } else { hi });
+        }
+        let x = if it % 3 == 2 && width > 0.5 * width_ref {
+            0.5 * (lo + hi)
+        } else {
+            let s = lo - flo * (hi - lo) / (fhi - flo);
+            if s.is_finite() && s > lo && s < hi {
+                s
+            } else {
+                0.5 * (lo + hi)
+            }
+        };
+        if it % 3 == 2 {
+            width_ref = hi - lo;
+        }
+        let fx = f(x)?;
+        if fx == 0.0 {
+            return Ok(x);
+        }
+        if fx < 0.0 {
+            lo = x;
+            flo = fx;
+            if side == -1 {
+                fhi *= 0.5;
+            }
+            side = -1;
+        } else {
+            hi = x;
+            fhi = fx;
+            if side == 1 {
+                flo *= 0.5;
+            }
+            side = 1;
+        }
+    }
+    Err(DesignError::Solver {
+        what,
+        iterations: MAX_ITER,
+    })
+}

@@ -1,0 +1,187 @@
+//! Everyday comforts through the binary: the catalogue of several schedules,
+//! CSV rounding and the summary CSV, a UTF-8 byte-order mark, and a CSV file
+//! given to check.
+
+mod common;
+
+use common::{coldpass, root, stderr, stdout};
+
+fn json_of(args: &[&str]) -> serde_json::Value {
+    serde_json::from_str(&stdout(&coldpass(args))).unwrap()
+}
+
+#[test]
+fn a_folder_gives_one_row_per_product_matching_each_check() {
+    // By the conservative envelope copper-rod-breakdown-over is over (see
+    // check_cli): the worst status is 3.
+    let out = coldpass(&[
+        "check",
+        "schedules-demo",
+        "--method",
+        "max",
+        "--format",
+        "json",
+    ]);
+    assert_eq!(out.status.code(), Some(3), "{}", stderr(&out));
+    let cat: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let products = cat["products"].as_array().unwrap();
+    let demos = common::demo_schedules();
+    assert_eq!(
+        products.len(),
+        demos.len(),
+        "design and flow-block files are left out"
+    );
+    for (p, path) in products.iter().zip(&demos) {
+        let rel = format!(
+            "schedules-demo/{}",
+            path.file_name().unwrap().to_string_lossy()
+        );
+        assert_eq!(p["file"], rel);
+        let one = json_of(&["check", &rel, "--method", "max", "--format", "json"]);
+        let s = &one["summary"];
+        for key in [
+            "verdict",
+            "draw_passes",
+            "anneals",
+            "worst_draw_ratio",
+            "worst_step",
+            "throughput_t_per_shift",
+            "total_power_kw",
+        ] {
+            assert_eq!(p[key], s[key], "{rel}: {key}");
+        }
+        let last_draw = one["passes"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .rev()
+            .find(|r| r["kind"] == "draw")
+            .unwrap();
+        assert_eq!(p["finish_speed_m_s"], last_draw["exit_speed_m_s"], "{rel}");
+    }
+    assert!(cat["caution"].as_str().unwrap().contains("confirm"));
+}
+
+#[test]
+fn a_file_that_cannot_be_checked_is_a_row_and_makes_the_status_one() {
+    let out = coldpass(&[
+        "check",
+        "schedules-demo/stainless-spring.yaml",
+        "schedules-demo/tensile-copper-rod.csv",
+        "--format",
+        "csv",
+    ]);
+    assert_eq!(out.status.code(), Some(1));
+    let text = stdout(&out);
+    let mut r = csv::Reader::from_reader(text.as_bytes());
+    let rows: Vec<csv::StringRecord> = r.records().map(Result::unwrap).collect();
+    assert_eq!(rows.len(), 2);
+    assert_eq!(&rows[0][2], "ok");
+    assert_eq!(&rows[1][2], "error");
+    assert!(rows[1][10].contains("coldpass fit"), "{:?}", rows[1]);
+}
+
+#[test]
+fn the_catalogue_table_is_one_line_per_product() {
+    let out = coldpass(&[
+        "check",
+        "schedules-demo/stainless-spring.yaml",
+        "schedules-demo/steel-multiblock.yaml",
+    ]);
+    assert_eq!(out.status.code(), Some(0));
+    let text = stdout(&out);
+    assert_eq!(
+        text.lines()
+            .filter(|l| l.contains("schedules-demo/"))
+            .count(),
+        2,
+        "{text}"
+    );
+    assert!(text.contains("warn") && text.contains("Caution:"));
+}
+
+#[test]
+fn csv_figures_carry_six_significant_digits() {
+    let path = "schedules-demo/stainless-spring.yaml";
+    let csv_text = stdout(&coldpass(&["check", path, "--format", "csv"]));
+    let json = json_of(&["check", path, "--format", "json"]);
+    let mut r = csv::Reader::from_reader(csv_text.as_bytes());
+    let header = r.headers().unwrap().clone();
+    let col = header.iter().position(|h| h == "draw_ratio").unwrap();
+    for (row, step) in r
+        .records()
+        .map(Result::unwrap)
+        .zip(json["passes"].as_array().unwrap())
+    {
+        let Some(full) = step["draw_ratio"].as_f64() else {
+            continue;
+        };
+        let cell = &row[col];
+        let digits = cell.trim_start_matches(['-', '0', '.']).replace('.', "");
+        assert!(digits.len() <= 6, "{cell}");
+        // Rounded, not truncated: within half a unit in the sixth digit.
+        let v: f64 = cell.parse().unwrap();
+        let unit = 10f64.powi(full.abs().log10().floor() as i32 - 5);
+        assert!(
+            (v - full).abs() <= 0.5 * unit * (1.0 + 1e-9),
+            "{cell} vs {full}"
+        );
+    }
+}
+
+#[test]
+fn the_summary_csv_is_one_row_of_the_summary_keys() {
+    let path = "schedules-demo/copper-building-wire.yaml";
+    let text = stdout(&coldpass(&["check", path, "--format", "csv", "--summary"]));
+    let json = json_of(&["check", path, "--format", "json"]);
+    let mut r = csv::Reader::from_reader(text.as_bytes());
+    let header = r.headers().unwrap().clone();
+    let rows: Vec<csv::StringRecord> = r.records().map(Result::unwrap).collect();
+    assert_eq!(rows.len(), 1);
+    for key in [
+        "throughput_t_per_shift",
+        "total_power_kw",
+        "worst_draw_ratio",
+    ] {
+        let i = header.iter().position(|h| h == key).unwrap();
+        let v: f64 = rows[0][i].parse().unwrap();
+        let full = json["summary"][key].as_f64().unwrap();
+        assert!(
+            (v - full).abs() <= 1e-5 * full.abs(),
+            "{key}: {v} vs {full}"
+        );
+    }
+    assert_eq!(header.iter().next_back(), Some("caution"));
+}
+
+#[test]
+fn a_byte_order_mark_is_accepted() {
+    let dir = tempfile::tempdir().unwrap();
+    let p = dir.path().join("bom.yaml");
+    let mut bytes = vec![0xEF, 0xBB, 0xBF];
+    bytes.extend(std::fs::read(root("schedules-demo/stainless-spring.yaml")).unwrap());
+    std::fs::write(&p, bytes).unwrap();
+    let with = coldpass(&["check", p.to_str().unwrap(), "--format", "json"]);
+    assert_eq!(with.status.code(), Some(0), "{}", stderr(&with));
+    let without = coldpass(&[
+        "check",
+        "schedules-demo/stainless-spring.yaml",
+        "--format",
+        "json",
+    ]);
+    assert_eq!(with.stdout, without.stdout);
+}
+
+#[test]
+fn fails_in_one_line_when_check_is_given_a_csv_file() {
+    for args in [
+        vec!["check", "schedules-demo/tensile-copper-rod.csv"],
+        vec!["design", "schedules-demo/tensile-copper-rod.csv"],
+    ] {
+        let out = coldpass(&args);
+        assert_eq!(out.status.code(), Some(1));
+        let e = stderr(&out);
+        assert_eq!(e.lines().count(), 1, "{e}");
+        assert!(e.contains("CSV") && e.contains("coldpass fit"), "{e}");
+    }
+}
