@@ -22,7 +22,10 @@ fuzz_target!(|data: &[u8]| {
         assert!(!m.is_empty());
         assert!(m.len() < 4096, "message of {} bytes", m.len());
         for w in INTERNAL {
-            assert!(!m.contains(w), "internal word {w:?} in {m}");
+            assert!(
+                text.contains(w) || !m.contains(w),
+                "internal word {w:?} in {m}"
+            );
         }
     }
 });

@@ -43,24 +43,29 @@ pub fn check_shape(text: &str) -> Result<(), String> {
     Ok(())
 }
 
-/// Counts flow brackets outside quotes and comments, and finds tags.
+/// Counts flow brackets outside quotes and comments, and finds tags. A tag
+/// or a quote counts only where a value starts (line start, after `: `,
+/// `- `, `? `, `[`, `{` or `,`): inside plain text (`label: rod !`) `!` and
+/// `'` are ordinary characters.
 fn scan_line(line: &str, line_no: usize, depth: &mut usize) -> Result<(), String> {
     let bytes = line.as_bytes();
     let mut i = 0;
-    let mut at_token_start = true;
+    let mut node_start = true;
+    let mut after_space = true;
     while i < bytes.len() {
         let c = bytes[i];
+        let next_is_space = bytes.get(i + 1).is_none_or(|b| *b == b' ' || *b == b'\t');
         match c {
-            b'#' if at_token_start => return Ok(()),
-            b'\'' | b'"' if at_token_start => {
+            b'#' if after_space => return Ok(()),
+            b'\'' | b'"' if node_start => {
                 // Skip the quoted text (to the end of the line when unclosed:
                 // the parser reports that itself).
-                let close = line[i + 1..].find(c as char);
-                match close {
+                match line[i + 1..].find(c as char) {
                     Some(j) => i += j + 2,
                     None => return Ok(()),
                 }
-                at_token_start = false;
+                node_start = false;
+                after_space = false;
                 continue;
             }
             b'[' | b'{' => {
@@ -68,21 +73,25 @@ fn scan_line(line: &str, line_no: usize, depth: &mut usize) -> Result<(), String
                 if *depth > MAX_NESTING {
                     return Err(too_deep(line_no));
                 }
-                at_token_start = true;
+                node_start = true;
             }
             b']' | b'}' => {
                 *depth = depth.saturating_sub(1);
-                at_token_start = false;
+                node_start = false;
             }
-            b'!' if at_token_start => {
+            b',' if *depth > 0 => node_start = true,
+            b'!' if node_start => {
                 return Err(format!(
                     "line {line_no}: `{}` is a YAML tag (`!name`); coldpass files use no tags: write the value plainly (quote it if it starts with `!`)",
                     cut(line[i..].split_whitespace().next().unwrap_or("!"))
                 ));
             }
-            b' ' | b'\t' | b',' => at_token_start = true,
-            _ => at_token_start = false,
+            b':' if next_is_space => node_start = true,
+            b'-' | b'?' if node_start && next_is_space => {}
+            b' ' | b'\t' => {}
+            _ => node_start = false,
         }
+        after_space = c == b' ' || c == b'\t';
         i += 1;
     }
     Ok(())
@@ -248,7 +257,10 @@ fn allowed(path: &str, expected: &str) -> String {
     }
     match e {
         "f64" | "a number" | "a float" => "a number (such as 0.05 or 8)".into(),
-        "u32" | "a whole number" => "a whole number of 0 or more (such as 30)".into(),
+        "u32" | "a whole number" if path.ends_with("max_passes") => {
+            "a whole number from 1 to 200".into()
+        }
+        "u32" | "a whole number" => "a whole number from 0 to 4294967295".into(),
         "a string" | "a borrowed string" | "text" => "text".into(),
         "a sequence" => "a list (one `- item` per line, or [a, b])".into(),
         "any value" => "a number of ordinary size".into(),
@@ -291,7 +303,7 @@ fn rewrite(path: &str, msg: &str, written: Option<&str>) -> (String, String) {
             format!("this is not a schedule file: it reads as {kind}, where a schedule is YAML blocks of keys (material:, start:, dies:, limits:, passes:); is it a CSV or another kind of file?"),
         );
     }
-    if msg.contains("SizeText") {
+    if msg.contains("untagged enum SizeText") {
         key = diameter_key(&key);
         let value = written
             .map(|w| format!("`{}` is not ", strip_key(w)))
@@ -358,14 +370,18 @@ fn rewrite(path: &str, msg: &str, written: Option<&str>) -> (String, String) {
         if got.starts_with("unit value") {
             return (key, format!("no value is given; {allowed} is needed"));
         }
-        let shown = written.map(strip_key).unwrap_or_else(|| serde_value(got));
-        let hint = hint(&shown, got, expected);
+        // A block list or mapping has its mark at its first item: name its kind.
+        let block = (got.starts_with("sequence") || got.starts_with("map"))
+            && !written.is_some_and(|w| w.starts_with(['[', '{']));
+        let shown = match written {
+            Some(w) if !block => format!("`{}`", cut(&strip_key(w))),
+            _ if block => serde_value(got),
+            _ => format!("`{}`", cut(&serde_value(got))),
+        };
+        let hint = hint(shown.trim_matches('`'), got, expected);
         return (
             key,
-            format!(
-                "`{}` is not allowed: {allowed} is needed{hint}",
-                cut(&shown)
-            ),
+            format!("{shown} is not allowed: {allowed} is needed{hint}"),
         );
     }
     if let Some(rest) = msg.strip_prefix("invalid length ") {
@@ -464,6 +480,14 @@ mod tests {
         let e = check_shape(&text).unwrap_err();
         assert!(e.contains("line 1") && e.contains("nested"), "{e}");
         assert!(check_shape("points: [[0, 80], [0.5, 200]]\n").is_ok());
+    }
+
+    #[test]
+    fn a_bang_inside_plain_text_is_not_a_tag() {
+        assert!(check_shape("label: Copper rod, annealed !\ntitle: Smith's mill!\n").is_ok());
+        assert!(check_shape("label: !x\n").is_err());
+        assert!(check_shape("passes:\n  - !x 3\n").is_err());
+        assert!(check_shape("flow: {law: !x}\n").is_err());
     }
 
     #[test]
