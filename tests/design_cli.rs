@@ -532,8 +532,8 @@ fn a_wire_temperature_limit_below_ambient_is_refused_without_a_search() {
     assert!(!written);
     assert!(
         err.contains("limits.wire_temperature_max_c")
-            && err.contains("20 C")
-            && err.contains("25 C"),
+            && err.contains("= 20")
+            && err.contains("ambient 25 C"),
         "{err}"
     );
 }

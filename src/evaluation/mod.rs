@@ -441,7 +441,8 @@ pub fn evaluate_on(
             .find(|f| f.mech.friction_factor_derived)
         {
             notes.push(format!(
-                "shear factor m derived from friction as min(1, sqrt(3) mu) = {:.3} (set dies.friction_factor to give it)",
+                "shear factor m derived from friction as {} = {:.3} (set dies.friction_factor to give it)",
+                crate::pass::DERIVED_SHEAR_FACTOR_RULE,
                 f.mech.friction_factor
             ));
         }
