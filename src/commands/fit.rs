@@ -26,7 +26,7 @@ use crate::report::Format;
 
 /// Largest record file `fit` reads, bytes (about 50 million points): a
 /// regular file is streamed, so it may be larger than the 16 MiB other
-/// inputs are held to; a pipe or device goes through the bounded reader.
+/// inputs are held to; a pipe or device is refused.
 pub const MAX_RECORD_BYTES: u64 = 1 << 30;
 
 /// Arguments of `coldpass fit`.
