@@ -26,7 +26,7 @@ use crate::report::Format;
 
 /// Largest record file `fit` reads, bytes (about 50 million points): a
 /// regular file is streamed, so it may be larger than the 16 MiB other
-/// inputs are held to; a pipe or device goes through the bounded reader.
+/// inputs are held to; a pipe or device is refused.
 pub const MAX_RECORD_BYTES: u64 = 1 << 30;
 
 /// Arguments of `coldpass fit`.
@@ -302,10 +302,10 @@ fn open_record(path: &Path) -> Result<(Box<dyn BufRead>, u64)> {
         );
     }
     if !meta.is_file() {
-        // A pipe or a device: the project's bounded reader (at most 16 MiB, text only).
-        let text = crate::input::read_text(path)?;
-        let n = text.len() as u64;
-        return Ok((Box::new(std::io::Cursor::new(text.into_bytes())), n));
+        bail!(
+            "'{}' is not a regular file: fit streams tensile records from files only",
+            path.display()
+        );
     }
     if meta.len() > MAX_RECORD_BYTES {
         bail!(
@@ -772,6 +772,22 @@ fn drawn_points(args: &FitArgs) -> Result<Vec<DrawnPoint>> {
 
 /// Runs `coldpass fit`.
 pub fn run(args: &FitArgs) -> Result<u8> {
+    // Refused before the fit costs time (the shared writer checks again).
+    let canon = |p: &Path| std::fs::canonicalize(p).unwrap_or_else(|_| p.to_path_buf());
+    for (name, out) in [
+        ("-o", args.report.output.as_deref()),
+        ("--plot", args.report.plot.as_deref()),
+        ("--emit-law", args.emit_law.as_deref()),
+    ] {
+        if let Some(out) = out.filter(|p| *p != Path::new("-")) {
+            if args.files.iter().any(|f| canon(f) == canon(out)) {
+                bail!(
+                    "{name} '{}' is an input of this run: choose another file so the record is not overwritten",
+                    out.display()
+                );
+            }
+        }
+    }
     let options = FitOptions {
         data: match args.data {
             DataArg::Engineering => DataKind::Engineering,
