@@ -65,10 +65,7 @@ fn fit_with_o_onto_its_record_refuses_and_keeps_the_record() {
     let dir = tempfile::tempdir().unwrap();
     let input = copy(&dir, TENSILE, "a.csv");
     let before = fs::read(&input).unwrap();
-    fails(
-        &["fit", s(&input), "-o", s(&input)],
-        &["is an input of this run"],
-    );
+    fails(&["fit", s(&input), "-o", s(&input)], &["is the input file"]);
     assert_eq!(fs::read(&input).unwrap(), before);
 }
 
