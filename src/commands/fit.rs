@@ -780,10 +780,11 @@ pub fn run(args: &FitArgs) -> Result<u8> {
         ("--emit-law", args.emit_law.as_deref()),
     ] {
         if let Some(out) = out.filter(|p| *p != Path::new("-")) {
-            if args.files.iter().any(|f| canon(f) == canon(out)) {
+            if let Some(input) = args.files.iter().find(|f| canon(f) == canon(out)) {
                 bail!(
-                    "{name} '{}' is an input of this run: choose another file so the record is not overwritten",
-                    out.display()
+                    "{name} '{}' is the input file '{}'; writing it would destroy the input: choose another name",
+                    out.display(),
+                    input.display()
                 );
             }
         }
