@@ -87,10 +87,10 @@ fn bench(c: &mut Criterion) {
             "delta_max: 4.0\n  wire_temperature_max_c: 20",
         )
         .replace("max_passes: 40", "max_passes: 5");
-    let cold = schedule::parse(&text).expect("the temperature file parses");
-    assert!(design(&cold, &options).is_err());
+    // Refused as the file is read (issue 15), so the design never starts.
+    assert!(schedule::parse(&text).is_err());
     c.bench_function("design temperature limit below ambient", |b| {
-        b.iter(|| design(black_box(&cold), &options).unwrap_err())
+        b.iter(|| schedule::parse(black_box(&text)).unwrap_err())
     });
 }
 

@@ -3,7 +3,7 @@
 //! the pass strain at which a pass has a given draw ratio.
 
 use crate::flow::FlowLaw;
-use crate::pass::{self, analyse_pass, Die, DrawPass, Method, PassError, Settings};
+use crate::pass::{self, Die, DrawPass, Method, PassError, PreparedPass, Settings};
 use crate::schedule::{self, ScheduleFile};
 
 use super::{DesignError, PASS_STRAIN_CEILING, PASS_STRAIN_FLOOR};
@@ -147,31 +147,30 @@ impl Ctx<'_> {
     ) -> Result<PassPick, PassError> {
         let mut best: Option<PassPick> = None;
         let mut best_any: Option<PassPick> = None;
-        for (&a, die) in self.angles.iter().zip(&self.dies) {
+        let land_die = |die: &Die| {
             let mut die = *die;
             if worst_land {
                 die.land_length_mm *= d_out / self.finish_mm;
             }
-            let dp = DrawPass {
-                entry_diameter_mm: d_in,
-                exit_diameter_mm: d_out,
-                strain_before,
-                back_tension_mpa: 0.0,
-                die,
-            };
-            let m = analyse_pass(law, &dp, &self.settings)?;
-            let stress = m.draw_stress_mpa.get(self.method)?;
-            let delta_ok = self.delta_max.is_none_or(|x| m.delta <= x);
-            let p = PassPick {
-                exit_mm: d_out,
-                semi_angle_deg: a,
-                ratio: stress / m.flow_stress_exit_mpa,
-                reduction: m.area_reduction,
-                delta: m.delta,
-                stress_mpa: stress,
-                strain_after: m.strain_after,
-                delta_ok,
-            };
+            die
+        };
+        // The angle-independent part (geometry, flow stresses, the law's
+        // integrals) once for every stock angle (`analyse_pass` is this
+        // preparation then `mechanics`), so the figures are the same.
+        let Some(first) = self.dies.first() else {
+            return unreachable_pick();
+        };
+        let dp = DrawPass {
+            entry_diameter_mm: d_in,
+            exit_diameter_mm: d_out,
+            strain_before,
+            back_tension_mpa: 0.0,
+            die: land_die(first),
+        };
+        let prepared = PreparedPass::new(law, &dp, &self.settings)?;
+        for (&a, die) in self.angles.iter().zip(&self.dies) {
+            let p = self.pick_one(&prepared, a, &land_die(die), d_in, d_out, strain_before)?;
+            let delta_ok = p.delta_ok;
             if best_any.is_none_or(|b| p.stress_mpa < b.stress_mpa) {
                 best_any = Some(p);
             }
@@ -209,17 +208,40 @@ impl Ctx<'_> {
             back_tension_mpa: 0.0,
             die,
         };
-        let m = analyse_pass(law, &dp, &self.settings)?;
-        let stress = m.draw_stress_mpa.get(self.method)?;
+        let prepared = PreparedPass::new(law, &dp, &self.settings)?;
+        self.pick_one(&prepared, semi_angle_deg, &die, d_in, d_out, strain_before)
+    }
+
+    /// One stock die on a prepared pass: the governing stress alone, not
+    /// every method's, with the figures `analyse_pass` gives (the same
+    /// formulas on the same prepared part). Should any figure not be finite,
+    /// the full analysis is run so that its overflow error is returned.
+    fn pick_one(
+        &self,
+        prepared: &PreparedPass,
+        semi_angle_deg: f64,
+        die: &Die,
+        d_in: f64,
+        d_out: f64,
+        strain_before: f64,
+    ) -> Result<PassPick, PassError> {
+        let stress = prepared.stress_mpa(die, self.method)?;
+        let flow_exit = prepared.flow_stress_exit_mpa();
+        let reduction = pass::area_reduction(d_in, d_out);
+        let delta = pass::delta(die.semi_angle_deg.to_radians(), reduction);
+        let ratio = stress / flow_exit;
+        if !(delta.is_finite() && flow_exit.is_finite() && ratio.is_finite()) {
+            prepared.mechanics(die)?;
+        }
         Ok(PassPick {
             exit_mm: d_out,
             semi_angle_deg,
-            ratio: stress / m.flow_stress_exit_mpa,
-            reduction: m.area_reduction,
-            delta: m.delta,
+            ratio,
+            reduction,
+            delta,
             stress_mpa: stress,
-            strain_after: m.strain_after,
-            delta_ok: self.delta_max.is_none_or(|x| m.delta <= x),
+            strain_after: strain_before + prepared.pass_strain(),
+            delta_ok: self.delta_max.is_none_or(|x| delta <= x),
         })
     }
 
