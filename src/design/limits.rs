@@ -2,6 +2,8 @@
 //! the stock, the limits the pass breaks (the comparisons `check` makes), and
 //! the pass strain at which a pass has a given draw ratio.
 
+use std::cell::Cell;
+
 use crate::flow::FlowLaw;
 use crate::pass::{self, Die, DrawPass, Method, PassError, PreparedPass, Settings};
 use crate::schedule::{self, ScheduleFile};
@@ -118,7 +120,16 @@ pub(super) struct Ctx<'a> {
     pub(super) delta_max: Option<f64>,
     pub(super) cold_work: Option<f64>,
     pub(super) finish_mm: f64,
+    /// The last pass `pick` made, by its inputs (the law by address and the
+    /// sizes and strain by their bits): a level's pass is picked once where
+    /// its pass strain is solved and again where it is laid, from the same
+    /// figures, and the second is this one.
+    pub(super) last_pick: Cell<Option<(PickKey, PassPick)>>,
 }
+
+/// The inputs of one `pick`: the law's address, then `d_in`, `d_out` and
+/// `strain_before` as bits, and the land switch.
+pub(super) type PickKey = (usize, u64, u64, u64, bool);
 
 impl Ctx<'_> {
     /// The ratio the passes are held to, as the file names it.
@@ -138,6 +149,32 @@ impl Ctx<'_> {
     /// is what it is at the finish size, the most any pass of the design sees
     /// (the drawing stress depends on the size only through that ratio).
     pub(super) fn pick(
+        &self,
+        law: &FlowLaw,
+        d_in: f64,
+        d_out: f64,
+        strain_before: f64,
+        worst_land: bool,
+    ) -> Result<PassPick, PassError> {
+        let key = (
+            std::ptr::from_ref(law) as usize,
+            d_in.to_bits(),
+            d_out.to_bits(),
+            strain_before.to_bits(),
+            worst_land,
+        );
+        if let Some((k, p)) = self.last_pick.get() {
+            if k == key {
+                return Ok(p);
+            }
+        }
+        let p = self.pick_fresh(law, d_in, d_out, strain_before, worst_land)?;
+        self.last_pick.set(Some((key, p)));
+        Ok(p)
+    }
+
+    /// `pick` without the last-pass memo.
+    fn pick_fresh(
         &self,
         law: &FlowLaw,
         d_in: f64,

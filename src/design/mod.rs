@@ -288,6 +288,7 @@ impl<'f> Input<'f> {
                 delta_max: file.limits.delta_max,
                 cold_work: file.material.cold_work_limit,
                 finish_mm: self.finish_mm,
+                last_pick: std::cell::Cell::new(None),
             },
             strategy: self.target.strategy,
             taper: self.target.taper.unwrap_or(DEFAULT_TAPER),
