@@ -246,6 +246,22 @@ fn an_empty_die_size_column_is_left_out_and_a_given_one_kept() {
         &["check", "schedules-demo/steel-multiblock.yaml"],
     ));
     assert!(!text.contains("│ die "), "{text}");
+    let text = stdout(&at_width(
+        120,
+        &["check", "schedules-demo/steel-multiblock.yaml", "--wide"],
+    ));
+    assert!(!text.contains("│ die size "), "{text}");
+    // Picked by name, it stays.
+    let text = stdout(&at_width(
+        120,
+        &[
+            "check",
+            "schedules-demo/steel-multiblock.yaml",
+            "--columns",
+            "step,die_size",
+        ],
+    ));
+    assert!(text.contains("│ die "), "{text}");
     // The 25-pass schedule has an anneal row, which names itself there.
     let text = stdout(&at_width(120, &["check", P25]));
     assert!(text.contains("│ die "), "{text}");

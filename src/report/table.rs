@@ -105,17 +105,19 @@ fn has_text(c: &Column, steps: &[&StepReport], units: Units) -> bool {
 }
 
 /// A table of `cols` over the steps. `stacked` puts each header word on its
-/// own line, so that a column is as wide as its figures.
+/// own line, so that a column is as wide as its figures; `drop_empty` leaves
+/// out an empty `die size` column (not when the reader picked it).
 fn pass_table(
     cols: &[&Column],
     steps: &[&StepReport],
     opts: &TableOptions,
     stacked: bool,
+    drop_empty: bool,
 ) -> String {
     let cols: Vec<&Column> = cols
         .iter()
         .copied()
-        .filter(|c| has_text(c, steps, opts.units))
+        .filter(|c| !drop_empty || has_text(c, steps, opts.units))
         .collect();
     let header = cols
         .iter()
@@ -367,6 +369,7 @@ pub fn schedule(rep: &ScheduleReport, opts: &TableOptions) -> Result<String, Str
                 &all,
                 opts,
                 true,
+                true,
             ));
             out.push_str("\n(--wide for every column: strains, Delta, drawing stress by method, force, speed)\n\n");
         }
@@ -377,6 +380,7 @@ pub fn schedule(rep: &ScheduleReport, opts: &TableOptions) -> Result<String, Str
                 &all,
                 opts,
                 false,
+                true,
             ));
             out.push_str(&format!(
                 "\n\nDrawing stress by method, {}\n",
@@ -387,6 +391,7 @@ pub fn schedule(rep: &ScheduleReport, opts: &TableOptions) -> Result<String, Str
                 &draws,
                 opts,
                 false,
+                true,
             ));
             out.push_str("\n\nLine\n");
             out.push_str(&pass_table(
@@ -394,13 +399,14 @@ pub fn schedule(rep: &ScheduleReport, opts: &TableOptions) -> Result<String, Str
                 &draws,
                 opts,
                 false,
+                true,
             ));
             out.push_str("\n\n");
         }
         View::Pick(keys) => {
             let cols = columns::pick(keys)?;
             out.push_str("Passes\n");
-            out.push_str(&pass_table(&cols, &all, opts, true));
+            out.push_str(&pass_table(&cols, &all, opts, true, false));
             out.push_str("\n\n");
         }
     }
