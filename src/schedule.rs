@@ -39,7 +39,7 @@ pub enum ScheduleError {
     },
     /// The machine cannot take the schedule (more dies than blocks, ...).
     #[error("machine: {0}")]
-    Machine(#[from] crate::machine::MachineError),
+    Machine(crate::machine::MachineError),
     /// The file lacks a key that this use of it needs.
     #[error("{key} is missing: {why}")]
     Missing {
@@ -93,6 +93,14 @@ pub const COIL_MASS_MAX_KG: f64 = 1_000_000.0;
 /// the closest method on the validation table (README, "Validation": mean
 /// error 5.0 %, largest 12.2 %, against 19.9 % and 28.6 % for `max`).
 pub const DEFAULT_METHOD: Method = Method::Redundant;
+
+// Written by hand rather than with `#[from]`, which would also make the
+// machine error the message's source and print it twice.
+impl From<crate::machine::MachineError> for ScheduleError {
+    fn from(e: crate::machine::MachineError) -> Self {
+        ScheduleError::Machine(e)
+    }
+}
 
 /// A whole schedule (or design) file.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]

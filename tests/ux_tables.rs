@@ -171,3 +171,99 @@ fn us_units_convert_every_figure_and_name_the_unit() {
         assert!((got - want).abs() <= tol + 1e-9, "{got} vs {want} in {row}");
     }
 }
+
+/// The default table report of `args`, at 120 columns: every line fits 120
+/// characters (counted as characters, not bytes).
+fn fits_120(args: &[&str]) -> String {
+    let out = at_width(120, args);
+    assert_eq!(out.status.code(), Some(0), "{}", stderr(&out));
+    let text = stdout(&out);
+    assert!(
+        widest(&text) <= 120,
+        "widest line {}:\n{text}",
+        widest(&text)
+    );
+    assert!(text.contains("Caution:"), "{text}");
+    text
+}
+
+#[test]
+fn the_design_report_of_the_temper_demo_fits_120_columns() {
+    let text = fits_120(&["design", "schedules-demo/design-copper-temper.yaml"]);
+    // The wrapped anneal reason and notes keep every word, in order.
+    let words = text.split_whitespace().collect::<Vec<_>>().join(" ");
+    assert!(
+        words.contains("an anneal anywhere from 2.1573 to 2.7291 mm lands in the window"),
+        "{text}"
+    );
+    assert!(words.contains("target.ratio_across: whole-schedule puts every pass at one"));
+}
+
+#[test]
+fn the_fit_report_of_the_copper_record_fits_120_columns() {
+    let text = fits_120(&["fit", "schedules-demo/tensile-copper-rod.csv"]);
+    // Every law is a row, with its parameters and standard errors.
+    for law in [
+        "perfectly-plastic",
+        "linear",
+        "hollomon",
+        "ludwik",
+        "swift (best)",
+        "voce",
+    ] {
+        assert!(
+            text.lines().any(|l| l.starts_with(&format!("│ {law} "))),
+            "{law}:\n{text}"
+        );
+    }
+    assert!(text.contains("hardening_modulus_mpa = 359.52"), "{text}");
+    assert!(text.contains("± 3.1"), "{text}");
+}
+
+#[test]
+fn the_risk_report_of_the_scatter_demo_fits_120_columns() {
+    let text = fits_120(&["risk", "schedules-demo/steel-multiblock-scatter.yaml"]);
+    for step in 1..=7 {
+        assert!(
+            text.lines().any(|l| l.starts_with(&format!("│ {step} "))),
+            "step {step} missing:\n{text}"
+        );
+    }
+    // The standard error sits under its probability, the words all there.
+    assert!(text.contains("89.21") && text.contains("+- 0.31"), "{text}");
+    let words = text.split_whitespace().collect::<Vec<_>>().join(" ");
+    assert!(
+        words.contains("--samples 137104 would bring it to +-20 %"),
+        "{text}"
+    );
+}
+
+#[test]
+fn an_empty_die_size_column_is_left_out_and_a_given_one_kept() {
+    // steel-multiblock gives no die as text and has no anneal: no die column.
+    let text = stdout(&at_width(
+        120,
+        &["check", "schedules-demo/steel-multiblock.yaml"],
+    ));
+    assert!(!text.contains("│ die "), "{text}");
+    let text = stdout(&at_width(
+        120,
+        &["check", "schedules-demo/steel-multiblock.yaml", "--wide"],
+    ));
+    assert!(!text.contains("│ die size "), "{text}");
+    // Picked by name, it stays.
+    let text = stdout(&at_width(
+        120,
+        &[
+            "check",
+            "schedules-demo/steel-multiblock.yaml",
+            "--columns",
+            "step,die_size",
+        ],
+    ));
+    assert!(text.contains("│ die "), "{text}");
+    // The 25-pass schedule has an anneal row, which names itself there.
+    let text = stdout(&at_width(120, &["check", P25]));
+    assert!(text.contains("│ die "), "{text}");
+    assert!(text.contains("anneal"), "{text}");
+}

@@ -33,7 +33,7 @@ pub fn render(d: &Design, format: Format, look: &Look) -> Result<Vec<u8>> {
     };
     Ok(match format {
         Format::Table => {
-            let mut s = summary(d);
+            let mut s = summary_to(d, Some(look.table.width));
             s.push('\n');
             s.push_str(
                 &super::table::schedule(&d.report, &look.table).map_err(anyhow::Error::msg)?,
@@ -58,40 +58,65 @@ fn strategy_name(d: &Design) -> String {
         .unwrap_or_default()
 }
 
-/// The short design section of the table output.
+/// The short design section, unwrapped (the HTML page wraps it itself).
 pub fn summary(d: &Design) -> String {
+    summary_to(d, None)
+}
+
+/// The short design section of the table output, its lines and notes wrapped
+/// at words to `width` when given (as the check table's notes are).
+pub fn summary_to(d: &Design, width: Option<usize>) -> String {
     let s = &d.summary;
     let mut out = String::new();
+    let line = |out: &mut String, text: &str, indent: &str| {
+        match width {
+            Some(w) => out.push_str(&super::table::wrap(text, w, indent)),
+            None => out.push_str(text),
+        }
+        out.push('\n');
+    };
     let taper = s.taper.map(|t| format!(" (taper {t})")).unwrap_or_default();
-    out.push_str(&format!(
-        "Design: {}{taper}, {} draw passes (at most {}), {} anneal{}; governing method {}\n",
-        strategy_name(d),
-        s.draw_passes,
-        s.max_passes,
-        s.anneals.len(),
-        if s.anneals.len() == 1 { "" } else { "s" },
-        s.method
-    ));
+    line(
+        &mut out,
+        &format!(
+            "Design: {}{taper}, {} draw passes (at most {}), {} anneal{}; governing method {}",
+            strategy_name(d),
+            s.draw_passes,
+            s.max_passes,
+            s.anneals.len(),
+            if s.anneals.len() == 1 { "" } else { "s" },
+            s.method
+        ),
+        "",
+    );
     let angles: Vec<String> = s.die_angles_deg.iter().map(|a| a.to_string()).collect();
-    out.push_str(&format!(
-        "Die semi-angles chosen from: {} deg; draw-ratio spread {:.3} % within a run (largest), {:.3} % over the schedule; passes aimed at a draw ratio of at most {}\n",
+    line(&mut out, &format!(
+        "Die semi-angles chosen from: {} deg; draw-ratio spread {:.3} % within a run (largest), {:.3} % over the schedule; passes aimed at a draw ratio of at most {}",
         angles.join(", "),
         100.0 * s.run_draw_ratio_spread,
         100.0 * s.draw_ratio_spread,
         fixed(Some(s.draw_ratio_aimed), 4)
-    ));
+    ), "");
     match (s.strength_window_mpa, s.aimed_flow_stress_mpa) {
-        (Some(w), aim) => out.push_str(&format!(
-            "Temper window {}-{} MPa, aimed at {} MPa; finished flow stress {} MPa\n",
-            w.min,
-            w.max,
-            fixed(aim, 1),
-            fixed(Some(s.finished_flow_stress_mpa), 1)
-        )),
-        (None, _) => out.push_str(&format!(
-            "Finished flow stress {} MPa (no temper window given)\n",
-            fixed(Some(s.finished_flow_stress_mpa), 1)
-        )),
+        (Some(w), aim) => line(
+            &mut out,
+            &format!(
+                "Temper window {}-{} MPa, aimed at {} MPa; finished flow stress {} MPa",
+                w.min,
+                w.max,
+                fixed(aim, 1),
+                fixed(Some(s.finished_flow_stress_mpa), 1)
+            ),
+            "",
+        ),
+        (None, _) => line(
+            &mut out,
+            &format!(
+                "Finished flow stress {} MPa (no temper window given)",
+                fixed(Some(s.finished_flow_stress_mpa), 1)
+            ),
+            "",
+        ),
     }
     let mut b = Builder::default();
     b.push_record([
@@ -135,13 +160,17 @@ pub fn summary(d: &Design) -> String {
                     )
                 })
                 .unwrap_or_default();
-            out.push_str(&format!(
-                "- step {} at {} mm ({}){window}: {}\n",
-                a.step,
-                fixed(Some(a.diameter_mm), 3),
-                a.reason.name(),
-                a.why
-            ));
+            line(
+                &mut out,
+                &format!(
+                    "- step {} at {} mm ({}){window}: {}",
+                    a.step,
+                    fixed(Some(a.diameter_mm), 3),
+                    a.reason.name(),
+                    a.why
+                ),
+                "  ",
+            );
         }
     }
     let mut b = Builder::default();
@@ -157,16 +186,22 @@ pub fn summary(d: &Design) -> String {
     let mut t = b.build();
     t.with(Style::sharp());
     t.modify(Columns::new(0..), Alignment::right());
-    out.push_str(&format!(
-        "\nDie list ({})\n{t}\n",
-        s.die_rounding
-            .as_deref()
-            .unwrap_or("full precision: set target.die_step_mm or target.die_sizes_mm to round")
-    ));
+    out.push('\n');
+    line(
+        &mut out,
+        &format!(
+            "Die list ({})",
+            s.die_rounding.as_deref().unwrap_or(
+                "full precision: set target.die_step_mm or target.die_sizes_mm to round"
+            )
+        ),
+        "  ",
+    );
+    out.push_str(&format!("{t}\n"));
     if !s.notes.is_empty() {
         out.push_str("\nDesign notes\n");
         for n in &s.notes {
-            out.push_str(&format!("- {n}\n"));
+            line(&mut out, &format!("- {n}"), "  ");
         }
     }
     out

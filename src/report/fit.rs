@@ -8,8 +8,8 @@ use std::fmt::Write as _;
 use anyhow::{Context, Result};
 use plotters::prelude::*;
 use serde::Serialize;
-use tabled::builder::Builder;
-use tabled::settings::Style;
+
+use super::table::{build, stack, terminal_width, wrap_long_lines};
 
 use coldpass::fit::{self, DataKind, FitLaw, FitReport, LawFit, Scatter, Yielding};
 use coldpass::FlowLaw;
@@ -325,6 +325,10 @@ pub fn csv_all(rs: &[FitReport], srcs: &[Source]) -> Result<String> {
 
 /// The tables of every record, then the set's law and scatter.
 pub fn table_all(rs: &[FitReport], srcs: &[Source], set: Option<&Set>) -> String {
+    wrap_long_lines(&records_and_set(rs, srcs, set), terminal_width())
+}
+
+fn records_and_set(rs: &[FitReport], srcs: &[Source], set: Option<&Set>) -> String {
     if rs.len() == 1 {
         return table(&rs[0], &srcs[0]);
     }
@@ -383,8 +387,10 @@ fn opt(v: Option<f64>, digits: usize) -> String {
     v.map_or_else(|| "-".into(), |x| sig(x, digits))
 }
 
-/// The table for people.
+/// The table for people, fitted to the terminal's width: the law table's
+/// headers word by word and its cells wrapped at words, long lines wrapped.
 pub fn table(r: &FitReport, src: &Source) -> String {
+    let width = terminal_width();
     let mut out = String::new();
     let _ = writeln!(out, "coldpass fit: {}", src.file);
     let _ = writeln!(out, "  columns: {}", src.columns);
@@ -449,7 +455,7 @@ pub fn table(r: &FitReport, src: &Source) -> String {
     }
     let _ = writeln!(out, "  Note: {STD_ERROR_NOTE}.");
     let _ = writeln!(out);
-    let _ = writeln!(out, "{}", law_table(r, &r.fits, r.best));
+    let _ = writeln!(out, "{}", law_table(r, &r.fits, r.best, width));
     match r.best {
         Some(best) => {
             let _ = writeln!(
@@ -481,7 +487,11 @@ pub fn table(r: &FitReport, src: &Source) -> String {
             out,
             "\nWith the drawn-wire points ({pts}; together weighted as much as the record):"
         );
-        let _ = writeln!(out, "{}", law_table(r, &r.drawn_fits, r.best_with_drawn));
+        let _ = writeln!(
+            out,
+            "{}",
+            law_table(r, &r.drawn_fits, r.best_with_drawn, width)
+        );
         if let Some(b) = r.best_with_drawn {
             let _ = writeln!(
                 out,
@@ -497,18 +507,17 @@ pub fn table(r: &FitReport, src: &Source) -> String {
         }
     }
     let _ = writeln!(out, "\n{CAUTION}");
-    out
+    wrap_long_lines(&out, width)
 }
 
 /// The table of fitted laws.
-fn law_table(r: &FitReport, fits: &[LawFit], best: Option<FitLaw>) -> String {
-    let mut b = Builder::default();
+fn law_table(r: &FitReport, fits: &[LawFit], best: Option<FitLaw>, width: usize) -> String {
     let reach = r
         .reach_strain
         .map_or("stress MPa at reach strain".to_string(), |x| {
             format!("stress MPa at strain {}", sig(x, 3))
         });
-    b.push_record([
+    let header = [
         "law".to_string(),
         "parameters ± std error".to_string(),
         "RMS MPa".to_string(),
@@ -517,7 +526,31 @@ fn law_table(r: &FitReport, fits: &[LawFit], best: Option<FitLaw>) -> String {
         "UTS from law MPa".to_string(),
         reach,
         "converged".to_string(),
-    ]);
+    ];
+    // Headers word by word (the parameters' header stays whole: its column is
+    // wide anyway), as the check table does, and the whole fitted to the width.
+    let header: Vec<String> = header
+        .iter()
+        .enumerate()
+        .map(|(i, h)| if i == 1 { h.clone() } else { stack(h) })
+        .collect();
+    // One line a parameter when that fits; else its standard error on the
+    // line below; else the cells wrapped at words to the width.
+    let natural = |split: bool| build(header.clone(), law_rows(fits, best, split), None, &[1, 7]);
+    for split in [false, true] {
+        let t = natural(split);
+        if t.lines().all(|l| l.chars().count() <= width) {
+            return t;
+        }
+    }
+    build(header, law_rows(fits, best, true), Some(width), &[1, 7])
+}
+
+/// The rows of the law table; `split` puts each standard error on the line
+/// below its parameter.
+fn law_rows(fits: &[LawFit], best: Option<FitLaw>, split: bool) -> Vec<Vec<String>> {
+    let pm = if split { "\n  ± " } else { " ± " };
+    let mut rows = Vec::new();
     for f in fits {
         let mut name = f.law.name().to_string();
         if Some(f.law) == best {
@@ -530,17 +563,17 @@ fn law_table(r: &FitReport, fits: &[LawFit], best: Option<FitLaw>) -> String {
             .params
             .iter()
             .map(|p| match p.std_error {
-                Some(se) => format!("{} = {} ± {}", p.name, sig(p.value, 5), sig(se, 2)),
+                Some(se) => format!("{} = {}{pm}{}", p.name, sig(p.value, 5), sig(se, 2)),
                 None => format!("{} = {}", p.name, sig(p.value, 5)),
             })
             .collect::<Vec<_>>()
             .join("\n");
         let conv = match (f.converged, f.iterations) {
-            (true, 0) => "yes (direct)".to_string(),
-            (true, i) => format!("yes ({i} it.)"),
-            (false, i) => format!("NO ({i} it.)"),
+            (true, 0) => "yes\n(direct)".to_string(),
+            (true, i) => format!("yes\n({i} it.)"),
+            (false, i) => format!("NO\n({i} it.)"),
         };
-        b.push_record([
+        rows.push(vec![
             name,
             params,
             sig(f.rms_mpa, 3),
@@ -551,7 +584,7 @@ fn law_table(r: &FitReport, fits: &[LawFit], best: Option<FitLaw>) -> String {
             conv,
         ]);
     }
-    b.build().with(Style::sharp()).to_string()
+    rows
 }
 
 /// CSV: one row per fit with every parameter key as a column (empty where a

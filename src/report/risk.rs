@@ -6,9 +6,6 @@
 use anyhow::{anyhow, Result};
 use coldpass::risk::{PassRisk, RiskReport};
 use plotters::prelude::*;
-use tabled::builder::Builder;
-use tabled::settings::object::Columns;
-use tabled::settings::{Alignment, Style};
 
 use super::fixed;
 use crate::report::Format;
@@ -28,16 +25,20 @@ pub fn render(rep: &RiskReport, format: Format) -> Result<Vec<u8>> {
     })
 }
 
-fn build(header: &[&str], rows: Vec<Vec<String>>) -> String {
-    let mut b = Builder::default();
-    b.push_record(header.iter().map(|s| s.to_string()));
-    for r in rows {
-        b.push_record(r);
-    }
-    let mut t = b.build();
-    t.with(Style::sharp());
-    t.modify(Columns::new(1..), Alignment::right());
-    t.to_string()
+/// A table fitted to `width` with the check table's layout (first column
+/// left, figures right), each header word on its own line when `stacked`.
+fn build(header: &[&str], rows: Vec<Vec<String>>, width: usize, stacked: bool) -> String {
+    let header = header
+        .iter()
+        .map(|h| {
+            if stacked {
+                super::table::stack(h)
+            } else {
+                h.to_string()
+            }
+        })
+        .collect();
+    super::table::build(header, rows, Some(width), &[])
 }
 
 /// A probability in percent with its standard error: `1.23 +- 0.11`.
@@ -65,6 +66,8 @@ fn driver(p: &PassRisk) -> String {
 
 /// The human-readable report.
 pub fn table(rep: &RiskReport) -> String {
+    let width = super::table::terminal_width();
+    let wrap = |text: &str, indent: &str| super::table::wrap(text, width, indent);
     let mut out = String::new();
     if !rep.title.is_empty() {
         out.push_str(&format!("{}\n", rep.title));
@@ -73,8 +76,8 @@ pub fn table(rep: &RiskReport) -> String {
         out.push_str(&format!("Material: {}\n", rep.material));
     }
     let s = &rep.summary;
-    out.push_str(&format!(
-        "Break risk under scatter: {} samples ({}, seed {}); governing method {} ({}); draw ratio warn {} / max {}\n\n",
+    out.push_str(&wrap(&format!(
+        "Break risk under scatter: {} samples ({}, seed {}); governing method {} ({}); draw ratio warn {} / max {}",
         s.samples,
         rep.sampling.name(),
         rep.seed,
@@ -82,7 +85,8 @@ pub fn table(rep: &RiskReport) -> String {
         rep.method_source,
         rep.draw_ratio_warn,
         rep.draw_ratio_max
-    ));
+    ), ""));
+    out.push_str("\n\n");
     if !rep.scatter.is_empty() {
         let rows = rep
             .scatter
@@ -100,29 +104,43 @@ pub fn table(rep: &RiskReport) -> String {
         out.push_str(&build(
             &["input", "distribution", "between dies", "from"],
             rows,
+            width,
+            false,
         ));
         out.push_str("\n\n");
     }
     let (header, rows) = pass_rows(rep);
     let header: Vec<&str> = header.iter().map(String::as_str).collect();
+    // The standard error under its figure keeps a probability column narrow.
+    let rows = rows
+        .into_iter()
+        .map(|r| r.into_iter().map(|c| c.replace(" +- ", "\n+- ")).collect())
+        .collect();
     out.push_str("Passes (probabilities in % +- one standard error)\n");
-    out.push_str(&build(&header, rows));
+    out.push_str(&build(&header, rows, width, true));
     out.push_str("\n\nSummary\n");
     let lines = summary_lines(rep);
     for l in lines {
-        out.push_str(&format!("  {l}\n"));
+        out.push_str(&wrap(&format!("  {l}"), "    "));
+        out.push('\n');
     }
     if !rep.warnings.is_empty() {
         out.push_str("\nWarnings\n");
         for w in &rep.warnings {
-            out.push_str(&format!("  - {w}\n"));
+            out.push_str(&wrap(&format!("  - {w}"), "    "));
+            out.push('\n');
         }
     }
     out.push_str("\nNotes\n");
     for n in &rep.notes {
-        out.push_str(&format!("  - {n}\n"));
+        out.push_str(&wrap(&format!("  - {n}"), "    "));
+        out.push('\n');
     }
-    out.push_str(&format!("\n{}\n\nCaution: {}\n", rep.scope, rep.caution));
+    out.push('\n');
+    out.push_str(&wrap(&rep.scope, ""));
+    out.push_str("\n\n");
+    out.push_str(&wrap(&format!("Caution: {}", rep.caution), ""));
+    out.push('\n');
     out
 }
 

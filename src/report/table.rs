@@ -62,7 +62,10 @@ pub fn terminal_width() -> usize {
         .unwrap_or(120)
 }
 
-fn build(
+/// A sharp table of `header` over `rows`: the first column and `text_cols`
+/// left, the rest right; with `width`, wrapped at words to fit it (the widest
+/// column first). Shared by every table report.
+pub fn build(
     header: Vec<String>,
     rows: Vec<Vec<String>>,
     width: Option<usize>,
@@ -89,20 +92,39 @@ fn build(
     t.to_string()
 }
 
+/// A header with each word on its own line, so that a column is as wide as
+/// its figures (the words are the same, only the layout changes).
+pub fn stack(header: &str) -> String {
+    header.replace(' ', "\n")
+}
+
+/// Whether column `c` has text in any of `steps` (a die size given as text,
+/// or an anneal row); an empty `die size` column is left out.
+fn has_text(c: &Column, steps: &[&StepReport], units: Units) -> bool {
+    c.key != "die_size" || steps.iter().any(|r| !c.cell(r, units).is_empty())
+}
+
 /// A table of `cols` over the steps. `stacked` puts each header word on its
-/// own line, so that a column is as wide as its figures.
+/// own line, so that a column is as wide as its figures; `drop_empty` leaves
+/// out an empty `die size` column (not when the reader picked it).
 fn pass_table(
     cols: &[&Column],
     steps: &[&StepReport],
     opts: &TableOptions,
     stacked: bool,
+    drop_empty: bool,
 ) -> String {
+    let cols: Vec<&Column> = cols
+        .iter()
+        .copied()
+        .filter(|c| !drop_empty || has_text(c, steps, opts.units))
+        .collect();
     let header = cols
         .iter()
         .map(|c| {
             let h = c.header(opts.units);
             if stacked {
-                h.replace(' ', "\n")
+                stack(&h)
             } else {
                 h
             }
@@ -129,13 +151,14 @@ fn pass_table(
     build(header, rows, stacked.then_some(opts.width), &text_cols)
 }
 
-/// Wraps `text` to `width` characters at spaces, indenting continuation lines by `indent`.
+/// Wraps `text` to `width` characters at spaces, indenting continuation lines
+/// by `indent`; the leading spaces of `text` are kept on its first line.
 pub fn wrap(text: &str, width: usize, indent: &str) -> String {
     let mut out = String::new();
-    let mut line = String::new();
+    let mut line: String = text.chars().take_while(|c| *c == ' ').collect();
     for word in text.split_whitespace() {
         let len = line.chars().count();
-        if len > 0 && len + 1 + word.chars().count() > width {
+        if !line.trim().is_empty() && len + 1 + word.chars().count() > width {
             out.push_str(&line);
             out.push('\n');
             line = indent.to_string();
@@ -145,6 +168,30 @@ pub fn wrap(text: &str, width: usize, indent: &str) -> String {
         line.push_str(word);
     }
     out.push_str(&line);
+    out
+}
+
+/// `text` with every line longer than `width` wrapped at words: continuation
+/// lines keep the line's indent, two more under a `- ` list item.
+pub fn wrap_long_lines(text: &str, width: usize) -> String {
+    let mut out = String::new();
+    for l in text.lines() {
+        if l.chars().count() > width {
+            let lead: String = l.chars().take_while(|c| *c == ' ').collect();
+            let more = if l.trim_start().starts_with("- ") {
+                "  "
+            } else {
+                ""
+            };
+            out.push_str(&wrap(l, width, &format!("{lead}{more}")));
+        } else {
+            out.push_str(l);
+        }
+        out.push('\n');
+    }
+    if !text.ends_with('\n') {
+        out.pop();
+    }
     out
 }
 
@@ -322,6 +369,7 @@ pub fn schedule(rep: &ScheduleReport, opts: &TableOptions) -> Result<String, Str
                 &all,
                 opts,
                 true,
+                true,
             ));
             out.push_str("\n(--wide for every column: strains, Delta, drawing stress by method, force, speed)\n\n");
         }
@@ -332,6 +380,7 @@ pub fn schedule(rep: &ScheduleReport, opts: &TableOptions) -> Result<String, Str
                 &all,
                 opts,
                 false,
+                true,
             ));
             out.push_str(&format!(
                 "\n\nDrawing stress by method, {}\n",
@@ -342,6 +391,7 @@ pub fn schedule(rep: &ScheduleReport, opts: &TableOptions) -> Result<String, Str
                 &draws,
                 opts,
                 false,
+                true,
             ));
             out.push_str("\n\nLine\n");
             out.push_str(&pass_table(
@@ -349,13 +399,14 @@ pub fn schedule(rep: &ScheduleReport, opts: &TableOptions) -> Result<String, Str
                 &draws,
                 opts,
                 false,
+                true,
             ));
             out.push_str("\n\n");
         }
         View::Pick(keys) => {
             let cols = columns::pick(keys)?;
             out.push_str("Passes\n");
-            out.push_str(&pass_table(&cols, &all, opts, true));
+            out.push_str(&pass_table(&cols, &all, opts, true, false));
             out.push_str("\n\n");
         }
     }
@@ -399,5 +450,7 @@ mod tests {
         assert!(w.lines().all(|l| l.chars().count() <= 12), "{w}");
         assert_eq!(w.split_whitespace().collect::<Vec<_>>().join(" "), text);
         assert!(w.lines().skip(1).all(|l| l.starts_with("  ")));
+        let w = wrap("  - the quick brown fox", 12, "    ");
+        assert_eq!(w, "  - the\n    quick\n    brown\n    fox");
     }
 }

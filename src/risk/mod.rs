@@ -68,7 +68,7 @@ pub enum RiskError {
     #[error(transparent)]
     Schedule(#[from] ScheduleError),
     /// A value of the scatter block or an option is out of range.
-    #[error("{0}")]
+    #[error(transparent)]
     Value(#[from] ParamError),
     /// The nominal schedule could not be evaluated.
     #[error("evaluating the nominal schedule: {0}")]
