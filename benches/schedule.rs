@@ -14,7 +14,7 @@
 
 use coldpass::evaluation::{evaluate, EvaluateOptions};
 use coldpass::schedule;
-use coldpass::{analyse_pass, optimum_semi_angle, Die, DrawPass, FlowLaw, Method, Settings};
+use coldpass::{FlowLaw, Method};
 use criterion::{black_box, criterion_group, criterion_main, Criterion};
 
 /// A 25-pass copper schedule, 8 mm down by 19 % area a pass (bench data only).
@@ -53,45 +53,10 @@ passes:
     text
 }
 
-/// The same 25 passes as [`twenty_five_passes`], as core pass inputs.
-fn core_passes() -> Vec<DrawPass> {
-    let mut die = Die::new(6.0, 0.05).unwrap();
-    die.efficiency = Some(0.65);
-    let mut passes = Vec::new();
-    let (mut d, mut strain) = (8.0f64, 0.0f64);
-    for i in 0..25 {
-        let exit = d * 0.9;
-        passes.push(DrawPass {
-            entry_diameter_mm: d,
-            exit_diameter_mm: exit,
-            strain_before: strain,
-            back_tension_mpa: 0.0,
-            die,
-        });
-        strain += 2.0 * (d / exit).ln();
-        d = exit;
-        if i == 12 {
-            strain = 0.0;
-        }
-    }
-    passes
-}
-
-fn run_core(law: &FlowLaw, passes: &[DrawPass], optimum: Option<Method>) -> f64 {
-    let settings = Settings::default();
-    let mut total = 0.0;
-    for p in passes {
-        let m = analyse_pass(law, p, &settings).unwrap();
-        total += m.draw_stress_mpa.sachs;
-        if let Some(method) = optimum {
-            let o = optimum_semi_angle(law, p, &settings, method)
-                .unwrap()
-                .unwrap();
-            total += o.semi_angle_deg;
-        }
-    }
-    total
-}
+// The same 25 passes as `twenty_five_passes`, as core pass inputs.
+#[path = "common/core_25.rs"]
+mod core_25;
+use core_25::{core_passes, run as run_core};
 
 fn bench(c: &mut Criterion) {
     let voce = FlowLaw::voce(80.0, 470.0, 0.8).unwrap();
