@@ -35,6 +35,7 @@ use std::f64::consts::PI;
 use serde::{Deserialize, Serialize};
 
 use crate::param::{self, Ends, ParamError};
+use crate::size::quantity::de as q;
 
 /// Default drive efficiency (motor to capstan: gearbox and belts), common
 /// practice 0.85 to 0.95; from memory.
@@ -62,7 +63,7 @@ pub enum MachineError {
     #[error("{0}")]
     Syntax(String),
     /// A value is out of range (`key` is its path in the machine file).
-    #[error("{key}: {problem}")]
+    #[error("{}", crate::schedule::key_says(key, problem))]
     Value {
         /// Path of the key (`blocks[2].motor_kw`).
         key: String,
@@ -105,21 +106,31 @@ impl MachineKind {
 #[serde(deny_unknown_fields)]
 pub struct Block {
     /// Capstan diameter, mm (where the wire wraps).
+    #[serde(deserialize_with = "q::length")]
     pub capstan_diameter_mm: f64,
     /// Motor rating, kW (shaft output).
+    #[serde(deserialize_with = "q::power")]
     pub motor_kw: f64,
     /// Highest capstan speed, rpm (give this or `max_surface_speed_m_s`, or both).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub max_capstan_rpm: Option<f64>,
     /// Highest capstan surface speed, m/s.
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    #[serde(
+        default,
+        deserialize_with = "q::opt_speed",
+        skip_serializing_if = "Option::is_none"
+    )]
     pub max_surface_speed_m_s: Option<f64>,
     /// Motor-to-capstan efficiency, (0, 1]; default the machine's, else 0.9.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub drive_efficiency: Option<f64>,
     /// Non-slip machines: back tension the dancer before this block holds on
     /// its die, MPa (a pass's own `back_tension_mpa` wins).
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    #[serde(
+        default,
+        deserialize_with = "q::opt_stress",
+        skip_serializing_if = "Option::is_none"
+    )]
     pub dancer_back_tension_mpa: Option<f64>,
     /// Slip machines: this capstan's surface speed over the previous one's
     /// (the cone step ratio), above 1; not on the first block.
@@ -145,14 +156,22 @@ pub struct Machine {
     /// The wire speed at which `cooling_between_dies` holds, m/s; with it the
     /// cooling falls with speed (less time on the capstan), without it the
     /// fraction is the same at every speed.
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    #[serde(
+        default,
+        deserialize_with = "q::opt_speed",
+        skip_serializing_if = "Option::is_none"
+    )]
     pub cooling_at_speed_m_s: Option<f64>,
     /// Drive efficiency of every block without its own, (0, 1]; default 0.9.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub drive_efficiency: Option<f64>,
     /// Highest wire temperature at a die exit, deg C (the lubricant's limit,
     /// or strain ageing of carbon steel).
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    #[serde(
+        default,
+        deserialize_with = "q::opt_temperature",
+        skip_serializing_if = "Option::is_none"
+    )]
     pub wire_temperature_max_c: Option<f64>,
     /// Slip machines: largest slip allowed at a capstan; default 0.15.
     #[serde(default, skip_serializing_if = "Option::is_none")]
@@ -162,11 +181,15 @@ pub struct Machine {
 /// Reads a machine file from YAML text and validates it.
 pub fn parse(text: &str) -> Result<Machine, MachineError> {
     let m: Machine = serde_yaml::from_str(text).map_err(|e| {
-        MachineError::Syntax(
-            e.to_string()
-                .replace("expected f64", "expected a number")
-                .replace("expected a borrowed string", "expected text"),
-        )
+        let said = e
+            .to_string()
+            .replace("expected f64", "expected a number")
+            .replace("expected a borrowed string", "expected text");
+        // A value with a bad unit reads `` `key.path` = value: allowed ... ``.
+        MachineError::Syntax(match said.split_once(": = ") {
+            Some((path, rest)) if !path.contains(' ') => format!("`{path}` = {rest}"),
+            _ => said,
+        })
     })?;
     m.validate()?;
     Ok(m)

@@ -4,6 +4,9 @@
 //! One model serves both `check` (which needs `passes`) and `design` (which
 //! needs `target`). Unknown keys are errors; numbers are validated as they are
 //! read, and each message names the key, the value and what is allowed.
+//! Stresses, speeds, powers, temperatures and lengths may carry their unit
+//! in the value (`back_tension_mpa: "3 ksi"`, `finish_speed_m_s: "1500
+//! ft/min"`; [`crate::size::quantity`]); a plain number is in the key's unit.
 
 mod read;
 mod validate;
@@ -13,6 +16,7 @@ use serde::{Deserialize, Serialize};
 use crate::flow::FlowLaw;
 use crate::param::{self, Ends, ParamError};
 use crate::pass::{Die, Method};
+use crate::size::quantity::de as q;
 use crate::size::Diameter;
 
 /// Why a schedule file cannot be used.
@@ -23,7 +27,7 @@ pub enum ScheduleError {
     #[error("{0}")]
     Syntax(String),
     /// A value is out of range (`key` is its path in the file).
-    #[error("{key}: {problem}")]
+    #[error("{}", key_says(key, problem))]
     Value {
         /// Path of the key in the file (`passes[3].exit`).
         key: String,
@@ -31,7 +35,7 @@ pub enum ScheduleError {
         problem: ParamError,
     },
     /// A pass could not be evaluated.
-    #[error("{key}: {problem}")]
+    #[error("{}", pass_says(key, problem))]
     Pass {
         /// Path of the step in the file (`passes[3]`).
         key: String,
@@ -49,6 +53,56 @@ pub enum ScheduleError {
         /// Why it is needed.
         why: String,
     },
+}
+
+/// Blocks of keys a message may name: a parameter inside one is shown as
+/// `block.parameter` (`dies.friction`).
+const BLOCK_KEYS: [&str; 10] = [
+    "material", "start", "dies", "limits", "line", "target", "passes", "blocks", "scatter",
+    "machine",
+];
+
+/// One message shape for every bad value: `` `key.path` = value: rule ``,
+/// the rule in the words "allowed ..." where it states a range (`` `dies.friction`
+/// = 5: allowed in [0, 0.5] ``). `key` is where the file holds the value
+/// (`dies`, `limits.ambient_c`, `passes[3] (step 4)`); a parameter inside a
+/// block is joined to it.
+pub fn key_says(key: &str, problem: &ParamError) -> String {
+    let (path, note) = match key.split_once(" (") {
+        Some((p, rest)) => (p, format!(" ({rest}")),
+        None => (key, String::new()),
+    };
+    let last = path.rsplit('.').next().unwrap_or(path);
+    let last = last.split('[').next().unwrap_or(last);
+    let path = if problem.name.contains('.') {
+        problem.name.clone()
+    } else if path.is_empty() {
+        problem.name.clone()
+    } else if BLOCK_KEYS.contains(&last) && last != problem.name {
+        format!("{path}.{}", problem.name)
+    } else {
+        path.to_string()
+    };
+    format!(
+        "`{path}`{note} = {}: {}",
+        problem.value,
+        rule_words(&problem.allowed)
+    )
+}
+
+/// A rule in the messages' words: "must be in [0, 1]" reads "allowed in [0, 1]".
+pub fn rule_words(rule: &str) -> String {
+    match rule.strip_prefix("must be ") {
+        Some(rest) => format!("allowed {rest}"),
+        None => rule.to_string(),
+    }
+}
+
+fn pass_says(key: &str, problem: &crate::pass::PassError) -> String {
+    match problem {
+        crate::pass::PassError::Param(p) => key_says(key, p),
+        other => format!("`{key}`: {other}"),
+    }
 }
 
 /// Default fraction of the deformation work that becomes heat (Taylor-Quinney
@@ -169,7 +223,11 @@ pub struct Material {
     pub flow_scatter: Option<crate::risk::FlowScatter>,
     /// Yield stress of the annealed stock, MPa (for the back-tension check);
     /// default: the law at a 0.002 offset strain.
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    #[serde(
+        default,
+        deserialize_with = "q::opt_stress",
+        skip_serializing_if = "Option::is_none"
+    )]
     pub yield_mpa: Option<f64>,
     /// Largest true plastic strain the flow law was fitted over (`fit` emits
     /// it beside `flow:`); past it the law is extrapolated.
@@ -192,6 +250,7 @@ pub struct DrawnStrength {
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub diameter: Option<Diameter>,
     /// Measured tensile strength, MPa.
+    #[serde(deserialize_with = "q::stress")]
     pub tensile_strength_mpa: f64,
 }
 
@@ -241,7 +300,11 @@ pub struct DieDefaults {
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub friction_factor: Option<f64>,
     /// Die land length, mm; default 0.
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    #[serde(
+        default,
+        deserialize_with = "q::opt_length",
+        skip_serializing_if = "Option::is_none"
+    )]
     pub land_length_mm: Option<f64>,
     /// Drawing efficiency for the efficiency method.
     #[serde(default, skip_serializing_if = "Option::is_none")]
@@ -263,10 +326,18 @@ pub struct Limits {
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub delta_max: Option<f64>,
     /// Highest mean wire temperature at a die exit, deg C.
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    #[serde(
+        default,
+        deserialize_with = "q::opt_temperature",
+        skip_serializing_if = "Option::is_none"
+    )]
     pub wire_temperature_max_c: Option<f64>,
     /// Ambient temperature, deg C; the wire enters every die at it. Default 25.
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    #[serde(
+        default,
+        deserialize_with = "q::opt_temperature",
+        skip_serializing_if = "Option::is_none"
+    )]
     pub ambient_c: Option<f64>,
     /// Largest distance from the optimum semi-angle before a pass is flagged, degrees; default 3.
     #[serde(default, skip_serializing_if = "Option::is_none")]
@@ -285,9 +356,14 @@ pub struct Limits {
 #[serde(deny_unknown_fields)]
 pub struct Line {
     /// Speed of the finished wire, m/s.
+    #[serde(deserialize_with = "q::speed")]
     pub finish_speed_m_s: f64,
     /// Motor power limit per die (block), kW.
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    #[serde(
+        default,
+        deserialize_with = "q::opt_power",
+        skip_serializing_if = "Option::is_none"
+    )]
     pub block_power_kw: Option<f64>,
     /// Mass of one finished coil or spool, kg.
     #[serde(default, skip_serializing_if = "Option::is_none")]
@@ -305,8 +381,10 @@ pub struct Line {
 #[serde(deny_unknown_fields)]
 pub struct Window {
     /// Lowest allowed, MPa.
+    #[serde(deserialize_with = "q::stress")]
     pub min: f64,
     /// Highest allowed, MPa.
+    #[serde(deserialize_with = "q::stress")]
     pub max: f64,
 }
 
@@ -364,7 +442,11 @@ pub struct Target {
     pub ratio_across: RatioAcross,
     /// Die-room size step, mm: every die but the finish die is rounded to a
     /// multiple of it.
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    #[serde(
+        default,
+        deserialize_with = "q::opt_length",
+        skip_serializing_if = "Option::is_none"
+    )]
     pub die_step_mm: Option<f64>,
     /// Die sizes the die room stocks, mm: every die but the finish die is one of them.
     #[serde(default, skip_serializing_if = "Option::is_none")]
@@ -438,11 +520,19 @@ pub struct StepText {
     friction: Option<f64>,
     #[serde(default, skip_serializing_if = "Option::is_none")]
     friction_factor: Option<f64>,
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    #[serde(
+        default,
+        deserialize_with = "q::opt_length",
+        skip_serializing_if = "Option::is_none"
+    )]
     land_length_mm: Option<f64>,
     #[serde(default, skip_serializing_if = "Option::is_none")]
     efficiency: Option<f64>,
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    #[serde(
+        default,
+        deserialize_with = "q::opt_stress",
+        skip_serializing_if = "Option::is_none"
+    )]
     back_tension_mpa: Option<f64>,
 }
 

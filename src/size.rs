@@ -12,12 +12,17 @@
 //! BWG, the Birmingham (Stubs' iron) wire gauge: a table from 5/0 (0.500 in)
 //! to 36 (0.004 in), still used for tube walls and hypodermic tubing.
 //!
+//! Values with other units (stresses, forces, speeds, powers, temperatures)
+//! are read by [`quantity`].
+//!
 //! Both tables are written here from memory of the published tables; the
 //! tests check them against sizes quoted in millimetres and the tables' own
 //! step pattern.
 
 use serde::{Deserialize, Serialize};
 use std::fmt;
+
+pub mod quantity;
 
 use crate::param::ParamError;
 
@@ -116,7 +121,7 @@ impl Diameter {
     pub fn parse(text: &str) -> Result<Self, ParamError> {
         let t = text.trim();
         let lower = t.to_ascii_lowercase();
-        let allowed = "must be a number of mm, a number with a unit (\"8 mm\", \"0.315 in\") or a gauge (\"AWG 10\", \"AWG 4/0\")";
+        let allowed = "must be a number of mm, a number with a unit (\"8 mm\", \"0.315 in\") or a gauge (\"AWG 10\", \"AWG 4/0\", \"SWG 14\", \"BWG 18\")";
         let british = [
             (
                 "swg",
@@ -138,7 +143,7 @@ impl Diameter {
                     "diameter",
                     format!("\"{t}\""),
                     format!(
-                        "is not a known {} gauge: {range} are allowed",
+                        "allowed {range} (not a known {} gauge)",
                         name.to_ascii_uppercase()
                     ),
                 )
@@ -148,7 +153,7 @@ impl Diameter {
                 ParamError::new(
                     "diameter",
                     format!("\"{t}\""),
-                    "is not a known wire gauge: AWG 0000 (4/0) to AWG 56 are allowed",
+                    "allowed AWG 0000 (4/0) to AWG 56 (not a known wire gauge)",
                 )
             })?;
             awg_diameter_mm(gauge)

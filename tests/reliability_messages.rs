@@ -54,7 +54,7 @@ fn a_method_given_as_a_list_lists_the_method_names() {
         "  method: [max]",
         &[
             "limits.method",
-            "`[max]`",
+            "`limits.method` = [max]: allowed one of",
             "`upper-bound`",
             "`max`",
             "line 21",
@@ -67,7 +67,7 @@ fn a_hexadecimal_friction_is_shown_as_written_and_explained() {
     says(
         "  friction: 0.05",
         "  friction: 0x10",
-        &["dies.friction", "`0x10`", "hexadecimal", "decimal"],
+        &["`dies.friction` = 0x10: allowed", "hexadecimal", "decimal"],
     );
 }
 
@@ -100,7 +100,11 @@ fn a_whole_number_too_large_for_any_integer_is_named_without_u128() {
 
 #[test]
 fn a_bad_exit_is_named_exit_not_diameter() {
-    says("  - exit: 7.0", "  - exit: -7.0", &["passes[0].exit: -7"]);
+    says(
+        "  - exit: 7.0",
+        "  - exit: -7.0",
+        &["`passes[0].exit` = -7: allowed"],
+    );
     says(
         "  - exit: 7.0",
         "  - exit: \"seven\"",
@@ -138,7 +142,7 @@ fn an_unknown_law_and_a_missing_key_name_the_law_block() {
     says(
         LAW,
         "  flow: {law: vocey}",
-        &["material.flow.law", "`vocey`", "`voce`"],
+        &["`material.flow.law` = vocey: allowed one of", "`voce`"],
     );
     says(
         LAW,
@@ -152,7 +156,7 @@ fn an_empty_value_says_none_is_given() {
     says(
         "  friction: 0.05",
         "  friction:",
-        &["dies.friction", "no value is given"],
+        &["`dies.friction` = nothing: allowed a number"],
     );
 }
 
@@ -256,4 +260,127 @@ fn a_number_key_holding_the_word_sizetext_is_not_taken_for_a_diameter() {
         "{e}"
     );
     assert!(!e.contains("diameter"), "{e}");
+}
+
+/// The one shape of a bad-value message (issue 13): `` `key.path` = value:
+/// allowed ... ``, the path whole (`dies.friction`, never `dies: `friction``)
+/// and "allowed" said once (a bad gauge used to read "is not allowed: is
+/// not a known wire gauge").
+fn reads_key_value_allowed(from: &str, to: &str, start: &str) {
+    let e = message_for(from, to);
+    let said = e.split_once("': ").map_or(e.as_str(), |x| x.1);
+    assert!(
+        said.starts_with(start),
+        "{to}: wanted {start:?}, got {said}"
+    );
+    assert_eq!(e.matches("allowed").count(), 1, "{to}: {e}");
+    assert!(!e.contains("is not allowed"), "{to}: {e}");
+}
+
+#[test]
+fn every_bad_value_reads_key_path_equals_value_allowed() {
+    for (from, to, start) in [
+        // Ranges checked after reading (they used to print `dies: `friction``).
+        (
+            "  friction: 0.05",
+            "  friction: 5",
+            "`dies.friction` = 5: allowed in [0, 0.5]",
+        ),
+        (
+            "  ambient_c: 25",
+            "  ambient_c: 9999",
+            "`limits.ambient_c` = 9999: allowed in [-50, 100]",
+        ),
+        (
+            "  density_kg_m3: 8940",
+            "  density_kg_m3: 5",
+            "`material.density_kg_m3` = 5: allowed in [100, 30000]",
+        ),
+        (
+            "  - exit: 6.15",
+            "  - exit: 6.15\n    semi_angle_deg: 50",
+            "`passes[1].semi_angle_deg` (step 2) = 50: allowed in (0, 45)",
+        ),
+        // Gauges and sizes.
+        (
+            "  - exit: 7.0",
+            "  - exit: \"AWG 99\"",
+            "`passes[0].exit` = \"AWG 99\": allowed AWG 0000 (4/0) to AWG 56",
+        ),
+        (
+            "  - exit: 7.0",
+            "  - exit: \"SWG 51\"",
+            "`passes[0].exit` = \"SWG 51\": allowed SWG 7/0 to SWG 50",
+        ),
+        (
+            "  diameter: 8.0",
+            "  diameter: seven",
+            "`start.diameter` = \"seven\": allowed a number of mm",
+        ),
+        // Types and names.
+        (
+            "  method: upper-bound",
+            "  method: maxx",
+            "`limits.method` = maxx: allowed one of `ideal`",
+        ),
+        (
+            "  friction: 0.05",
+            "  friction: [0.05]",
+            "`dies.friction` = [0.05]: allowed a number",
+        ),
+        // Units in values.
+        (
+            "  ambient_c: 25",
+            "  ambient_c: 77 X",
+            "`limits.ambient_c` = \"77 X\": `X` is not a unit of a temperature; allowed a number of C, or a number and one of C, F, K",
+        ),
+        (
+            "  block_power_kw: 55",
+            "  block_power_kw: 2 kN",
+            "`line.block_power_kw` = \"2 kN\": kN is the unit of a force, where a power is needed; allowed a number of kW",
+        ),
+        (
+            "  finish_speed_m_s: 20",
+            "  finish_speed_m_s: fast",
+            "`line.finish_speed_m_s` = \"fast\": it does not start with a number; allowed a number of m/s, or a number and one of m/s, m/min, ft/min, ft/s",
+        ),
+    ] {
+        reads_key_value_allowed(from, to, start);
+    }
+}
+
+#[test]
+fn a_bad_unit_in_a_machine_file_names_the_key_and_the_units() {
+    let dir = tempfile::tempdir().unwrap();
+    let text = std::fs::read_to_string(root("machines/harrow-lane-dry-7.yaml")).unwrap();
+    let path = dir.path().join("m.yaml");
+    std::fs::write(
+        &path,
+        text.replacen("motor_kw: 22,", "motor_kw: 30 hpp,", 1),
+    )
+    .unwrap();
+    let o = coldpass(&[
+        "check",
+        "schedules-demo/steel-multiblock.yaml",
+        "--machine",
+        path.to_str().unwrap(),
+    ]);
+    assert_eq!(o.status.code(), Some(1));
+    let e = stderr(&o);
+    assert!(
+        e.contains("`blocks[0].motor_kw` = \"30 hpp\": `hpp` is not a unit of a power; allowed a number of kW, or a number and one of kW, W, hp, PS"),
+        "{e}"
+    );
+    std::fs::write(&path, text.replacen("motor_kw: 22,", "motor_kw: -3,", 1)).unwrap();
+    let o = coldpass(&[
+        "check",
+        "schedules-demo/steel-multiblock.yaml",
+        "--machine",
+        path.to_str().unwrap(),
+    ]);
+    let e = stderr(&o);
+    assert!(
+        e.contains("`blocks[0].motor_kw` (block 1) = -3: allowed in (0, 10000]"),
+        "{e}"
+    );
 }

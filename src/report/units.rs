@@ -14,12 +14,12 @@
 
 use clap::ValueEnum;
 
-/// Newtons in a pound-force (exact).
-pub const N_PER_LBF: f64 = 4.448_221_615_260_5;
-/// MPa in a ksi: 1000 lbf on a square inch, `N_PER_LBF / 0.0254^2` Pa times 1000, over 1e6 (exact from the above).
-pub const MPA_PER_KSI: f64 = N_PER_LBF / (0.0254 * 0.0254) / 1.0e3;
-/// Watts in a mechanical horsepower, 550 ft lbf/s (exact from the above).
-pub const W_PER_HP: f64 = 550.0 * 0.3048 * N_PER_LBF;
+/// Newtons in a pound-force, the pound-force per square inch and the
+/// horsepower: the core's factors (`coldpass::size::quantity`, which reads
+/// the same units in files), so a file and its report convert alike.
+pub use coldpass::size::quantity::{N_PER_LBF, W_PER_HP};
+/// MPa in a ksi: 1000 lbf on a square inch (`PA_PER_PSI * 1000 / 1e6`).
+pub const MPA_PER_KSI: f64 = coldpass::size::quantity::PA_PER_PSI * 1.0e-3;
 
 /// Which units a report is shown in.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default, ValueEnum)]

@@ -158,6 +158,9 @@ pub fn explain(err: &serde_yaml::Error, text: &str) -> String {
     let (key, said) = rewrite(&path, &msg, written.as_deref());
     let out = if key.is_empty() {
         format!("{said}{at}")
+    } else if said.starts_with("= ") {
+        // A value and its rule: `` `key.path` = value: allowed ... ``.
+        format!("`{key}` {said}{at}")
     } else {
         format!("{key}: {said}{at}")
     };
@@ -305,13 +308,15 @@ fn rewrite(path: &str, msg: &str, written: Option<&str>) -> (String, String) {
     }
     if msg.contains("untagged enum SizeText") {
         key = diameter_key(&key);
-        let value = written
-            .map(|w| format!("`{}` is not ", strip_key(w)))
-            .unwrap_or_default();
-        return (key, format!("{value}{DIAMETER_FORM} is needed"));
+        let value = written.map_or_else(|| "this".to_string(), strip_key);
+        return (key, format!("= {value}: allowed {DIAMETER_FORM}"));
     }
     if let Some(rest) = msg.strip_prefix("`diameter` = ") {
-        return (diameter_key(&key), rest.to_string());
+        let (value, rule) = rest.split_once(" is not allowed: ").unwrap_or((rest, ""));
+        return (
+            diameter_key(&key),
+            format!("= {value}: {}", crate::schedule::rule_words(rule)),
+        );
     }
     if msg == "repetition limit exceeded" {
         return (
@@ -358,7 +363,7 @@ fn rewrite(path: &str, msg: &str, written: Option<&str>) -> (String, String) {
         }
         return (
             key,
-            format!("{} is not an allowed name; allowed: {list}", cut(name)),
+            format!("= {}: allowed {list}", cut(name.trim_matches('`'))),
         );
     }
     if let Some(rest) = msg
@@ -368,21 +373,18 @@ fn rewrite(path: &str, msg: &str, written: Option<&str>) -> (String, String) {
         let (got, expected) = rest.rsplit_once(", expected ").unwrap_or((rest, ""));
         let allowed = allowed(&key, expected);
         if got.starts_with("unit value") {
-            return (key, format!("no value is given; {allowed} is needed"));
+            return (key, format!("= nothing: allowed {allowed}"));
         }
         // A block list or mapping has its mark at its first item: name its kind.
         let block = (got.starts_with("sequence") || got.starts_with("map"))
             && !written.is_some_and(|w| w.starts_with(['[', '{']));
         let shown = match written {
-            Some(w) if !block => format!("`{}`", cut(&strip_key(w))),
+            Some(w) if !block => cut(&strip_key(w)),
             _ if block => serde_value(got),
-            _ => format!("`{}`", cut(&serde_value(got))),
+            _ => cut(&serde_value(got)),
         };
-        let hint = hint(shown.trim_matches('`'), got, expected);
-        return (
-            key,
-            format!("{shown} is not allowed: {allowed} is needed{hint}"),
-        );
+        let hint = hint(&shown, got, expected);
+        return (key, format!("= {shown}: allowed {allowed}{hint}"));
     }
     if let Some(rest) = msg.strip_prefix("invalid length ") {
         let n = rest.split(',').next().unwrap_or(rest);
