@@ -22,6 +22,7 @@ use crate::commands::options::ReportArgs;
 use crate::commands::EXIT_OK;
 use crate::output;
 use crate::report::fit as report;
+use crate::report::units::Units;
 use crate::report::Format;
 
 /// Largest record file `fit` reads, bytes (about 50 million points): a
@@ -106,6 +107,11 @@ pub struct FitArgs {
     /// Let --emit-law write a law whose fit did not converge.
     #[arg(long)]
     pub allow_unconverged: bool,
+    /// Units of the table and the HTML page: si (MPa, GPa) or us (ksi, Msi;
+    /// a stress parameter such as `k_mpa` also shown in ksi). JSON, YAML, CSV
+    /// and the emitted law stay SI, as their keys say.
+    #[arg(long, value_enum, default_value_t = Units::Si)]
+    pub units: Units,
     #[command(flatten)]
     pub report: ReportArgs,
 }
@@ -821,12 +827,12 @@ pub fn run(args: &FitArgs) -> Result<u8> {
     }
     let set = report::Set::of(&results, args.law)?;
     let body = match args.report.format {
-        Format::Table => report::table_all(&results, &sources, set.as_ref()),
+        Format::Table => report::table_all(&results, &sources, set.as_ref(), args.units),
         Format::Json => report::json_all(&results, &sources, set.as_ref())?,
         Format::Yaml => report::yaml_all(&results, &sources, set.as_ref())?,
         Format::Csv => report::csv_all(&results, &sources)?,
         Format::Html => match (&results[..], &sources[..]) {
-            ([r], [src]) => crate::report::html::fit_page(r, src)?,
+            ([r], [src]) => crate::report::html::fit_page(r, src, args.units)?,
             _ => bail!(
                 "--format html: the report page holds one record, and {} were given; give one file, or use --format table, json, yaml or csv for the set",
                 results.len()

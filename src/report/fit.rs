@@ -10,6 +10,7 @@ use plotters::prelude::*;
 use serde::Serialize;
 
 use super::table::{build, stack, terminal_width, wrap_long_lines};
+use super::units::{Quantity, Units, MPA_PER_KSI};
 
 use coldpass::fit::{self, DataKind, FitLaw, FitReport, LawFit, Scatter, Yielding};
 use coldpass::FlowLaw;
@@ -324,17 +325,17 @@ pub fn csv_all(rs: &[FitReport], srcs: &[Source]) -> Result<String> {
 }
 
 /// The tables of every record, then the set's law and scatter.
-pub fn table_all(rs: &[FitReport], srcs: &[Source], set: Option<&Set>) -> String {
-    wrap_long_lines(&records_and_set(rs, srcs, set), terminal_width())
+pub fn table_all(rs: &[FitReport], srcs: &[Source], set: Option<&Set>, units: Units) -> String {
+    wrap_long_lines(&records_and_set(rs, srcs, set, units), terminal_width())
 }
 
-fn records_and_set(rs: &[FitReport], srcs: &[Source], set: Option<&Set>) -> String {
+fn records_and_set(rs: &[FitReport], srcs: &[Source], set: Option<&Set>, units: Units) -> String {
     if rs.len() == 1 {
-        return table(&rs[0], &srcs[0]);
+        return table(&rs[0], &srcs[0], units);
     }
     let mut out = String::new();
     for (r, s) in rs.iter().zip(srcs) {
-        out.push_str(&table(r, s));
+        out.push_str(&table(r, s, units));
         out.push('\n');
     }
     if let Some(set) = set {
@@ -387,9 +388,64 @@ fn opt(v: Option<f64>, digits: usize) -> String {
     v.map_or_else(|| "-".into(), |x| sig(x, digits))
 }
 
+/// A stress (MPa in the core) in `units`, to `digits` significant figures.
+fn stress(mpa: f64, digits: usize, units: Units) -> String {
+    sig(Quantity::Stress.convert(mpa, units), digits)
+}
+
+fn opt_stress(mpa: Option<f64>, digits: usize, units: Units) -> String {
+    mpa.map_or_else(|| "-".into(), |x| stress(x, digits, units))
+}
+
+/// Young's modulus (MPa in the core) as GPa, or Msi (10^6 psi) in US units.
+fn modulus(mpa: f64, digits: usize, units: Units) -> String {
+    match units {
+        Units::Si => sig(mpa / 1000.0, digits),
+        Units::Us => sig(mpa / MPA_PER_KSI / 1000.0, digits),
+    }
+}
+
+fn modulus_unit(units: Units) -> &'static str {
+    match units {
+        Units::Si => "GPa",
+        Units::Us => "Msi",
+    }
+}
+
+/// A fitted parameter as the table shows it: `name = value ± error` under
+/// its JSON name; in US units a stress parameter (`k_mpa`, ...) also in ksi
+/// (`k_mpa = 318.55 ± 0.76 (46.201 ± 0.11 ksi)`), so the name stays the key's.
+pub fn param_text(
+    name: &str,
+    value: f64,
+    std_error: Option<f64>,
+    pm: &str,
+    units: Units,
+) -> String {
+    let mut out = match std_error {
+        Some(se) => format!("{name} = {}{pm}{}", sig(value, 5), sig(se, 2)),
+        None => format!("{name} = {}", sig(value, 5)),
+    };
+    if units == Units::Us && name.ends_with("_mpa") {
+        let ksi = |x: f64| Quantity::Stress.convert(x, units);
+        let gap = if pm.contains('\n') { "\n  " } else { " " };
+        let _ = match std_error {
+            Some(se) => write!(
+                out,
+                "{gap}({} ± {} ksi)",
+                sig(ksi(value), 5),
+                sig(ksi(se), 2)
+            ),
+            None => write!(out, "{gap}({} ksi)", sig(ksi(value), 5)),
+        };
+    }
+    out
+}
+
 /// The table for people, fitted to the terminal's width: the law table's
 /// headers word by word and its cells wrapped at words, long lines wrapped.
-pub fn table(r: &FitReport, src: &Source) -> String {
+pub fn table(r: &FitReport, src: &Source, units: Units) -> String {
+    let su = Quantity::Stress.label(units);
     let width = terminal_width();
     let mut out = String::new();
     let _ = writeln!(out, "coldpass fit: {}", src.file);
@@ -414,12 +470,13 @@ pub fn table(r: &FitReport, src: &Source) -> String {
         if let Some(m) = &r.modulus {
             let _ = writeln!(
                 out,
-                "  Young's modulus {} ± {} GPa (one line over stress {} to {} MPa, 10-40 % of the yield strength, {} points; ISO 6892-1)",
-                sig(m.modulus_mpa / 1000.0, 4),
-                sig(m.std_error_mpa / 1000.0, 2),
-                sig(m.band_mpa.0, 3),
-                sig(m.band_mpa.1, 3),
-                m.points
+                "  Young's modulus {} ± {} {mu} (one line over stress {} to {} {su}, 10-40 % of the yield strength, {} points; ISO 6892-1)",
+                modulus(m.modulus_mpa, 4, units),
+                modulus(m.std_error_mpa, 2, units),
+                stress(m.band_mpa.0, 3, units),
+                stress(m.band_mpa.1, 3, units),
+                m.points,
+                mu = modulus_unit(units),
             );
         }
         match &r.yielding {
@@ -431,31 +488,31 @@ pub fn table(r: &FitReport, src: &Source) -> String {
             }) => {
                 let _ = writeln!(
                     out,
-                    "  yield drop: upper yield ReH {} MPa | lower yield ReL {} MPa | Lueders strain {} (hardening fitted after the plateau)",
-                    sig(*upper_mpa, 4),
-                    sig(*lower_mpa, 4),
+                    "  yield drop: upper yield ReH {} {su} | lower yield ReL {} {su} | Lueders strain {} (hardening fitted after the plateau)",
+                    stress(*upper_mpa, 4, units),
+                    stress(*lower_mpa, 4, units),
                     sig(*lueders_strain, 3)
                 );
             }
             _ => {
                 let _ = writeln!(
                     out,
-                    "  continuous yielding: 0.2 % proof strength Rp0.2 {} MPa",
-                    opt(r.yield_mpa, 4)
+                    "  continuous yielding: 0.2 % proof strength Rp0.2 {} {su}",
+                    opt_stress(r.yield_mpa, 4, units)
                 );
             }
         }
         let _ = writeln!(
             out,
-            "  tensile strength {} MPa | uniform strain {} (true plastic, at maximum force) | record noise {} MPa",
-            opt(r.uts_mpa, 4),
+            "  tensile strength {} {su} | uniform strain {} (true plastic, at maximum force) | record noise {} {su}",
+            opt_stress(r.uts_mpa, 4, units),
             opt(r.uniform_strain, 3),
-            sig(r.noise_mpa, 2),
+            stress(r.noise_mpa, 2, units),
         );
     }
     let _ = writeln!(out, "  Note: {STD_ERROR_NOTE}.");
     let _ = writeln!(out);
-    let _ = writeln!(out, "{}", law_table(r, &r.fits, r.best, width));
+    let _ = writeln!(out, "{}", law_table(r, &r.fits, r.best, width, units));
     match r.best {
         Some(best) => {
             let _ = writeln!(
@@ -476,8 +533,8 @@ pub fn table(r: &FitReport, src: &Source) -> String {
             .iter()
             .map(|d| {
                 format!(
-                    "{} MPa at strain {}",
-                    sig(d.tensile_strength_mpa, 4),
+                    "{} {su} at strain {}",
+                    stress(d.tensile_strength_mpa, 4, units),
                     sig(d.strain, 3)
                 )
             })
@@ -490,7 +547,7 @@ pub fn table(r: &FitReport, src: &Source) -> String {
         let _ = writeln!(
             out,
             "{}",
-            law_table(r, &r.drawn_fits, r.best_with_drawn, width)
+            law_table(r, &r.drawn_fits, r.best_with_drawn, width, units)
         );
         if let Some(b) = r.best_with_drawn {
             let _ = writeln!(
@@ -511,22 +568,14 @@ pub fn table(r: &FitReport, src: &Source) -> String {
 }
 
 /// The table of fitted laws.
-fn law_table(r: &FitReport, fits: &[LawFit], best: Option<FitLaw>, width: usize) -> String {
-    let reach = r
-        .reach_strain
-        .map_or("stress MPa at reach strain".to_string(), |x| {
-            format!("stress MPa at strain {}", sig(x, 3))
-        });
-    let header = [
-        "law".to_string(),
-        "parameters ± std error".to_string(),
-        "RMS MPa".to_string(),
-        "R^2".to_string(),
-        "AIC".to_string(),
-        "UTS from law MPa".to_string(),
-        reach,
-        "converged".to_string(),
-    ];
+fn law_table(
+    r: &FitReport,
+    fits: &[LawFit],
+    best: Option<FitLaw>,
+    width: usize,
+    units: Units,
+) -> String {
+    let header = law_header(r.reach_strain, units);
     // Headers word by word (the parameters' header stays whole: its column is
     // wide anyway), as the check table does, and the whole fitted to the width.
     let header: Vec<String> = header
@@ -536,19 +585,50 @@ fn law_table(r: &FitReport, fits: &[LawFit], best: Option<FitLaw>, width: usize)
         .collect();
     // One line a parameter when that fits; else its standard error on the
     // line below; else the cells wrapped at words to the width.
-    let natural = |split: bool| build(header.clone(), law_rows(fits, best, split), None, &[1, 7]);
+    let natural = |split: bool| {
+        build(
+            header.clone(),
+            law_rows(fits, best, split, units),
+            None,
+            &[1, 7],
+        )
+    };
     for split in [false, true] {
         let t = natural(split);
         if t.lines().all(|l| l.chars().count() <= width) {
             return t;
         }
     }
-    build(header, law_rows(fits, best, true), Some(width), &[1, 7])
+    build(
+        header,
+        law_rows(fits, best, true, units),
+        Some(width),
+        &[1, 7],
+    )
+}
+
+/// The law table's header, the same words in the table and the page, each
+/// stress header with its unit in `units`.
+pub fn law_header(reach_strain: Option<f64>, units: Units) -> Vec<String> {
+    let su = Quantity::Stress.label(units);
+    let reach = reach_strain.map_or(format!("stress {su} at reach strain"), |x| {
+        format!("stress {su} at strain {}", sig(x, 3))
+    });
+    vec![
+        "law".to_string(),
+        "parameters ± std error".to_string(),
+        format!("RMS {su}"),
+        "R^2".to_string(),
+        "AIC".to_string(),
+        format!("UTS from law {su}"),
+        reach,
+        "converged".to_string(),
+    ]
 }
 
 /// The rows of the law table; `split` puts each standard error on the line
 /// below its parameter.
-fn law_rows(fits: &[LawFit], best: Option<FitLaw>, split: bool) -> Vec<Vec<String>> {
+fn law_rows(fits: &[LawFit], best: Option<FitLaw>, split: bool, units: Units) -> Vec<Vec<String>> {
     let pm = if split { "\n  ± " } else { " ± " };
     let mut rows = Vec::new();
     for f in fits {
@@ -562,10 +642,7 @@ fn law_rows(fits: &[LawFit], best: Option<FitLaw>, split: bool) -> Vec<Vec<Strin
         let params = f
             .params
             .iter()
-            .map(|p| match p.std_error {
-                Some(se) => format!("{} = {}{pm}{}", p.name, sig(p.value, 5), sig(se, 2)),
-                None => format!("{} = {}", p.name, sig(p.value, 5)),
-            })
+            .map(|p| param_text(p.name, p.value, p.std_error, pm, units))
             .collect::<Vec<_>>()
             .join("\n");
         let conv = match (f.converged, f.iterations) {
@@ -576,11 +653,11 @@ fn law_rows(fits: &[LawFit], best: Option<FitLaw>, split: bool) -> Vec<Vec<Strin
         rows.push(vec![
             name,
             params,
-            sig(f.rms_mpa, 3),
+            stress(f.rms_mpa, 3, units),
             fixed(f.r2, 5),
             fixed(f.aic, 1),
-            opt(f.uts_mpa, 4),
-            opt(f.stress_at_reach_mpa, 4),
+            opt_stress(f.uts_mpa, 4, units),
+            opt_stress(f.stress_at_reach_mpa, 4, units),
             conv,
         ]);
     }

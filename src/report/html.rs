@@ -448,7 +448,7 @@ pub fn schedule_sections(rep: &ScheduleReport, file: &ScheduleFile, units: Units
             methods,
         ]
         .into_iter()
-        .chain(super::machine::html_tables(rep))
+        .chain(super::machine::html_tables(rep, units))
         .collect(),
         charts: vec![Chart {
             caption: "Draw ratio per pass against the warn and max lines; flow stress against the total strain drawn, with each pass and anneal marked.".to_string(),
@@ -533,20 +533,18 @@ pub fn design_page(d: &Design, units: Units) -> Result<String> {
     Ok(render(&page))
 }
 
-/// `v` to `digits` significant digits, in plain decimals.
-fn sig(v: f64, digits: usize) -> String {
-    if !v.is_finite() || v == 0.0 {
-        return format!("{v}");
-    }
-    let mag = v.abs().log10().floor() as i32;
-    let decimals = (digits as i32 - 1 - mag).max(0) as usize;
-    format!("{v:.decimals$}")
-}
-
 /// The page of a hardening-law fit: the record, the fits ranked, the chart,
 /// warnings and the caution.
-pub fn fit_page(r: &FitReport, src: &super::fit::Source) -> Result<String> {
+pub fn fit_page(r: &FitReport, src: &super::fit::Source, units: Units) -> Result<String> {
     let opt = |v: Option<f64>, d: usize| super::fixed(v.filter(|x| x.is_finite()), d);
+    let su = Quantity::Stress.label(units);
+    let stress = |v: Option<f64>, d: usize| {
+        super::fixed(
+            v.filter(|x| x.is_finite())
+                .map(|x| Quantity::Stress.convert(x, units)),
+            Quantity::Stress.decimals(d, units),
+        )
+    };
     let facts = vec![
         ("Record".to_string(), src.file.clone()),
         ("Columns".to_string(), src.columns.clone()),
@@ -558,13 +556,24 @@ pub fn fit_page(r: &FitReport, src: &super::fit::Source) -> Result<String> {
     let summary = vec![
         (
             "Young's modulus".to_string(),
-            format!("{} GPa", opt(r.youngs_modulus_gpa, 1)),
+            match units {
+                // 1 Msi = 1000 ksi.
+                Units::Us => format!(
+                    "{} Msi",
+                    opt(
+                        r.youngs_modulus_gpa
+                            .map(|g| g * 1000.0 / super::units::MPA_PER_KSI / 1000.0),
+                        2
+                    )
+                ),
+                Units::Si => format!("{} GPa", opt(r.youngs_modulus_gpa, 1)),
+            },
         ),
         (
             "0.2 % offset yield".to_string(),
-            format!("{} MPa", opt(r.yield_mpa, 0)),
+            format!("{} {su}", stress(r.yield_mpa, 0)),
         ),
-        ("UTS".to_string(), format!("{} MPa", opt(r.uts_mpa, 0))),
+        ("UTS".to_string(), format!("{} {su}", stress(r.uts_mpa, 0))),
         ("uniform strain".to_string(), opt(r.uniform_strain, 3)),
         (
             "best law by AIC".to_string(),
@@ -583,17 +592,14 @@ pub fn fit_page(r: &FitReport, src: &super::fit::Source) -> Result<String> {
                 ),
                 f.params
                     .iter()
-                    .map(|p| match p.std_error {
-                        Some(se) => format!("{} = {} ± {}", p.name, sig(p.value, 5), sig(se, 2)),
-                        None => format!("{} = {}", p.name, sig(p.value, 5)),
-                    })
+                    .map(|p| super::fit::param_text(p.name, p.value, p.std_error, " ± ", units))
                     .collect::<Vec<_>>()
                     .join("; "),
-                opt(Some(f.rms_mpa), 2),
+                stress(Some(f.rms_mpa), 2),
                 opt(Some(f.r2), 5),
                 opt(Some(f.aic), 1),
-                opt(f.uts_mpa, 0),
-                opt(f.stress_at_reach_mpa, 0),
+                stress(f.uts_mpa, 0),
+                stress(f.stress_at_reach_mpa, 0),
                 if f.converged { "yes" } else { "NO" }.to_string(),
             ],
             status: if f.converged {
@@ -611,18 +617,7 @@ pub fn fit_page(r: &FitReport, src: &super::fit::Source) -> Result<String> {
         summary,
         tables: vec![Table {
             heading: "Fits".to_string(),
-            header: [
-                "law",
-                "parameters ± std error",
-                "RMS MPa",
-                "R^2",
-                "AIC",
-                "UTS from law MPa",
-                "stress MPa at reach strain",
-                "converged",
-            ]
-            .map(String::from)
-            .to_vec(),
+            header: super::fit::law_header(r.reach_strain, units),
             rows,
             page_break_before: false,
         }],

@@ -2,20 +2,23 @@
 //! from the pass tables: the wire temperature die to die (with its
 //! no-cooling upper bound and the drawn wire's tensile strength), the
 //! per-block table on a machine and its summary (attainable speed, binding
-//! block and limit, tonnes per shift). Names match the JSON keys.
+//! block and limit, tonnes per shift). Names match the JSON keys; the table
+//! and the page show each figure in the `--units` system with its unit in
+//! the header, the CSV keeps the SI units its keys name.
 
 use coldpass::evaluation::{ScheduleReport, StepKind, StepReport};
-use coldpass::machine::MachineRun;
+use coldpass::machine::{BlockReport, MachineRun};
 use tabled::builder::Builder;
 use tabled::settings::object::Columns;
 use tabled::settings::peaker::PriorityMax;
 use tabled::settings::{Alignment, Style, Width};
 
+use super::units::{Quantity, Units};
 use super::{fixed, html};
 
 /// A table fitted to `width`, each header word on its own line so that a
 /// column is as wide as its figures.
-fn build(header: &[&str], rows: Vec<Vec<String>>, width: usize) -> String {
+fn build(header: &[String], rows: Vec<Vec<String>>, width: usize) -> String {
     let mut b = Builder::default();
     b.push_record(
         header
@@ -36,92 +39,165 @@ fn build(header: &[&str], rows: Vec<Vec<String>>, width: usize) -> String {
     t.to_string()
 }
 
-fn pct(x: f64) -> String {
-    format!("{:.1}", 100.0 * x)
+/// One figure of the temperature or block table: header words, what it
+/// measures (the unit follows `--units`), its SI decimals and how to read it.
+struct Figure<T> {
+    words: &'static str,
+    quantity: Quantity,
+    digits: usize,
+    read: fn(&T) -> Option<f64>,
 }
 
-const TEMPERATURE_HEADER: [&str; 6] = [
-    "step",
-    "wire temperature in C",
-    "wire temperature out C",
-    "no cooling C",
-    "entry yield MPa",
-    "tensile strength MPa",
+impl<T> Figure<T> {
+    fn header(&self, units: Units) -> String {
+        match self.quantity.label(units) {
+            "" => self.words.to_string(),
+            unit => format!("{} {unit}", self.words),
+        }
+    }
+
+    fn cell(&self, x: &T, units: Units) -> String {
+        fixed(
+            (self.read)(x).map(|v| self.quantity.convert(v, units)),
+            self.quantity.decimals(self.digits, units),
+        )
+    }
+}
+
+const fn figure<T>(
+    words: &'static str,
+    quantity: Quantity,
+    digits: usize,
+    read: fn(&T) -> Option<f64>,
+) -> Figure<T> {
+    Figure {
+        words,
+        quantity,
+        digits,
+        read,
+    }
+}
+
+/// The temperature table after `step`: the same names as the JSON keys
+/// `wire_temperature_entry_c`, `wire_temperature_c`,
+/// `wire_temperature_no_cooling_c`, `entry_yield_mpa`, `tensile_strength_mpa`.
+const TEMPERATURES: [Figure<StepReport>; 5] = [
+    figure("wire temperature in", Quantity::Temperature, 0, |r| {
+        r.wire_temperature_entry_c
+    }),
+    figure("wire temperature out", Quantity::Temperature, 0, |r| {
+        r.wire_temperature_c
+    }),
+    figure("no cooling", Quantity::Temperature, 0, |r| {
+        r.wire_temperature_no_cooling_c
+    }),
+    figure("entry yield", Quantity::Stress, 0, |r| r.entry_yield_mpa),
+    figure("tensile strength", Quantity::Stress, 0, |r| {
+        r.tensile_strength_mpa
+    }),
 ];
 
-const BLOCK_HEADER: [&str; 10] = [
-    "block",
-    "step",
-    "capstan rpm",
-    "surface speed m/s",
-    "slip %",
-    "net pull kN",
-    "net power kW",
-    "load %",
-    "wire temperature in C",
-    "wire temperature out C",
+/// The block table after `block` and `step` (JSON `machine.blocks[]`).
+const BLOCKS: [Figure<BlockReport>; 8] = [
+    figure("capstan rpm", Quantity::Plain, 0, |b| Some(b.capstan_rpm)),
+    figure("surface speed", Quantity::Speed, 2, |b| {
+        Some(b.surface_speed_m_s)
+    }),
+    figure("slip", Quantity::Percent, 1, |b| Some(b.slip)),
+    figure("net pull", Quantity::Force, 2, |b| Some(b.net_pull_kn)),
+    figure("net power", Quantity::Power, 1, |b| Some(b.net_power_kw)),
+    figure("load", Quantity::Percent, 1, |b| Some(b.motor_load)),
+    figure("wire temperature in", Quantity::Temperature, 0, |b| {
+        Some(b.wire_temperature_in_c)
+    }),
+    figure("wire temperature out", Quantity::Temperature, 0, |b| {
+        Some(b.wire_temperature_out_c)
+    }),
 ];
 
-fn temperature_rows(rep: &ScheduleReport) -> Vec<Vec<String>> {
+fn temperature_header(units: Units) -> Vec<String> {
+    std::iter::once("step".to_string())
+        .chain(TEMPERATURES.iter().map(|f| f.header(units)))
+        .collect()
+}
+
+fn block_header(units: Units) -> Vec<String> {
+    ["block".to_string(), "step".to_string()]
+        .into_iter()
+        .chain(BLOCKS.iter().map(|f| f.header(units)))
+        .collect()
+}
+
+fn temperature_rows(rep: &ScheduleReport, units: Units) -> Vec<Vec<String>> {
     rep.passes
         .iter()
         .filter(|r| r.kind == StepKind::Draw)
         .map(|r| {
-            vec![
-                r.step.to_string(),
-                fixed(r.wire_temperature_entry_c, 0),
-                fixed(r.wire_temperature_c, 0),
-                fixed(r.wire_temperature_no_cooling_c, 0),
-                fixed(r.entry_yield_mpa, 0),
-                fixed(r.tensile_strength_mpa, 0),
-            ]
+            std::iter::once(r.step.to_string())
+                .chain(TEMPERATURES.iter().map(|f| f.cell(r, units)))
+                .collect()
         })
         .collect()
 }
 
-fn block_rows(m: &MachineRun) -> Vec<Vec<String>> {
+fn block_rows(m: &MachineRun, units: Units) -> Vec<Vec<String>> {
     m.blocks
         .iter()
         .map(|b| {
-            vec![
-                b.block.to_string(),
-                b.step.to_string(),
-                format!("{:.0}", b.capstan_rpm),
-                format!("{:.2}", b.surface_speed_m_s),
-                pct(b.slip),
-                format!("{:.2}", b.net_pull_kn),
-                format!("{:.1}", b.net_power_kw),
-                pct(b.motor_load),
-                format!("{:.0}", b.wire_temperature_in_c),
-                format!("{:.0}", b.wire_temperature_out_c),
-            ]
+            [b.block.to_string(), b.step.to_string()]
+                .into_iter()
+                .chain(BLOCKS.iter().map(|f| f.cell(b, units)))
+                .collect()
         })
         .collect()
 }
 
-fn machine_heading(m: &MachineRun) -> String {
+/// A speed with its unit: `8.00 m/s`, or `1575 ft/min` in US units.
+fn speed(v: f64, units: Units) -> String {
     format!(
-        "Machine: {}; {}, {} blocks; figures at {:.2} m/s finish speed",
-        if m.name.is_empty() { "-" } else { &m.name },
-        m.kind.name(),
-        m.blocks_available,
-        m.running_speed_m_s
+        "{} {}",
+        fixed(
+            Some(Quantity::Speed.convert(v, units)),
+            Quantity::Speed.decimals(2, units)
+        ),
+        Quantity::Speed.label(units)
     )
 }
 
-fn machine_summary(rep: &ScheduleReport, m: &MachineRun) -> Vec<[String; 2]> {
+fn machine_heading(m: &MachineRun, units: Units) -> String {
+    format!(
+        "Machine: {}; {}, {} blocks; figures at {} finish speed",
+        if m.name.is_empty() { "-" } else { &m.name },
+        m.kind.name(),
+        m.blocks_available,
+        speed(m.running_speed_m_s, units)
+    )
+}
+
+fn machine_summary(rep: &ScheduleReport, m: &MachineRun, units: Units) -> Vec<[String; 2]> {
     let s = &rep.summary;
-    vec![
-        [
-            "attainable speed".to_string(),
-            match s.attainable_speed_m_s {
-                Some(v) => format!("{v:.2} m/s ({:.0} m/min)", v * 60.0),
-                None => format!(
-                    "- (too hot at any speed; motors and capstans alone: {:.2} m/s)",
-                    m.mechanical_speed_m_s
-                ),
-            },
+    let attainable = match (s.attainable_speed_m_s, units) {
+        (Some(v), Units::Si) => format!("{v:.2} m/s ({:.0} m/min)", v * 60.0),
+        (Some(v), Units::Us) => format!("{} ({v:.2} m/s)", speed(v, units)),
+        (None, _) => format!(
+            "- (too hot at any speed; motors and capstans alone: {})",
+            speed(m.mechanical_speed_m_s, units)
+        ),
+    };
+    // Short tons of 2000 lb, the pound 0.453 592 37 kg (exact; NIST SP 811 B.9).
+    let per_shift = match (s.attainable_t_per_shift, units) {
+        (Some(t), Units::Us) => [
+            "short tons per shift at it".to_string(),
+            format!(
+                "{:.1} ({t:.1} t)",
+                t * 1000.0 / coldpass::size::quantity::KG_PER_POUND / 2000.0
+            ),
         ],
+        (t, _) => ["tonnes per shift at it".to_string(), fixed(t, 1)],
+    };
+    let load = Quantity::Power;
+    vec![
+        ["attainable speed".to_string(), attainable],
         [
             "binding block and limit".to_string(),
             match (s.binding_block, s.binding_limit) {
@@ -129,32 +205,41 @@ fn machine_summary(rep: &ScheduleReport, m: &MachineRun) -> Vec<[String; 2]> {
                 _ => "-".into(),
             },
         ],
-        [
-            "tonnes per shift at it".to_string(),
-            fixed(s.attainable_t_per_shift, 1),
-        ],
+        per_shift,
         [
             "total motor load".to_string(),
-            format!("{:.1} kW", m.total_motor_load_kw),
+            format!(
+                "{} {}",
+                fixed(
+                    Some(load.convert(m.total_motor_load_kw, units)),
+                    load.decimals(1, units)
+                ),
+                load.label(units)
+            ),
         ],
     ]
 }
 
 /// The temperature and strength table of every draw, then the machine's
-/// block table and summary when the schedule runs on one, fitted to `width`.
-pub fn table(rep: &ScheduleReport, width: usize) -> String {
+/// block table and summary when the schedule runs on one, fitted to `width`,
+/// every figure in `units` with its unit in the header.
+pub fn table(rep: &ScheduleReport, width: usize, units: Units) -> String {
     let mut out = String::from("Wire temperature and strength\n");
-    out.push_str(&build(&TEMPERATURE_HEADER, temperature_rows(rep), width));
+    out.push_str(&build(
+        &temperature_header(units),
+        temperature_rows(rep, units),
+        width,
+    ));
     out.push_str("\n\n");
     let Some(m) = &rep.machine else {
         return out;
     };
-    out.push_str(&machine_heading(m));
+    out.push_str(&machine_heading(m, units));
     out.push('\n');
-    out.push_str(&build(&BLOCK_HEADER, block_rows(m), width));
+    out.push_str(&build(&block_header(units), block_rows(m, units), width));
     out.push_str("\n\n");
     let mut b = Builder::default();
-    for r in machine_summary(rep, m) {
+    for r in machine_summary(rep, m, units) {
         b.push_record(r);
     }
     let mut t = b.build();
@@ -165,11 +250,11 @@ pub fn table(rep: &ScheduleReport, width: usize) -> String {
     out
 }
 
-/// The machine's tables for the printable page (none without a machine).
-pub fn html_tables(rep: &ScheduleReport) -> Vec<html::Table> {
-    let table = |heading: String, header: &[&str], rows: Vec<Vec<String>>| html::Table {
+/// The machine's tables for the printable page (none without a machine), in `units`.
+pub fn html_tables(rep: &ScheduleReport, units: Units) -> Vec<html::Table> {
+    let table = |heading: String, header: Vec<String>, rows: Vec<Vec<String>>| html::Table {
         heading,
-        header: header.iter().map(|h| h.to_string()).collect(),
+        header,
         rows: rows
             .into_iter()
             .map(|cells| html::Row {
@@ -183,11 +268,15 @@ pub fn html_tables(rep: &ScheduleReport) -> Vec<html::Table> {
     // print on two sheets, and the block table carries the temperatures.
     let mut out = Vec::new();
     if let Some(m) = &rep.machine {
-        out.push(table(machine_heading(m), &BLOCK_HEADER, block_rows(m)));
+        out.push(table(
+            machine_heading(m, units),
+            block_header(units),
+            block_rows(m, units),
+        ));
         out.push(table(
             "Machine summary".into(),
-            &["figure", "value"],
-            machine_summary(rep, m)
+            vec!["figure".into(), "value".into()],
+            machine_summary(rep, m, units)
                 .into_iter()
                 .map(|r| r.to_vec())
                 .collect(),

@@ -411,7 +411,7 @@ pub fn schedule(rep: &ScheduleReport, opts: &TableOptions) -> Result<String, Str
         }
     }
 
-    out.push_str(&super::machine::table(rep, opts.width));
+    out.push_str(&super::machine::table(rep, opts.width, opts.units));
     let mut b = Builder::default();
     for (k, v) in summary_rows(rep, opts.units) {
         b.push_record([k, v]);
