@@ -79,3 +79,103 @@ fn a_design_file_is_designed_then_compared() {
     let designed = json(&["design", d, "--format", "json"]);
     assert_eq!(cmp["summary"]["second"], designed["schedule"]["summary"]);
 }
+
+const A: &str = "schedules-demo/copper-building-wire.yaml";
+const B: &str = "schedules-demo/copper-rod-breakdown-over.yaml";
+
+fn csv_rows(args: &[&str]) -> Vec<Vec<String>> {
+    let out = coldpass(args);
+    assert!(out.status.success(), "{}", stderr(&out));
+    let mut r = csv::ReaderBuilder::new()
+        .has_headers(false)
+        .from_reader(&out.stdout[..]);
+    r.records()
+        .map(|rec| rec.unwrap().iter().map(str::to_string).collect())
+        .collect()
+}
+
+/// `v` to six significant digits, as check's CSV writes figures (written
+/// here from the definition: round the mantissa, read it back).
+fn six(v: f64) -> f64 {
+    format!("{v:.5e}").parse().unwrap()
+}
+
+#[test]
+fn the_csv_has_the_json_names_and_figures_row_by_row() {
+    let cmp = json(&["compare", A, B, "--format", "json"]);
+    let rows = csv_rows(&["compare", A, B, "--format", "csv"]);
+    let header = &rows[0];
+    assert_eq!(header[0], "step");
+    assert_eq!(header.last().unwrap(), "caution");
+    let passes = cmp["passes"].as_array().unwrap();
+    assert_eq!(rows.len() - 1, passes.len());
+    for (row, p) in rows[1..].iter().zip(passes) {
+        for (name, cell) in header.iter().zip(row) {
+            let value = match name.split_once('.') {
+                Some((side, key)) => &p[side][key],
+                None if name == "step" => &p["step"],
+                None => {
+                    assert!(cell.starts_with("Planning estimates only"), "{cell}");
+                    continue;
+                }
+            };
+            match value {
+                serde_json::Value::Number(n) => {
+                    let got: f64 = cell.parse().unwrap();
+                    assert_eq!(got, six(n.as_f64().unwrap()), "{name}: {cell}");
+                }
+                serde_json::Value::Array(flags) => {
+                    let names: Vec<&str> = flags.iter().map(|f| f.as_str().unwrap()).collect();
+                    assert_eq!(cell, &names.join(";"), "{name}");
+                }
+                serde_json::Value::Bool(b) => assert_eq!(cell, &b.to_string(), "{name}"),
+                serde_json::Value::Null => assert_eq!(cell, "", "{name}"),
+                other => panic!("{name}: {other}"),
+            }
+        }
+    }
+}
+
+#[test]
+fn the_summary_csv_has_one_row_per_file_with_checks_summary_columns() {
+    let rows = csv_rows(&["compare", A, B, "--format", "csv", "--summary"]);
+    let check_a = csv_rows(&["check", A, "--format", "csv", "--summary"]);
+    assert_eq!(rows.len(), 3);
+    assert_eq!(rows[0][..2], ["side", "file"]);
+    assert_eq!(rows[0][2..], check_a[0][..], "the same columns as check's");
+    assert_eq!(rows[1][..2], ["first", A]);
+    assert_eq!(rows[1][2..], check_a[1][..], "the same figures as check's");
+    assert_eq!(rows[2][0], "second");
+}
+
+#[test]
+fn the_page_holds_every_step_marks_flagged_rows_in_words_and_names_both_files() {
+    let out = coldpass(&["compare", A, B, "--format", "html"]);
+    assert!(out.status.success(), "{}", stderr(&out));
+    let page = stdout(&out);
+    assert!(page.starts_with("<!DOCTYPE html>"), "{}", &page[..100]);
+    // The pass table's headers: check's words and units, then A or B.
+    for h in [
+        "exit mm A",
+        "exit mm B",
+        "draw ratio B - A",
+        "power kW A",
+        "flags A / B",
+    ] {
+        assert!(page.contains(&format!("<th>{h}</th>")), "{h}");
+    }
+    // One row per step of the longer schedule (13), plus the summary rows.
+    let steps = (1..=13)
+        .filter(|i| page.contains(&format!("><td class=\"n\">{i}</td>")))
+        .count();
+    assert_eq!(steps, 13);
+    // B's step 4 is over its draw limit: the row says so in words.
+    assert!(page.contains("OVER"), "an over row is marked in words");
+    assert!(page.contains(A) && page.contains(B));
+    assert!(page.contains("Caution:"));
+    // US units reach the page's headers too.
+    let us = stdout(&coldpass(&[
+        "compare", A, B, "--format", "html", "--units", "us",
+    ]));
+    assert!(us.contains("<th>exit in A</th>") && us.contains("<th>power hp B</th>"));
+}

@@ -5,9 +5,13 @@
 //!
 //! JSON and YAML: `{first, second, passes: [{step, first: {...}, second:
 //! {...}, difference: {...}}], summary: {first, second}, caution}` with the
-//! check JSON's keys.
+//! check JSON's keys. CSV: one row per step under the same names joined by
+//! a dot (`first.draw_ratio`, `difference.power_kw`), or with `--summary`
+//! one row per file of check's summary columns. HTML: the page with the
+//! pass table (each row marked by the worse of its two steps, in words and
+//! colour) and the two summaries side by side.
 
-use anyhow::{anyhow, Result};
+use anyhow::Result;
 use coldpass::evaluation::{ScheduleReport, StepReport, Summary};
 use serde::Serialize;
 use tabled::builder::Builder;
@@ -17,7 +21,7 @@ use tabled::settings::{Alignment, Span, Style, Width};
 
 use super::columns::{self, Column};
 use super::units::Units;
-use super::{Format, Look};
+use super::{html, Format, Look};
 
 /// The columns compared per pass, by JSON key.
 const COMPARED: [&str; 5] = [
@@ -247,10 +251,194 @@ pub fn render(
             s.into_bytes()
         }
         Format::Yaml => serde_yaml::to_string(&whole())?.into_bytes(),
-        Format::Csv | Format::Html => {
-            return Err(anyhow!(
-                "compare writes table, json or yaml; for CSV or a page, check each file with --format csv or html"
-            ))
-        }
+        Format::Csv if look.csv_summary => csv_summary(a, b, names)?,
+        Format::Csv => csv(a, b)?,
+        Format::Html => page(a, b, names, look.table.units).into_bytes(),
     })
+}
+
+/// The per-step CSV columns, the JSON's names joined by a dot.
+const CSV_HEADER: [&str; 19] = [
+    "step",
+    "first.exit_diameter_mm",
+    "first.area_reduction",
+    "first.draw_ratio",
+    "first.power_kw",
+    "first.wire_temperature_c",
+    "first.flags",
+    "second.exit_diameter_mm",
+    "second.area_reduction",
+    "second.draw_ratio",
+    "second.power_kw",
+    "second.wire_temperature_c",
+    "second.flags",
+    "difference.area_reduction",
+    "difference.draw_ratio",
+    "difference.power_kw",
+    "difference.wire_temperature_c",
+    "difference.flags_differ",
+    "caution",
+];
+
+fn side_cells(s: Option<&Side>) -> Vec<String> {
+    use super::csv::num;
+    match s {
+        Some(s) => vec![
+            num(s.exit_diameter_mm),
+            num(s.area_reduction),
+            num(s.draw_ratio),
+            num(s.power_kw),
+            num(s.wire_temperature_c),
+            s.flags.join(";"),
+        ],
+        None => vec![String::new(); 6],
+    }
+}
+
+/// One row per step (steps past the shorter schedule have its side empty),
+/// figures rounded as check's CSV rounds them, the caution in every row.
+fn csv(a: &ScheduleReport, b: &ScheduleReport) -> Result<Vec<u8>> {
+    use super::csv::num;
+    let mut w = ::csv::Writer::from_writer(Vec::new());
+    w.write_record(CSV_HEADER)?;
+    for p in pairs(a, b) {
+        let d = &p.difference;
+        let mut row = vec![p.step.to_string()];
+        row.extend(side_cells(p.first.as_ref()));
+        row.extend(side_cells(p.second.as_ref()));
+        row.extend([
+            num(d.area_reduction),
+            num(d.draw_ratio),
+            num(d.power_kw),
+            num(d.wire_temperature_c),
+            d.flags_differ.to_string(),
+            a.caution.clone(),
+        ]);
+        w.write_record(row)?;
+    }
+    Ok(w.into_inner()?)
+}
+
+/// `--summary`: one row per file (`first`, `second`) of check's summary CSV
+/// columns, after the side and the file's name.
+fn csv_summary(a: &ScheduleReport, b: &ScheduleReport, names: &[String; 2]) -> Result<Vec<u8>> {
+    let mut w = ::csv::Writer::from_writer(Vec::new());
+    w.write_record(
+        ["side", "file"]
+            .into_iter()
+            .chain(super::csv::SUMMARY_HEADER),
+    )?;
+    for (side, name, rep) in [("first", &names[0], a), ("second", &names[1], b)] {
+        let mut row = vec![side.to_string(), name.clone()];
+        row.extend(super::csv::summary_record(rep)?);
+        w.write_record(row)?;
+    }
+    Ok(w.into_inner()?)
+}
+
+/// The worse standing of two steps.
+fn worse(x: Option<&StepReport>, y: Option<&StepReport>) -> html::Status {
+    use html::Status;
+    let rank = |s: Status| match s {
+        Status::Over => 3,
+        Status::Warn => 2,
+        Status::Ok => 1,
+        Status::None => 0,
+    };
+    [x, y]
+        .into_iter()
+        .flatten()
+        .map(html::step_status)
+        .max_by_key(|s| rank(*s))
+        .unwrap_or(Status::None)
+}
+
+/// The comparison page: both files named, the pass table (the table's
+/// columns, each quantity's header with its unit and `A` or `B`), the two
+/// summaries side by side, the caution.
+fn page(a: &ScheduleReport, b: &ScheduleReport, names: &[String; 2], units: Units) -> String {
+    let cols = columns::fixed_set(&COMPARED);
+    let mut header = vec!["step".to_string()];
+    for c in &cols {
+        let h = c.header(units);
+        header.push(format!("{h} A"));
+        header.push(format!("{h} B"));
+        if c.key == "draw_ratio" {
+            header.push(format!("{h} B - A"));
+        }
+    }
+    header.push("flags A / B".into());
+    let rows = (0..a.passes.len().max(b.passes.len()))
+        .map(|i| {
+            let (x, y) = (a.passes.get(i), b.passes.get(i));
+            let mut cells = vec![(i + 1).to_string()];
+            for c in &cols {
+                cells.push(x.map(|r| c.cell(r, units)).unwrap_or_default());
+                cells.push(y.map(|r| c.cell(r, units)).unwrap_or_default());
+                if c.key == "draw_ratio" {
+                    let v = |r: Option<&StepReport>| r.and_then(|r| r.draw_ratio);
+                    cells.push(signed(diff(v(x), v(y)), c, units));
+                }
+            }
+            let tagged = |tag: &str, r: Option<&StepReport>| {
+                r.map(|r| {
+                    r.flags
+                        .iter()
+                        .map(|f| format!("{tag} {}", f.name()))
+                        .collect::<Vec<_>>()
+                })
+                .unwrap_or_default()
+            };
+            let mut flags = tagged("A", x);
+            flags.extend(tagged("B", y));
+            cells.push(flags.join(", "));
+            html::Row {
+                cells,
+                status: worse(x, y),
+            }
+        })
+        .collect();
+    let summary_rows = super::table::summary_rows(a, units)
+        .into_iter()
+        .zip(super::table::summary_rows(b, units))
+        .map(|((k, va), (_, vb))| html::Row {
+            cells: vec![k, va, vb],
+            status: html::Status::None,
+        })
+        .collect();
+    let titled = |name: &str, rep: &ScheduleReport| {
+        if rep.title.is_empty() {
+            name.to_string()
+        } else {
+            format!("{name} ({})", rep.title)
+        }
+    };
+    let p = html::Page {
+        title: format!("{} against {}", names[0], names[1]),
+        kind: "Schedule comparison".into(),
+        facts: vec![
+            ("A".into(), titled(&names[0], a)),
+            ("B".into(), titled(&names[1], b)),
+        ],
+        verdict: None,
+        summary: Vec::new(),
+        tables: vec![
+            html::Table {
+                heading: "Passes (change = B - A)".into(),
+                header,
+                rows,
+                page_break_before: false,
+            },
+            html::Table {
+                heading: "Summary".into(),
+                header: vec![String::new(), "A".into(), "B".into()],
+                rows: summary_rows,
+                page_break_before: false,
+            },
+        ],
+        charts: Vec::new(),
+        notes: Vec::new(),
+        caution: a.caution.clone(),
+    };
+    html::render(&p)
 }

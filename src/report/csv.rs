@@ -64,36 +64,38 @@ pub fn sig(v: f64) -> String {
     rounded.to_string()
 }
 
-fn num(x: Option<f64>) -> String {
+/// A figure rounded by [`sig`], empty when there is none.
+pub fn num(x: Option<f64>) -> String {
     x.map(sig).unwrap_or_default()
 }
 
-/// The summary as one CSV row of the JSON `summary` keys, with the method,
+/// The summary CSV's columns: the JSON `summary` keys, then the method,
 /// title and caution.
-pub fn summary(rep: &ScheduleReport) -> Result<Vec<u8>> {
+pub const SUMMARY_HEADER: [&str; 18] = [
+    "start_diameter_mm",
+    "finish_diameter_mm",
+    "total_area_reduction",
+    "total_strain",
+    "final_strain",
+    "draw_passes",
+    "anneals",
+    "worst_draw_ratio",
+    "worst_step",
+    "final_flow_stress_mpa",
+    "throughput_kg_h",
+    "throughput_t_per_shift",
+    "coil_time_min",
+    "total_power_kw",
+    "verdict",
+    "method",
+    "title",
+    "caution",
+];
+
+/// One report's row under [`SUMMARY_HEADER`].
+pub fn summary_record(rep: &ScheduleReport) -> Result<Vec<String>> {
     let s = &rep.summary;
-    let mut w = csv::Writer::from_writer(Vec::new());
-    w.write_record([
-        "start_diameter_mm",
-        "finish_diameter_mm",
-        "total_area_reduction",
-        "total_strain",
-        "final_strain",
-        "draw_passes",
-        "anneals",
-        "worst_draw_ratio",
-        "worst_step",
-        "final_flow_stress_mpa",
-        "throughput_kg_h",
-        "throughput_t_per_shift",
-        "coil_time_min",
-        "total_power_kw",
-        "verdict",
-        "method",
-        "title",
-        "caution",
-    ])?;
-    w.write_record([
+    Ok(vec![
         num(Some(s.start_diameter_mm)),
         num(Some(s.finish_diameter_mm)),
         num(Some(s.total_area_reduction)),
@@ -115,7 +117,15 @@ pub fn summary(rep: &ScheduleReport) -> Result<Vec<u8>> {
         rep.method.name().into(),
         rep.title.clone(),
         rep.caution.clone(),
-    ])?;
+    ])
+}
+
+/// The summary as one CSV row of the JSON `summary` keys, with the method,
+/// title and caution.
+pub fn summary(rep: &ScheduleReport) -> Result<Vec<u8>> {
+    let mut w = csv::Writer::from_writer(Vec::new());
+    w.write_record(SUMMARY_HEADER)?;
+    w.write_record(summary_record(rep)?)?;
     Ok(w.into_inner()?)
 }
 
