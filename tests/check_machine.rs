@@ -338,7 +338,7 @@ fn a_machine_refuses_a_schedule_it_cannot_run() {
 #[test]
 fn machine_file_errors_name_the_key_value_and_what_is_allowed() {
     for (text, want) in [
-        ("kind: slip\ncooling_between_dies: 0.5\nblocks:\n  - {capstan_diameter_mm: 500, motor_kw: 10, max_capstan_rpm: 300}\n  - {capstan_diameter_mm: 500, motor_kw: 10, max_capstan_rpm: 300}\n", "blocks[1].step_ratio (block 2)"),
+        ("kind: slip\ncooling_between_dies: 0.5\nblocks:\n  - {capstan_diameter_mm: 500, motor_kw: 10, max_capstan_rpm: 300}\n  - {capstan_diameter_mm: 500, motor_kw: 10, max_capstan_rpm: 300}\n", "`blocks[1].step_ratio` (block 2) = missing"),
         ("kind: non-slip\ncooling_between_dies: 1.5\nblocks:\n  - {capstan_diameter_mm: 500, motor_kw: 10, max_capstan_rpm: 300}\n", "cooling_between_dies"),
         ("kind: non-slip\ncooling_between_dies: 0.5\nblocks:\n  - {capstan_diameter_mm: 500, motor_kw: -1, max_capstan_rpm: 300}\n", "blocks[0].motor_kw"),
         ("kind: non-slip\ncooling_between_dies: 0.5\nblocks:\n  - {capstan_diameter_mm: 500, motor_kw: 10}\n", "max_surface_speed_m_s"),

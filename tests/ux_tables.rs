@@ -267,3 +267,80 @@ fn an_empty_die_size_column_is_left_out_and_a_given_one_kept() {
     assert!(text.contains("│ die "), "{text}");
     assert!(text.contains("anneal"), "{text}");
 }
+
+/// The words and figures of a table report: split at spaces and at the
+/// table's rules.
+fn tokens(text: &str) -> std::collections::BTreeSet<String> {
+    text.split(|c: char| c.is_whitespace() || "│┌┬┐├┼┤└┴┘─".contains(c))
+        .filter(|t| !t.is_empty())
+        .map(str::to_string)
+        .collect()
+}
+
+/// At 60, 80 and 120 columns every line of the report fits, and every word
+/// and figure is one the report shows at 250 columns, where nothing is cut:
+/// a header word split across lines ("tempe" / "rature") or a figure broken
+/// ("7." / "360") would be a new token.
+fn fits_without_breaking_words(args: &[&str]) {
+    let wide = stdout(&at_width(250, args));
+    assert!(widest(&wide) <= 250, "{}", widest(&wide));
+    let whole = tokens(&wide);
+    for width in [60, 80, 120] {
+        let text = stdout(&at_width(width, args));
+        assert!(
+            widest(&text) <= width,
+            "{args:?} at {width}: a line of {}:\n{text}",
+            widest(&text)
+        );
+        let broken: Vec<String> = tokens(&text).difference(&whole).cloned().collect();
+        assert!(
+            broken.is_empty(),
+            "{args:?} at {width}: broken words {broken:?}:\n{text}"
+        );
+        assert!(text.contains("Caution:"), "{args:?} at {width}");
+    }
+}
+
+#[test]
+fn a_25_pass_check_fits_60_80_and_120_columns_with_whole_header_words() {
+    fits_without_breaking_words(&["check", P25]);
+    // Every step is still a row at 60 columns (the panels repeat the step).
+    let text = stdout(&at_width(60, &["check", P25]));
+    for step in 1..=26 {
+        assert!(
+            text.lines().any(|l| l.starts_with(&format!("│ {step} "))),
+            "step {step} missing:\n{text}"
+        );
+    }
+}
+
+#[test]
+fn the_machine_tables_fit_60_80_and_120_columns_in_either_units() {
+    let run = [
+        "check",
+        "schedules-demo/steel-multiblock.yaml",
+        "--machine",
+        "machines/harrow-lane-dry-7.yaml",
+    ];
+    fits_without_breaking_words(&run);
+    let mut us = run.to_vec();
+    us.extend_from_slice(&["--units", "us"]);
+    fits_without_breaking_words(&us);
+}
+
+#[test]
+fn fit_compare_and_the_catalogue_fit_60_80_and_120_columns() {
+    fits_without_breaking_words(&["fit", "schedules-demo/tensile-copper-rod.csv"]);
+    fits_without_breaking_words(&[
+        "compare",
+        "schedules-demo/copper-building-wire.yaml",
+        "schedules-demo/copper-rod-breakdown-over.yaml",
+    ]);
+    fits_without_breaking_words(&[
+        "check",
+        "schedules-demo/copper-building-wire.yaml",
+        "schedules-demo/stainless-spring.yaml",
+        "schedules-demo/steel-multiblock.yaml",
+        "schedules-demo/copper-line-3-speed.yaml",
+    ]);
+}

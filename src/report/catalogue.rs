@@ -9,10 +9,6 @@
 use anyhow::{anyhow, Result};
 use coldpass::evaluation::{ScheduleReport, StepKind};
 use serde::Serialize;
-use tabled::builder::Builder;
-use tabled::settings::object::Columns;
-use tabled::settings::peaker::PriorityMax;
-use tabled::settings::{Alignment, Style, Width};
 
 use super::units::{Quantity, Units};
 use super::{fixed, Format, Look};
@@ -218,22 +214,24 @@ pub fn render(products: &[Product], format: Format, look: &Look) -> Result<Vec<u
             w.into_inner().map_err(|e| anyhow!("{e}"))?
         }
         Format::Table => {
-            let mut b = Builder::default();
-            b.push_record(headers(units).into_iter().map(|h| h.replace(' ', "\n")));
-            for p in products {
-                b.push_record(cells(p, units));
-            }
-            let mut t = b.build();
-            t.with(Style::sharp());
-            t.modify(Columns::new(2..), Alignment::right());
-            t.with(
-                Width::wrap(look.table.width)
-                    .keep_words(true)
-                    .priority(PriorityMax::right()),
+            // Cut into panels led by the file's name when wider than the terminal.
+            let t = super::table::build(
+                headers(units)
+                    .iter()
+                    .map(|h| super::table::stack(h))
+                    .collect(),
+                products.iter().map(|p| cells(p, units)).collect(),
+                Some(look.table.width),
+                &[1],
             );
             let mut out = format!("Catalogue: {} products\n{t}\n", products.len());
             if products.iter().any(|p| p.attainable_speed_m_s.is_some()) {
-                out.push_str("* at the speed the machine allows (attainable_speed_m_s); others at line.finish_speed_m_s\n");
+                out.push_str(&super::table::wrap(
+                    "* at the speed the machine allows (attainable_speed_m_s); others at line.finish_speed_m_s",
+                    look.table.width,
+                    "  ",
+                ));
+                out.push('\n');
             }
             let errors: Vec<&Product> = products.iter().filter(|p| p.error.is_some()).collect();
             if !errors.is_empty() {

@@ -132,15 +132,22 @@ fn signed(x: Option<f64>, c: &Column, units: Units) -> String {
     }
 }
 
-fn table(a: &ScheduleReport, b: &ScheduleReport, names: &[String; 2], look: &Look) -> String {
-    let units = look.table.units;
-    let cols = columns::fixed_set(&COMPARED);
-    // Two header rows: the quantity (spanning its A and B columns), then A, B
-    // and, for the draw ratio, the change B - A.
+/// The pass table of the groups `groups` (0 the step, 1..=5 a compared
+/// quantity with its A, B and, for the draw ratio, B - A; 6 the flags), at
+/// its natural width: two header rows, the quantity spanning its columns.
+fn pass_panel(
+    a: &ScheduleReport,
+    b: &ScheduleReport,
+    cols: &[&Column],
+    groups: &[usize],
+    units: Units,
+    wrap: Option<usize>,
+) -> String {
     let mut top = vec![String::new()];
     let mut sub = vec!["step".to_string()];
     let mut spans = Vec::new();
-    for c in &cols {
+    for &g in groups.iter().filter(|&&g| g >= 1 && g <= cols.len()) {
+        let c = cols[g - 1];
         let with_change = c.key == "draw_ratio";
         spans.push((top.len(), if with_change { 3 } else { 2 }));
         top.push(c.header(units).replace(' ', "\n"));
@@ -152,15 +159,19 @@ fn table(a: &ScheduleReport, b: &ScheduleReport, names: &[String; 2], look: &Loo
             sub.push("B - A".into());
         }
     }
-    top.push("flags".into());
-    sub.push("A / B".into());
+    let with_flags = groups.contains(&(cols.len() + 1));
+    if with_flags {
+        top.push("flags".into());
+        sub.push("A / B".into());
+    }
     let mut bld = Builder::default();
     bld.push_record(top);
     bld.push_record(sub);
     for i in 0..a.passes.len().max(b.passes.len()) {
         let (x, y) = (a.passes.get(i), b.passes.get(i));
         let mut row = vec![(i + 1).to_string()];
-        for c in &cols {
+        for &g in groups.iter().filter(|&&g| g >= 1 && g <= cols.len()) {
+            let c = cols[g - 1];
             row.push(x.map(|r| c.cell(r, units)).unwrap_or_default());
             row.push(y.map(|r| c.cell(r, units)).unwrap_or_default());
             if c.key == "draw_ratio" {
@@ -168,54 +179,83 @@ fn table(a: &ScheduleReport, b: &ScheduleReport, names: &[String; 2], look: &Loo
                 row.push(signed(diff(v(x), v(y)), c, units));
             }
         }
-        let tagged = |tag: &str, r: Option<&StepReport>| {
-            r.map(|r| {
-                r.flags
-                    .iter()
-                    .map(|f| format!("{tag} {}", f.name()))
-                    .collect::<Vec<_>>()
-            })
-            .unwrap_or_default()
-        };
-        let mut flags = tagged("A", x);
-        flags.extend(tagged("B", y));
-        row.push(flags.join("\n"));
+        if with_flags {
+            let tagged = |tag: &str, r: Option<&StepReport>| {
+                r.map(|r| {
+                    r.flags
+                        .iter()
+                        .map(|f| format!("{tag} {}", f.name()))
+                        .collect::<Vec<_>>()
+                })
+                .unwrap_or_default()
+            };
+            let mut flags = tagged("A", x);
+            flags.extend(tagged("B", y));
+            row.push(flags.join("\n"));
+        }
         bld.push_record(row);
     }
     let mut t = bld.build();
     t.with(Style::sharp());
     t.modify(Columns::new(1..), Alignment::right());
+    if with_flags {
+        let last = t.count_columns() - 1;
+        t.modify(Columns::new(last..=last), Alignment::left());
+    }
     for (col, n) in spans {
         t.modify((0, col), Span::column(n));
     }
-    t.with(
-        Width::wrap(look.table.width)
-            .keep_words(true)
-            .priority(PriorityMax::right()),
-    );
+    if let Some(w) = wrap {
+        t.with(
+            Width::wrap(w)
+                .keep_words(true)
+                .priority(PriorityMax::right()),
+        );
+    }
+    t.to_string()
+}
 
-    let mut s = Builder::default();
-    s.push_record(["", "A", "B"].map(String::from));
-    for ((k, va), (_, vb)) in super::table::summary_rows(a, units)
+fn table(a: &ScheduleReport, b: &ScheduleReport, names: &[String; 2], look: &Look) -> String {
+    let units = look.table.units;
+    let width = look.table.width;
+    let cols = columns::fixed_set(&COMPARED);
+    // Cut into panels of whole quantities, each led by the step, when wider
+    // than the terminal: no header word or figure is broken.
+    let natural = |g: &[usize]| super::table::widest(&pass_panel(a, b, &cols, g, units, None));
+    let t = super::table::panels(cols.len() + 2, width, natural)
+        .iter()
+        .map(|g| {
+            let p = pass_panel(a, b, &cols, g, units, None);
+            if super::table::widest(&p) <= width {
+                p
+            } else {
+                pass_panel(a, b, &cols, g, units, Some(width))
+            }
+        })
+        .collect::<Vec<_>>()
+        .join("\n\n");
+
+    // The two summaries side by side; A and B one under the other when
+    // side by side is wider than the terminal.
+    let rows = super::table::summary_rows(a, units)
         .into_iter()
         .zip(super::table::summary_rows(b, units))
-    {
-        s.push_record([k, va, vb]);
-    }
-    let mut st = s.build();
-    st.with(Style::sharp());
-    st.with(
-        Width::wrap(look.table.width)
-            .keep_words(true)
-            .priority(PriorityMax::right()),
+        .map(|((k, va), (_, vb))| vec![k, va, vb])
+        .collect();
+    let st = super::table::build(
+        ["", "A", "B"].map(String::from).to_vec(),
+        rows,
+        Some(width),
+        &[1, 2],
     );
 
     let mut out = String::new();
     for (tag, name, rep) in [("A", &names[0], a), ("B", &names[1], b)] {
-        out.push_str(&format!("{tag}: {name}"));
+        let mut line = format!("{tag}: {name}");
         if !rep.title.is_empty() {
-            out.push_str(&format!(" ({})", rep.title));
+            line.push_str(&format!(" ({})", rep.title));
         }
+        out.push_str(&super::table::wrap(&line, width, "   "));
         out.push('\n');
     }
     out.push_str(&format!(

@@ -9,34 +9,17 @@
 use coldpass::evaluation::{ScheduleReport, StepKind, StepReport};
 use coldpass::machine::{BlockReport, MachineRun};
 use tabled::builder::Builder;
-use tabled::settings::object::Columns;
-use tabled::settings::peaker::PriorityMax;
-use tabled::settings::{Alignment, Style, Width};
+use tabled::settings::Style;
 
 use super::units::{Quantity, Units};
 use super::{fixed, html};
 
-/// A table fitted to `width`, each header word on its own line so that a
-/// column is as wide as its figures.
+/// A table fitted to `width` (cut into panels of whole columns when wider),
+/// each header word on its own line so that a column is as wide as its
+/// figures.
 fn build(header: &[String], rows: Vec<Vec<String>>, width: usize) -> String {
-    let mut b = Builder::default();
-    b.push_record(
-        header
-            .iter()
-            .map(|s| s.split(' ').collect::<Vec<_>>().join("\n")),
-    );
-    for r in rows {
-        b.push_record(r);
-    }
-    let mut t = b.build();
-    t.with(Style::sharp());
-    t.modify(Columns::new(1..), Alignment::right());
-    t.with(
-        Width::wrap(width)
-            .keep_words(true)
-            .priority(PriorityMax::right()),
-    );
-    t.to_string()
+    let header = header.iter().map(|h| super::table::stack(h)).collect();
+    super::table::build(header, rows, Some(width), &[])
 }
 
 /// One figure of the temperature or block table: header words, what it
@@ -234,7 +217,7 @@ pub fn table(rep: &ScheduleReport, width: usize, units: Units) -> String {
     let Some(m) = &rep.machine else {
         return out;
     };
-    out.push_str(&machine_heading(m, units));
+    out.push_str(&super::table::wrap(&machine_heading(m, units), width, "  "));
     out.push('\n');
     out.push_str(&build(&block_header(units), block_rows(m, units), width));
     out.push_str("\n\n");

@@ -63,33 +63,92 @@ pub fn terminal_width() -> usize {
 }
 
 /// A sharp table of `header` over `rows`: the first column and `text_cols`
-/// left, the rest right; with `width`, wrapped at words to fit it (the widest
-/// column first). Shared by every table report.
+/// left, the rest right. With `width`, a table wider than it is cut into
+/// panels of whole columns, one under the other, each led by the first
+/// column (the step, law or block) so that every row can be read across; a
+/// header word or a figure is never broken. Only a panel of one column
+/// beside the first that is still too wide has its cells wrapped, at words.
+/// Shared by every table report.
 pub fn build(
     header: Vec<String>,
     rows: Vec<Vec<String>>,
     width: Option<usize>,
     text_cols: &[usize],
 ) -> String {
-    let mut b = Builder::default();
-    b.push_record(header);
-    for r in rows {
-        b.push_record(r);
+    let all: Vec<usize> = (0..header.len()).collect();
+    let render = |cols: &[usize], wrap: Option<usize>| -> String {
+        let mut b = Builder::default();
+        let pick = |r: &[String]| -> Vec<String> {
+            cols.iter()
+                .map(|&i| r.get(i).cloned().unwrap_or_default())
+                .collect()
+        };
+        b.push_record(pick(&header));
+        for r in &rows {
+            b.push_record(pick(r));
+        }
+        let mut t = b.build();
+        t.with(Style::sharp());
+        t.modify(Columns::new(1..), Alignment::right());
+        for (at, i) in cols.iter().enumerate() {
+            if text_cols.contains(i) {
+                t.modify(Columns::new(at..=at), Alignment::left());
+            }
+        }
+        if let Some(w) = wrap {
+            t.with(
+                Width::wrap(w)
+                    .keep_words(true)
+                    .priority(PriorityMax::right()),
+            );
+        }
+        t.to_string()
+    };
+    let Some(w) = width else {
+        return render(&all, None);
+    };
+    let whole = render(&all, None);
+    if widest(&whole) <= w || all.len() < 2 {
+        return if widest(&whole) <= w {
+            whole
+        } else {
+            render(&all, Some(w))
+        };
     }
-    let mut t = b.build();
-    t.with(Style::sharp());
-    t.modify(Columns::new(1..), Alignment::right());
-    for &i in text_cols {
-        t.modify(Columns::new(i..=i), Alignment::left());
+    panels(all.len(), w, |cols| widest(&render(cols, None)))
+        .iter()
+        .map(|cols| {
+            let t = render(cols, None);
+            if widest(&t) <= w {
+                t
+            } else {
+                render(cols, Some(w))
+            }
+        })
+        .collect::<Vec<_>>()
+        .join("\n\n")
+}
+
+/// The widest line of `text`, in characters.
+pub fn widest(text: &str) -> usize {
+    text.lines().map(|l| l.chars().count()).max().unwrap_or(0)
+}
+
+/// Columns `1..n` laid into panels led by column 0, in order, each as many
+/// columns as keep its width (`width_of`) within `width`; a panel holds at
+/// least one column beside the first.
+pub fn panels(n: usize, width: usize, width_of: impl Fn(&[usize]) -> usize) -> Vec<Vec<usize>> {
+    let mut out = Vec::new();
+    let mut panel = vec![0];
+    for c in 1..n {
+        panel.push(c);
+        if panel.len() > 2 && width_of(&panel) > width {
+            panel.pop();
+            out.push(std::mem::replace(&mut panel, vec![0, c]));
+        }
     }
-    if let Some(w) = width {
-        t.with(
-            Width::wrap(w)
-                .keep_words(true)
-                .priority(PriorityMax::right()),
-        );
-    }
-    t.to_string()
+    out.push(panel);
+    out
 }
 
 /// A header with each word on its own line, so that a column is as wide as
@@ -354,7 +413,7 @@ const WIDE_LINE: &[&str] = &[
 
 /// The whole human-readable report of a schedule.
 pub fn schedule(rep: &ScheduleReport, opts: &TableOptions) -> Result<String, String> {
-    let mut out = heading(rep);
+    let mut out = wrap_long_lines(&heading(rep), opts.width);
     let all: Vec<&StepReport> = rep.passes.iter().collect();
     let draws: Vec<&StepReport> = rep
         .passes
@@ -371,7 +430,13 @@ pub fn schedule(rep: &ScheduleReport, opts: &TableOptions) -> Result<String, Str
                 true,
                 true,
             ));
-            out.push_str("\n(--wide for every column: strains, Delta, drawing stress by method, force, speed)\n\n");
+            out.push('\n');
+            out.push_str(&wrap(
+                "(--wide for every column: strains, Delta, drawing stress by method, force, speed)",
+                opts.width,
+                " ",
+            ));
+            out.push_str("\n\n");
         }
         View::Wide => {
             out.push_str("Passes\n");
@@ -442,6 +507,37 @@ pub fn schedule(rep: &ScheduleReport, opts: &TableOptions) -> Result<String, Str
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn panels_keep_columns_whole_in_order_led_by_the_first() {
+        // Columns of widths 10 (the lead), 20, 20, 30, 50 against 60: each
+        // panel's width is the sum of its columns.
+        let w = [10, 20, 20, 30, 50];
+        let width_of = |cols: &[usize]| cols.iter().map(|&c| w[c]).sum::<usize>();
+        let p = panels(5, 60, width_of);
+        assert_eq!(p, vec![vec![0, 1, 2], vec![0, 3], vec![0, 4]]);
+        // A column wider than the width alone still gets a panel of its own.
+        assert_eq!(panels(3, 25, width_of), vec![vec![0, 1], vec![0, 2]]);
+    }
+
+    #[test]
+    fn a_table_wider_than_the_width_is_cut_into_panels_of_whole_words() {
+        let header = ["step", "wire\ntemperature\nC", "draw\nstress\nMPa", "flags"]
+            .map(String::from)
+            .to_vec();
+        let rows = vec![vec![
+            "1".into(),
+            "35".into(),
+            "39".into(),
+            "near-draw-limit".into(),
+        ]];
+        let t = build(header, rows, Some(30), &[3]);
+        assert!(t.lines().all(|l| l.chars().count() <= 30), "{t}");
+        for word in ["temperature", "stress", "near-draw-limit"] {
+            assert!(t.contains(word), "{word} in {t}");
+        }
+        assert!(t.matches("step").count() >= 2, "the lead repeats: {t}");
+    }
 
     #[test]
     fn wrap_keeps_words_and_width() {
