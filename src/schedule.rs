@@ -74,9 +74,7 @@ pub fn key_says(key: &str, problem: &ParamError) -> String {
     };
     let last = path.rsplit('.').next().unwrap_or(path);
     let last = last.split('[').next().unwrap_or(last);
-    let path = if problem.name.contains('.') {
-        problem.name.clone()
-    } else if path.is_empty() {
+    let path = if problem.name.contains('.') || path.is_empty() {
         problem.name.clone()
     } else if BLOCK_KEYS.contains(&last) && last != problem.name {
         format!("{path}.{}", problem.name)
