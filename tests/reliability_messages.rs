@@ -301,6 +301,12 @@ fn every_bad_value_reads_key_path_equals_value_allowed() {
             "  - exit: 6.15\n    semi_angle_deg: 50",
             "`passes[1].semi_angle_deg` (step 2) = 50: allowed in (0, 45)",
         ),
+        // A flow law's parameter, inside its block.
+        (
+            LAW,
+            "  flow: {law: voce, sigma0_mpa: 80, saturation_mpa: 470, eps_c: -0.8}",
+            "`material.flow.eps_c` = -0.8: allowed greater than 0",
+        ),
         // Gauges and sizes.
         (
             "  - exit: 7.0",

@@ -318,6 +318,22 @@ fn rewrite(path: &str, msg: &str, written: Option<&str>) -> (String, String) {
             format!("= {value}: {}", crate::schedule::rule_words(rule)),
         );
     }
+    // A core range error (a flow law's `n`, say): the parameter joined to
+    // the block that holds it.
+    if let Some((name, rest)) = msg.strip_prefix('`').and_then(|m| m.split_once("` = ")) {
+        if let Some((value, rule)) = rest.split_once(" is not allowed: ") {
+            let last = key.rsplit('.').next().unwrap_or(&key);
+            if !key.is_empty() && last != name {
+                key = join(&key, name);
+            } else if key.is_empty() {
+                key = name.to_string();
+            }
+            return (
+                key,
+                format!("= {value}: {}", crate::schedule::rule_words(rule)),
+            );
+        }
+    }
     if msg == "repetition limit exceeded" {
         return (
             key,
