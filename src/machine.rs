@@ -45,16 +45,13 @@ pub const DEFAULT_DRIVE_EFFICIENCY: f64 = 0.9;
 /// memory; machine makers design the cone steps for a few per cent per step).
 pub const DEFAULT_SLIP_MAX: f64 = 0.15;
 
-/// Largest capstan diameter accepted, mm (physical range: bull blocks run
-/// to about 1.5 m; the bound only keeps typing errors out).
-pub const MAX_CAPSTAN_DIAMETER_MM: f64 = 5000.0;
-/// Largest motor rating accepted per block, kW.
-pub const MAX_MOTOR_KW: f64 = 10_000.0;
-/// Largest capstan speed accepted, rpm.
-pub const MAX_CAPSTAN_RPM: f64 = 100_000.0;
-/// Largest capstan surface speed accepted, m/s (fine-wire machines run to
-/// about 50 m/s).
-pub const MAX_SURFACE_SPEED_M_S: f64 = 500.0;
+// The physical ranges a machine file is checked against live with the
+// schedule's, in `schedule::ranges`; the names below are kept for callers.
+use crate::schedule::ranges::{AMBIENT_RANGE_C, STEP_RATIO_RANGE, WIRE_TEMPERATURE_MAX_C};
+pub use crate::schedule::ranges::{
+    CAPSTAN_DIAMETER_MAX_MM as MAX_CAPSTAN_DIAMETER_MM, CAPSTAN_RPM_MAX as MAX_CAPSTAN_RPM,
+    POWER_MAX_KW as MAX_MOTOR_KW, SPEED_MAX_M_S as MAX_SURFACE_SPEED_M_S,
+};
 
 /// Why a machine file cannot be used, or a schedule cannot run on it.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
@@ -249,7 +246,13 @@ impl Machine {
         if let Some(t) = self.wire_temperature_max_c {
             value(
                 "wire_temperature_max_c".into(),
-                param::finite("wire_temperature_max_c", t),
+                param::within(
+                    "wire_temperature_max_c",
+                    t,
+                    AMBIENT_RANGE_C.0,
+                    WIRE_TEMPERATURE_MAX_C,
+                    Ends::OpenClosed,
+                ),
             )?;
         }
         if let Some(s) = self.slip_max {
@@ -347,7 +350,13 @@ impl Machine {
                 (MachineKind::Slip, _, Some(r)) => {
                     value(
                         key("step_ratio"),
-                        param::within("step_ratio", r, 1.0, 10.0, Ends::Open),
+                        param::within(
+                            "step_ratio",
+                            r,
+                            STEP_RATIO_RANGE.0,
+                            STEP_RATIO_RANGE.1,
+                            Ends::Open,
+                        ),
                     )?;
                 }
                 (_, _, Some(r)) => {

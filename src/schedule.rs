@@ -8,6 +8,7 @@
 //! in the value (`back_tension_mpa: "3 ksi"`, `finish_speed_m_s: "1500
 //! ft/min"`; [`crate::size::quantity`]); a plain number is in the key's unit.
 
+pub mod ranges;
 mod read;
 mod validate;
 
@@ -116,32 +117,14 @@ pub const DEFAULT_UTILISATION: f64 = 0.85;
 pub const DEFAULT_ANGLE_TOLERANCE_DEG: f64 = 3.0;
 /// The most draw passes a design file may ask for (`target.max_passes`).
 pub const MAX_PASSES_ALLOWED: u32 = 200;
-/// Physical range of a metal's density, kg/m^3: lithium 534 to osmium 22,590
-/// (CRC Handbook of Chemistry and Physics, from memory), widened to round
-/// figures. Outside it a figure such as the temperature rise overflows.
-pub const DENSITY_RANGE_KG_M3: (f64, f64) = (100.0, 30_000.0);
-/// Physical range of a metal's specific heat near room temperature,
-/// J/(kg K): about 116 (uranium) to 3,580 (lithium) (CRC Handbook, from
-/// memory), widened to round figures.
-pub const SPECIFIC_HEAT_RANGE_J_KG_K: (f64, f64) = (50.0, 5_000.0);
-/// Range of a diameter in a file, mm: from 1 um (below the finest drawn
-/// wire, about 10 um) to 1 m (above any drawn bar); common practice.
-pub const DIAMETER_RANGE_MM: (f64, f64) = (0.001, 1000.0);
-/// Largest accumulated true strain in a file (`start.strain`,
-/// `cold_work_limit`): 20 is an area ratio of e^20, about 5e8, beyond any
-/// drawing sequence (rod to the finest wire is about 12).
-pub const STRAIN_MAX: f64 = 20.0;
-/// Highest wire-temperature limit, deg C: above the melting point of the
-/// drawn metals this is no limit (copper melts at 1,085 C); from memory.
-pub const WIRE_TEMPERATURE_MAX_C: f64 = 2000.0;
-/// Fastest finishing speed, m/s: the fastest fine-wire lines run at tens of
-/// m/s (common practice); 500 leaves wide room.
-pub const FINISH_SPEED_MAX_M_S: f64 = 500.0;
-/// Largest block motor power, kW (common practice: drawing blocks are a few
-/// to a few hundred kW).
-pub const BLOCK_POWER_MAX_KW: f64 = 100_000.0;
-/// Heaviest coil or spool, kg (common practice: rod coils are a few tonnes).
-pub const COIL_MASS_MAX_KG: f64 = 1_000_000.0;
+pub use ranges::{
+    COIL_MASS_MAX_KG, DENSITY_RANGE_KG_M3, DIAMETER_RANGE_MM, SPECIFIC_HEAT_RANGE_J_KG_K,
+    STRAIN_MAX, WIRE_TEMPERATURE_MAX_C,
+};
+/// Fastest finishing speed, m/s ([`ranges::SPEED_MAX_M_S`]).
+pub const FINISH_SPEED_MAX_M_S: f64 = ranges::SPEED_MAX_M_S;
+/// Largest block motor power, kW ([`ranges::POWER_MAX_KW`]).
+pub const BLOCK_POWER_MAX_KW: f64 = ranges::POWER_MAX_KW;
 /// Default governing method: Sachs with the Hosford-Caddell redundant work,
 /// the closest method on the validation table (README, "Validation": mean
 /// error 5.0 %, largest 12.2 %, against 19.9 % and 28.6 % for `max`).

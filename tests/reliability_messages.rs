@@ -386,7 +386,7 @@ fn a_bad_unit_in_a_machine_file_names_the_key_and_the_units() {
     ]);
     let e = stderr(&o);
     assert!(
-        e.contains("`blocks[0].motor_kw` (block 1) = -3: allowed in (0, 10000]"),
+        e.contains("`blocks[0].motor_kw` (block 1) = -3: allowed in (0, 100000]"),
         "{e}"
     );
 }

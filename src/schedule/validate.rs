@@ -2,6 +2,7 @@
 //! material, limits, line and target numbers, and the die defaults. Each
 //! message names the key, the value and what is allowed.
 
+use super::ranges::*;
 use super::*;
 
 pub(super) fn value(key: &str, r: Result<f64, ParamError>) -> Result<f64, ScheduleError> {
@@ -92,7 +93,13 @@ impl ScheduleFile {
         if let Some(a) = d.semi_angle_deg {
             value(
                 "dies.semi_angle_deg",
-                param::within("semi_angle_deg", a, 0.0, 45.0, Ends::Open),
+                param::within(
+                    "semi_angle_deg",
+                    a,
+                    SEMI_ANGLE_RANGE_DEG.0,
+                    SEMI_ANGLE_RANGE_DEG.1,
+                    Ends::Open,
+                ),
             )?;
         }
         if let Some(list) = &d.semi_angles_deg {
@@ -105,7 +112,13 @@ impl ScheduleFile {
             for (i, a) in list.iter().enumerate() {
                 value(
                     &format!("dies.semi_angles_deg[{i}]"),
-                    param::within("semi_angle_deg", *a, 0.0, 45.0, Ends::Open),
+                    param::within(
+                        "semi_angle_deg",
+                        *a,
+                        SEMI_ANGLE_RANGE_DEG.0,
+                        SEMI_ANGLE_RANGE_DEG.1,
+                        Ends::Open,
+                    ),
                 )?;
             }
         }
@@ -139,7 +152,13 @@ impl ScheduleFile {
         if let Some(x) = l.ambient_c {
             value(
                 "limits.ambient_c",
-                param::within("ambient_c", x, -50.0, 100.0, Ends::Closed),
+                param::within(
+                    "ambient_c",
+                    x,
+                    AMBIENT_RANGE_C.0,
+                    AMBIENT_RANGE_C.1,
+                    Ends::Closed,
+                ),
             )?;
         }
         if let Some(x) = l.wire_temperature_max_c {
@@ -221,7 +240,7 @@ impl ScheduleFile {
             if let Some(x) = line.shift_hours {
                 value(
                     "line.shift_hours",
-                    param::within("shift_hours", x, 0.0, 24.0, Ends::OpenClosed),
+                    param::within("shift_hours", x, 0.0, SHIFT_HOURS_MAX, Ends::OpenClosed),
                 )?;
             }
             if let Some(x) = line.utilisation {
@@ -316,7 +335,7 @@ impl ScheduleFile {
             if let Some(x) = t.die_step_mm {
                 value(
                     "target.die_step_mm",
-                    param::within("die_step_mm", x, 0.0, 10.0, Ends::OpenClosed),
+                    param::within("die_step_mm", x, 0.0, DIE_STEP_MAX_MM, Ends::OpenClosed),
                 )?;
             }
             if let Some(list) = &t.die_sizes_mm {
