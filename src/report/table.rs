@@ -308,8 +308,8 @@ pub fn summary_rows(rep: &ScheduleReport, units: Units) -> Vec<(String, String)>
         Units::Us => match (s.throughput_kg_h, s.throughput_t_per_shift) {
             (Some(kg), Some(t)) => format!(
                 "{:.0} lb/h, {:.1} short tons per shift ({t:.1} t)",
-                kg / 0.453_592_37,
-                t * 1000.0 / 0.453_592_37 / 2000.0
+                kg / coldpass::size::quantity::KG_PER_POUND,
+                t * 1000.0 / coldpass::size::quantity::KG_PER_POUND / 2000.0
             ),
             _ => "- (no line block)".into(),
         },

@@ -89,7 +89,7 @@ impl Quantity {
             (Length, Units::Us) => si / MM_PER_INCH,
             (Stress, Units::Us) => si / MPA_PER_KSI,
             (Force, Units::Us) => si * 1.0e3 / N_PER_LBF,
-            (Speed, Units::Us) => si * 60.0 / 0.3048,
+            (Speed, Units::Us) => si * 60.0 / coldpass::size::quantity::M_PER_FOOT,
             (Power, Units::Us) => si * 1.0e3 / W_PER_HP,
             (Temperature, Units::Us) => si * 9.0 / 5.0 + 32.0,
             (TemperatureRise, Units::Us) => si * 9.0 / 5.0,

@@ -139,8 +139,9 @@ impl StressUnit {
 }
 
 /// One psi in MPa: 4.4482216152605 N / (25.4 mm)^2 (exact by the
-/// definitions of the pound-force and the inch).
-pub(super) const PSI_MPA: f64 = 4.448_221_615_260_5 / (25.4 * 25.4);
+/// definitions of the pound-force and the inch), the core's factor that
+/// files and reports use too.
+pub(super) const PSI_MPA: f64 = coldpass::size::quantity::PA_PER_PSI * 1.0e-6;
 
 /// Unit of the force column.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
@@ -158,7 +159,7 @@ impl ForceUnit {
         match self {
             ForceUnit::N => 1.0,
             ForceUnit::Kn => 1000.0,
-            ForceUnit::Lbf => 4.448_221_615_260_5,
+            ForceUnit::Lbf => coldpass::size::quantity::N_PER_LBF,
         }
     }
     pub(super) fn name(self) -> &'static str {
