@@ -188,3 +188,60 @@ fn plain_numbers_keep_the_keys_units() {
     same_figures(&with_units["passes"], &plain["passes"], 0.0, "passes");
     same_figures(&with_units["summary"], &plain["summary"], 0.0, "summary");
 }
+
+#[test]
+fn a_design_file_in_us_units_designs_as_its_si_twin() {
+    let text = std::fs::read_to_string(root("schedules-demo/design-copper-temper.yaml")).unwrap();
+    let us = edited(
+        &text,
+        &[
+            (
+                "strength_mpa: {min: 380, max: 420}",
+                "strength_mpa: {min: 55 ksi, max: 61 ksi}".into(),
+            ),
+            (
+                "finish_speed_m_s: 20",
+                "finish_speed_m_s: 4000 ft/min".into(),
+            ),
+        ],
+    );
+    let si = edited(
+        &text,
+        &[
+            // 55 and 61 ksi * 6.894757 MPa = 379.211635 and 420.580177 MPa.
+            (
+                "strength_mpa: {min: 380, max: 420}",
+                "strength_mpa: {min: 379.211635, max: 420.580177}".into(),
+            ),
+            ("finish_speed_m_s: 20", "finish_speed_m_s: 20.32".into()),
+        ],
+    );
+    let dir = tempfile::tempdir().unwrap();
+    let (a, b) = (dir.path().join("us.yaml"), dir.path().join("si.yaml"));
+    std::fs::write(&a, us).unwrap();
+    std::fs::write(&b, si).unwrap();
+    let design = |p: &std::path::Path| -> (Option<i32>, Value) {
+        let o = coldpass(&["design", p.to_str().unwrap(), "--format", "json"]);
+        let v: Value = serde_json::from_str(&stdout(&o))
+            .unwrap_or_else(|e| panic!("{e}: {}", String::from_utf8_lossy(&o.stderr)));
+        (o.status.code(), v)
+    };
+    let (ca, ja) = design(&a);
+    let (cb, jb) = design(&b);
+    assert_eq!(ca, cb);
+    assert_eq!(ca, Some(0), "{ja}");
+    // The design aims inside the window, so the window's 1e-7 (SP 811's
+    // seven digits) reaches the figures with a small gain: 2e-6.
+    same_figures(
+        &ja["schedule"]["summary"],
+        &jb["schedule"]["summary"],
+        2e-6,
+        "summary",
+    );
+    same_figures(
+        &ja["schedule"]["passes"],
+        &jb["schedule"]["passes"],
+        2e-6,
+        "passes",
+    );
+}
