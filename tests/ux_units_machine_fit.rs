@@ -238,3 +238,16 @@ fn the_fit_table_in_us_units_shows_ksi_with_the_keys_names() {
         "{strength}"
     );
 }
+
+#[test]
+fn the_fit_page_and_chart_follow_the_units() {
+    let si = run(&["fit", COPPER_RECORD, "--format", "html"]);
+    let us = run(&["fit", COPPER_RECORD, "--format", "html", "--units", "us"]);
+    assert!(si.contains("true stress, MPa") && si.contains("<th>RMS MPa</th>"));
+    assert!(us.contains("true stress, ksi") && us.contains("<th>RMS ksi</th>"));
+    assert!(!us.contains("true stress, MPa"));
+    // The summary's UTS in ksi: the JSON's MPa over 6.894757 (SP 811).
+    let j = json(&["fit", COPPER_RECORD]);
+    let uts = j["uts_mpa"].as_f64().unwrap() / 6.894_757;
+    assert!(us.contains(&format!("{uts:.1} ksi")), "{uts:.1} ksi");
+}

@@ -623,7 +623,7 @@ pub fn fit_page(r: &FitReport, src: &super::fit::Source, units: Units) -> Result
         }],
         charts: vec![Chart {
             caption: "The record and every fitted law.".to_string(),
-            svg: super::fit::svg(r, src)?,
+            svg: super::fit::svg(r, src, units)?,
         }],
         notes: r.warnings.iter().map(ToString::to_string).collect(),
         caution: super::fit::CAUTION

@@ -79,9 +79,9 @@ pub struct FitArgs {
     /// Let --emit-law write a law whose fit did not converge.
     #[arg(long)]
     pub allow_unconverged: bool,
-    /// Units of the table and the HTML page: si (MPa, GPa) or us (ksi, Msi;
-    /// a stress parameter such as `k_mpa` also shown in ksi). JSON, YAML, CSV
-    /// and the emitted law stay SI, as their keys say.
+    /// Units of the table, the HTML page and the --plot chart: si (MPa, GPa)
+    /// or us (ksi, Msi; a stress parameter such as `k_mpa` also shown in
+    /// ksi). JSON, YAML, CSV and the emitted law stay SI, as their keys say.
     #[arg(long, value_enum, default_value_t = Units::Si)]
     pub units: Units,
     #[command(flatten)]

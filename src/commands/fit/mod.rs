@@ -100,7 +100,7 @@ pub fn run(args: &FitArgs) -> Result<u8> {
         },
     };
     let chart = match &args.report.plot {
-        Some(_) => Some(report::svg(&results[0], &sources[0])?),
+        Some(_) => Some(report::svg(&results[0], &sources[0], args.units)?),
         None => None,
     };
     let law_file = match &args.emit_law {

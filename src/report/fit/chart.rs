@@ -20,8 +20,9 @@ pub(super) fn colour(law: FitLaw) -> RGBColor {
 
 /// SVG chart: true stress against true plastic strain, the data and every
 /// plastic-strain law; with a reach strain, a second panel runs each law out
-/// to it, dashed past the end of the test.
-pub fn svg(r: &FitReport, src: &Source) -> Result<String> {
+/// to it, dashed past the end of the test. The stress axis in `units` (MPa,
+/// or ksi in US units), as the table beside it.
+pub fn svg(r: &FitReport, src: &Source, units: Units) -> Result<String> {
     let mut buf = String::new();
     {
         // The run-out panel reaches the schedule's strain or the farthest drawn point.
@@ -60,10 +61,10 @@ pub fn svg(r: &FitReport, src: &Source) -> Result<String> {
             .collect();
         if wide {
             let (left, right) = body.split_horizontally(size.0 / 2);
-            panel(&left, r, &laws, r.strain_to() * 1.05, false)?;
-            panel(&right, r, &laws, far, true)?;
+            panel(&left, r, &laws, r.strain_to() * 1.05, false, units)?;
+            panel(&right, r, &laws, far, true, units)?;
         } else {
-            panel(&body, r, &laws, r.strain_to() * 1.05, false)?;
+            panel(&body, r, &laws, r.strain_to() * 1.05, false, units)?;
         }
         root.present().map_err(plot_err)?;
     }
@@ -104,10 +105,13 @@ pub(super) fn panel<DB: DrawingBackend>(
     laws: &[&LawFit],
     x_max: f64,
     reach: bool,
+    units: Units,
 ) -> Result<()>
 where
     DB::ErrorType: 'static,
 {
+    // Every stress is drawn in the chosen unit: MPa times `k`.
+    let k = Quantity::Stress.convert(1.0, units);
     let end = r.strain_to();
     let samples = 240;
     let curve = |f: &LawFit, a: f64, b: f64| -> Vec<(f64, f64)> {
@@ -115,7 +119,7 @@ where
         (0..=samples)
             .map(|i| {
                 let x = a + (b - a) * i as f64 / samples as f64;
-                (x, law.map_or(0.0, |l| l.stress_mpa(x)))
+                (x, k * law.map_or(0.0, |l| l.stress_mpa(x)))
             })
             .collect()
     };
@@ -124,18 +128,18 @@ where
     } else {
         r.strain_from().min(end) * 0.0
     };
-    let mut y_max = r.true_stress_mpa.iter().copied().fold(0.0, f64::max);
+    let mut y_max = k * r.true_stress_mpa.iter().copied().fold(0.0, f64::max);
     if reach {
         // Scale to the hardening laws; the straight line runs off the top
         // (its label in the legend says so by its absence beyond the edge).
         for f in laws.iter().filter(|f| f.law != FitLaw::Linear) {
             if let Some(s) = f.stress_at_reach_mpa {
-                y_max = y_max.max(s);
+                y_max = y_max.max(k * s);
             }
         }
     }
     for d in r.drawn.iter().filter(|d| d.strain <= x_max) {
-        y_max = y_max.max(d.tensile_strength_mpa);
+        y_max = y_max.max(k * d.tensile_strength_mpa);
     }
     let y_max = (y_max * 1.12).max(1.0);
     let curve = |f: &LawFit, a: f64, b: f64| -> Vec<(f64, f64)> {
@@ -164,7 +168,7 @@ where
     chart
         .configure_mesh()
         .x_desc("true plastic strain")
-        .y_desc("true stress, MPa")
+        .y_desc(format!("true stress, {}", Quantity::Stress.label(units)))
         .y_label_formatter(&|v| format!("{v:.0}"))
         .label_style(("sans-serif", 13))
         .axis_desc_style(("sans-serif", 15))
@@ -204,7 +208,8 @@ where
         let pts: Vec<(f64, f64, f64)> = (0..=n)
             .filter_map(|i| {
                 let x = x_max * (i as f64 / n as f64).max(1e-4);
-                best.stress_with_error_mpa(x).map(|(f, se)| (x, f, se))
+                best.stress_with_error_mpa(x)
+                    .map(|(f, se)| (x, k * f, k * se))
             })
             .collect();
         if !pts.is_empty() {
@@ -237,7 +242,7 @@ where
         let inside: Vec<(f64, f64)> = r
             .drawn
             .iter()
-            .map(|d| (d.strain, d.tensile_strength_mpa))
+            .map(|d| (d.strain, k * d.tensile_strength_mpa))
             .filter(|&(x, y)| x <= x_max && y <= y_max)
             .collect();
         chart
@@ -254,7 +259,11 @@ where
     // out on a curve, thinned to one dot per few pixels along the record.
     let mut dots = Vec::new();
     let mut last: Option<(i32, i32)> = None;
-    for (&x, &y) in r.plastic_strain.iter().zip(&r.true_stress_mpa) {
+    for (&x, y) in r
+        .plastic_strain
+        .iter()
+        .zip(r.true_stress_mpa.iter().map(|s| k * s))
+    {
         if !(x0..=x_max).contains(&x) || !(0.0..=y_max).contains(&y) {
             continue;
         }
