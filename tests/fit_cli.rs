@@ -650,3 +650,21 @@ fn a_strength_coefficient_outside_the_shear_modulus_range_is_a_warning_not_a_ref
     let o = coldpass(&["fit", COPPER, "--shear-modulus-gpa", "45"]);
     assert!(!stdout(&o).contains("outside G/1000 to G/100"));
 }
+
+#[test]
+fn a_bad_option_value_reads_flag_equals_value_allowed() {
+    // The one shape of a bad-value message (issue 13), for options too.
+    let o = coldpass(&["fit", COPPER, "--reach-strain", "50"]);
+    assert_eq!(o.status.code(), Some(1));
+    let e = stderr(&o);
+    assert!(
+        e.contains("`--reach-strain` = 50: allowed in (0, 10]"),
+        "{e}"
+    );
+    let o = coldpass(&["fit", COPPER, "--shear-modulus-gpa", "1000"]);
+    let e = stderr(&o);
+    assert!(
+        e.contains("`--shear-modulus-gpa` = 1000: allowed in [1, 300]"),
+        "{e}"
+    );
+}

@@ -71,7 +71,12 @@ pub fn run(args: &FitArgs) -> Result<u8> {
             "shear_modulus_gpa" => "--shear-modulus-gpa",
             _ => "option",
         };
-        anyhow!("{flag}: {e}")
+        // The message shape of every bad value: `--flag` = value: allowed ...
+        anyhow!(
+            "`{flag}` = {}: {}",
+            e.value,
+            coldpass::schedule::rule_words(&e.allowed)
+        )
     })?;
     let mut results = Vec::with_capacity(args.files.len());
     let mut sources = Vec::with_capacity(args.files.len());
