@@ -251,3 +251,28 @@ fn the_fit_page_and_chart_follow_the_units() {
     let uts = j["uts_mpa"].as_f64().unwrap() / 6.894_757;
     assert!(us.contains(&format!("{uts:.1} ksi")), "{uts:.1} ksi");
 }
+
+#[test]
+fn the_check_page_shows_the_block_table_in_the_units_asked() {
+    let args = ["check", STEEL, "--machine", MACHINE, "--format", "html"];
+    let si = run(&args);
+    let mut us_args = args.to_vec();
+    us_args.extend_from_slice(&["--units", "us"]);
+    let us = run(&us_args);
+    for h in [
+        "net pull kN",
+        "net power kW",
+        "surface speed m/s",
+        "wire temperature out C",
+    ] {
+        assert!(si.contains(&format!("<th>{h}</th>")), "{h}");
+    }
+    for h in [
+        "net pull lbf",
+        "net power hp",
+        "surface speed ft/min",
+        "wire temperature out F",
+    ] {
+        assert!(us.contains(&format!("<th>{h}</th>")), "{h}");
+    }
+}
