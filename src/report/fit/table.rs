@@ -35,7 +35,7 @@ pub(super) fn records_and_set(
             }
         );
         for ((n, m), sd) in sc.names.iter().zip(&sc.mean).zip(&sc.sd) {
-            let _ = writeln!(out, "  {n} = {} ± {}", sig(*m, 5), sig(*sd, 2));
+            let _ = writeln!(out, "  {}", param_text(n, *m, Some(*sd), " ± ", units));
         }
         for (a, b, r) in &sc.correlation {
             let _ = writeln!(out, "  correlation of {a} and {b}: {r:.3}");
