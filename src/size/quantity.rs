@@ -263,6 +263,13 @@ pub fn parse(text: &str, kind: Kind) -> Result<f64, QuantityError> {
             u.kind.noun(),
             kind.noun()
         ))),
+        None if written.starts_with(',')
+            && written[1..].starts_with(|c: char| c.is_ascii_digit()) =>
+        {
+            Err(fail(
+                "the decimal is written with a comma: write it with a point (1.5, not 1,5)".into(),
+            ))
+        }
         None => Err(fail(format!(
             "`{}` is not a unit of {}",
             written.trim(),
@@ -496,6 +503,12 @@ mod tests {
             e.contains("does not start with a number") && e.contains("F"),
             "{e}"
         );
+        let e = parse("1,5 ksi", Kind::Stress).unwrap_err().to_string();
+        assert!(e.contains("with a point"), "{e}");
+        assert!(parse("", Kind::Stress).is_err());
+        let long = format!("1 {}", "x".repeat(10_000));
+        let e = parse(&long, Kind::Stress).unwrap_err().to_string();
+        assert!(e.len() < 400 && e.contains("at most 64"), "{e}");
         assert!(parse("inf F", Kind::Temperature).is_err());
         assert!(parse("NaN MPa", Kind::Stress).is_err());
     }
