@@ -304,6 +304,13 @@ fn fits_without_breaking_words(args: &[&str]) {
 #[test]
 fn a_25_pass_check_fits_60_80_and_120_columns_with_whole_header_words() {
     fits_without_breaking_words(&["check", P25]);
+    fits_without_breaking_words(&["check", P25, "--wide"]);
+    fits_without_breaking_words(&[
+        "check",
+        P25,
+        "--columns",
+        "step,exit_diameter_mm,draw_ratio,power_kw,wire_temperature_c,flags",
+    ]);
     // Every step is still a row at 60 columns (the panels repeat the step).
     let text = stdout(&at_width(60, &["check", P25]));
     for step in 1..=26 {

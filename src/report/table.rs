@@ -207,7 +207,9 @@ fn pass_table(
         .filter(|(_, c)| matches!(c.key, "die_size" | "flags"))
         .map(|(i, _)| i)
         .collect();
-    build(header, rows, stacked.then_some(opts.width), &text_cols)
+    // Fitted to the width in every view: a table wider than the terminal is
+    // cut into panels of whole columns (`--wide` too: every column, in panels).
+    build(header, rows, Some(opts.width), &text_cols)
 }
 
 /// Wraps `text` to `width` characters at spaces, indenting continuation lines
