@@ -251,10 +251,14 @@ pub fn parse(text: &str, kind: Kind) -> Result<f64, QuantityError> {
     if spelled.is_empty() {
         return Ok(x);
     }
-    let found = UNITS
+    // A spelling may name units of two kinds; the key's kind wins.
+    let mut same_spelling = UNITS
         .iter()
-        .filter(|u| u.spellings.contains(&spelled.as_str()))
-        .find_or_first(|u| u.kind == kind);
+        .filter(|u| u.spellings.contains(&spelled.as_str()));
+    let found = same_spelling
+        .clone()
+        .find(|u| u.kind == kind)
+        .or_else(|| same_spelling.next());
     match found {
         Some(u) if u.kind == kind => Ok(x * u.scale + u.offset),
         Some(u) => Err(fail(format!(
@@ -277,19 +281,6 @@ pub fn parse(text: &str, kind: Kind) -> Result<f64, QuantityError> {
         ))),
     }
 }
-
-/// The first item `pick` accepts, else the first item.
-trait FindOrFirst: Iterator + Sized {
-    fn find_or_first(mut self, pick: impl Fn(&Self::Item) -> bool) -> Option<Self::Item> {
-        let first = self.next()?;
-        if pick(&first) {
-            return Some(first);
-        }
-        Some(self.find(|x| pick(x)).unwrap_or(first))
-    }
-}
-
-impl<I: Iterator> FindOrFirst for I {}
 
 /// Reads a number or a text with a unit as `0`.
 struct QuantityVisitor(Kind);
