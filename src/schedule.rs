@@ -100,7 +100,10 @@ pub fn rule_words(rule: &str) -> String {
 fn pass_says(key: &str, problem: &crate::pass::PassError) -> String {
     match problem {
         crate::pass::PassError::Param(p) => key_says(key, p),
-        other => format!("`{key}`: {other}"),
+        other => match key.split_once(" (") {
+            Some((path, note)) => format!("`{path}` ({note}: {other}"),
+            None => format!("`{key}`: {other}"),
+        },
     }
 }
 
