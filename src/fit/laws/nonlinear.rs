@@ -1,0 +1,257 @@
+//! Hollomon, Ludwik, Swift and Voce by Levenberg-Marquardt on the stress
+//! residuals, each from its own start (log-log lines, a scan of Voce's ec),
+//! with the covariance carried back to the natural parameters.
+
+use super::super::solver::{self, Model, Points, Stride};
+use super::linear::weighted_line;
+use super::{finish, FitLaw, LawFit};
+
+fn logistic(t: f64) -> f64 {
+    1.0 / (1.0 + (-t).exp())
+}
+
+fn logit(n: f64) -> f64 {
+    let n = n.clamp(1e-6, 1.0 - 1e-6);
+    (n / (1.0 - n)).ln()
+}
+
+/// Covariance in natural parameters `theta(t)` from `J^T W J` in `t`:
+/// `D s^2 (J^T W J)^-1 D^T`, `D = d theta / d t`, `s^2 = SSR / (W - N)`.
+pub(super) fn natural_covariance<const N: usize>(
+    a: [[f64; N]; N],
+    ssr: f64,
+    weight: f64,
+    d: [[f64; N]; N],
+) -> Option<Vec<Vec<f64>>> {
+    let inv = solver::inverse(a)?;
+    let s2 = ssr / (weight - N as f64);
+    let mut out = vec![vec![0.0; N]; N];
+    for i in 0..N {
+        for j in 0..N {
+            let mut v = 0.0;
+            for k in 0..N {
+                for l in 0..N {
+                    v += d[i][k] * inv[k][l] * d[j][l];
+                }
+            }
+            out[i][j] = s2 * v;
+        }
+    }
+    out.iter().flatten().all(|v| v.is_finite()).then_some(out)
+}
+
+pub(super) fn diag<const N: usize>(v: [f64; N]) -> [[f64; N]; N] {
+    let mut d = [[0.0; N]; N];
+    for i in 0..N {
+        d[i][i] = v[i];
+    }
+    d
+}
+
+struct Hollomon;
+struct Ludwik;
+struct Swift;
+struct Voce;
+
+impl Model<2> for Hollomon {
+    // t = (ln K, logit n)
+    fn eval(&self, t: &[f64; 2], x: f64) -> (f64, [f64; 2]) {
+        let n = logistic(t[1]);
+        let lx = x.ln();
+        let f = (t[0] + n * lx).exp();
+        (f, [f, f * lx * n * (1.0 - n)])
+    }
+}
+
+impl Model<3> for Ludwik {
+    // t = (ln s0, ln K, logit n)
+    fn eval(&self, t: &[f64; 3], x: f64) -> (f64, [f64; 3]) {
+        let (s0, n) = (t[0].exp(), logistic(t[2]));
+        let lx = x.ln();
+        let p = (t[1] + n * lx).exp();
+        (s0 + p, [s0, p, p * lx * n * (1.0 - n)])
+    }
+}
+
+impl Model<3> for Swift {
+    // t = (ln K, ln e0, logit n)
+    fn eval(&self, t: &[f64; 3], x: f64) -> (f64, [f64; 3]) {
+        let (e0, n) = (t[1].exp(), logistic(t[2]));
+        let u = e0 + x;
+        let lu = u.ln();
+        let f = (t[0] + n * lu).exp();
+        (f, [f, f * n / u * e0, f * lu * n * (1.0 - n)])
+    }
+}
+
+impl Model<3> for Voce {
+    // t = (ln s0, ln (ss - s0), ln ec)
+    fn eval(&self, t: &[f64; 3], x: f64) -> (f64, [f64; 3]) {
+        let (s0, d, ec) = (t[0].exp(), t[1].exp(), t[2].exp());
+        let ex = (-x / ec).exp();
+        (s0 + d * (1.0 - ex), [s0, d * (1.0 - ex), -d * ex * x / ec])
+    }
+}
+
+/// Weighted SSR of a model at `t`, `inf` when not finite.
+fn ssr_at<const N: usize, M: Model<N>>(model: &M, t: &[f64; N], p: &Points<'_>) -> f64 {
+    let s: f64 = p
+        .iter()
+        .map(|(x, y, w)| w * (y - model.eval(t, x).0).powi(2))
+        .sum();
+    if s.is_finite() {
+        s
+    } else {
+        f64::INFINITY
+    }
+}
+
+/// Least-squares line of `ln y` on `ln u(x)` over the points: `(a, n)`.
+fn log_line(p: &Points<'_>, u: impl Fn(f64) -> f64, shift: f64) -> Option<(f64, f64)> {
+    let pts = p.iter().filter_map(|(x, y, w)| {
+        let (ux, yy) = (u(x), y - shift);
+        (ux > 0.0 && yy > 0.0).then(|| (ux.ln(), yy.ln(), w))
+    });
+    let v: Vec<(f64, f64, f64)> = pts.collect();
+    weighted_line(v.iter().copied()).map(|(a, b, ..)| (a, b))
+}
+
+/// Hollomon's log-space start: `ln sigma = ln K + n ln eps` by least
+/// squares on the stride.
+pub fn hollomon_log_space(strain: &[f64], stress_mpa: &[f64]) -> Option<(f64, f64)> {
+    let p = Points {
+        x: strain,
+        y: stress_mpa,
+        extra: &[],
+    };
+    log_line(&p, |x| x, 0.0).map(|(a, n)| (a.exp(), n))
+}
+
+pub(super) fn fit_hollomon(p: &Points<'_>) -> LawFit {
+    let stride = Stride::of(p);
+    let sp = stride.points();
+    let (a, n) = log_line(&sp, |x| x, 0.0).unwrap_or((sp.y[0].max(1.0).ln(), 0.3));
+    let out = solver::levenberg_marquardt(&Hollomon, [a, logit(n)], p);
+    let (k, n) = (out.t[0].exp(), logistic(out.t[1]));
+    let cov = natural_covariance(out.a, out.ssr, p.weight(), diag([k, n * (1.0 - n)]));
+    finish(
+        FitLaw::Hollomon,
+        &["k_mpa", "n"],
+        &[k, n],
+        cov,
+        out.ssr,
+        p,
+        out.converged,
+        out.iterations,
+    )
+}
+
+pub(super) fn fit_ludwik(p: &Points<'_>) -> LawFit {
+    let stride = Stride::of(p);
+    let sp = stride.points();
+    let ymin = sp.iter().map(|q| q.1).fold(f64::INFINITY, f64::min);
+    let mut start = None;
+    let mut best = f64::INFINITY;
+    for frac in [0.1, 0.3, 0.5, 0.7, 0.9] {
+        let s0 = frac * ymin;
+        if let Some((a, n)) = log_line(&sp, |x| x, s0) {
+            let t = [s0.ln(), a, logit(n)];
+            let s = ssr_at(&Ludwik, &t, &sp);
+            if s < best {
+                best = s;
+                start = Some(t);
+            }
+        }
+    }
+    let start = start.unwrap_or([(0.5 * ymin).ln(), ymin.ln(), 0.0]);
+    let out = solver::levenberg_marquardt(&Ludwik, start, p);
+    let (s0, k, n) = (out.t[0].exp(), out.t[1].exp(), logistic(out.t[2]));
+    let cov = natural_covariance(out.a, out.ssr, p.weight(), diag([s0, k, n * (1.0 - n)]));
+    finish(
+        FitLaw::Ludwik,
+        &["sigma0_mpa", "k_mpa", "n"],
+        &[s0, k, n],
+        cov,
+        out.ssr,
+        p,
+        out.converged,
+        out.iterations,
+    )
+}
+
+pub(super) fn fit_swift(p: &Points<'_>) -> LawFit {
+    let stride = Stride::of(p);
+    let sp = stride.points();
+    let xmin = sp.iter().map(|q| q.0).fold(f64::INFINITY, f64::min);
+    let mut start = None;
+    let mut best = f64::INFINITY;
+    for e0 in [0.5 * xmin, 0.002, 0.005, 0.01, 0.02, 0.05, 0.1] {
+        if let Some((a, n)) = log_line(&sp, |x| e0 + x, 0.0) {
+            let t = [a, e0.ln(), logit(n)];
+            let s = ssr_at(&Swift, &t, &sp);
+            if s < best {
+                best = s;
+                start = Some(t);
+            }
+        }
+    }
+    let ymax = sp.iter().map(|q| q.1).fold(0.0, f64::max);
+    let start = start.unwrap_or([ymax.ln(), (0.01f64).ln(), 0.0]);
+    let out = solver::levenberg_marquardt(&Swift, start, p);
+    let (k, e0, n) = (out.t[0].exp(), out.t[1].exp(), logistic(out.t[2]));
+    let cov = natural_covariance(out.a, out.ssr, p.weight(), diag([k, e0, n * (1.0 - n)]));
+    finish(
+        FitLaw::Swift,
+        &["k_mpa", "eps0", "n"],
+        &[k, e0, n],
+        cov,
+        out.ssr,
+        p,
+        out.converged,
+        out.iterations,
+    )
+}
+
+pub(super) fn fit_voce(p: &Points<'_>) -> LawFit {
+    let stride = Stride::of(p);
+    let sp = stride.points();
+    let xmax = sp.iter().map(|q| q.0).fold(0.0, f64::max).max(1e-6);
+    let ymin = sp.iter().map(|q| q.1).fold(f64::INFINITY, f64::min);
+    let ymax = sp.iter().map(|q| q.1).fold(0.0, f64::max);
+    let mut start = [
+        ymin.max(1e-3).ln(),
+        (ymax - ymin).max(1e-3).ln(),
+        (xmax / 3.0).ln(),
+    ];
+    let mut best = f64::INFINITY;
+    // ec from xmax/50 to 10 xmax, 40 steps; s0 and ss - s0 by linear least squares.
+    for i in 0..40 {
+        let ec = xmax / 50.0 * (500f64).powf(i as f64 / 39.0);
+        let z = sp.iter().map(|(x, y, w)| (1.0 - (-x / ec).exp(), y, w));
+        let z: Vec<(f64, f64, f64)> = z.collect();
+        if let Some((s0, d, ..)) = weighted_line(z.iter().copied()) {
+            if s0 > 0.0 && d > 0.0 {
+                let t = [s0.ln(), d.ln(), ec.ln()];
+                let s = ssr_at(&Voce, &t, &sp);
+                if s < best {
+                    best = s;
+                    start = t;
+                }
+            }
+        }
+    }
+    let out = solver::levenberg_marquardt(&Voce, start, p);
+    let (s0, d, ec) = (out.t[0].exp(), out.t[1].exp(), out.t[2].exp());
+    let dm = [[s0, 0.0, 0.0], [s0, d, 0.0], [0.0, 0.0, ec]];
+    let cov = natural_covariance(out.a, out.ssr, p.weight(), dm);
+    finish(
+        FitLaw::Voce,
+        &["sigma0_mpa", "saturation_mpa", "eps_c"],
+        &[s0, s0 + d, ec],
+        cov,
+        out.ssr,
+        p,
+        out.converged,
+        out.iterations,
+    )
+}
