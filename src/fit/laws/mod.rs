@@ -59,16 +59,19 @@ pub enum FitLaw {
 
 impl FitLaw {
     /// Every law, in report order.
-    pub const ALL: [FitLaw; 8] = [
-        FitLaw::PerfectlyPlastic,
-        FitLaw::Linear,
-        FitLaw::Hollomon,
-        FitLaw::Ludwik,
-        FitLaw::Swift,
-        FitLaw::Voce,
-        FitLaw::ElasticPerfectlyPlastic,
-        FitLaw::ElasticLinear,
-    ];
+    pub const ALL: [FitLaw; 8] = {
+        let p = FitLaw::PLASTIC;
+        [
+            p[0],
+            p[1],
+            p[2],
+            p[3],
+            p[4],
+            p[5],
+            FitLaw::ElasticPerfectlyPlastic,
+            FitLaw::ElasticLinear,
+        ]
+    };
 
     /// The laws fitted against true plastic strain (the ones ranked by AIC).
     pub const PLASTIC: [FitLaw; 6] = [

@@ -48,6 +48,48 @@ pub(super) fn diag<const N: usize>(v: [f64; N]) -> [[f64; N]; N] {
     d
 }
 
+/// The start among `starts` with the lowest SSR on the stride `sp` (the
+/// first on a tie), `None` when none has a finite SSR.
+fn best_start<const N: usize, M: Model<N>>(
+    model: &M,
+    starts: impl Iterator<Item = [f64; N]>,
+    sp: &Points<'_>,
+) -> Option<[f64; N]> {
+    let mut start = None;
+    let mut best = f64::INFINITY;
+    for t in starts {
+        let s = ssr_at(model, &t, sp);
+        if s < best {
+            best = s;
+            start = Some(t);
+        }
+    }
+    start
+}
+
+/// The [`LawFit`] of a solved law: its natural parameters `values`, the
+/// covariance carried back with `d = d theta / d t`, and the solver's figures.
+fn finish_solved<const N: usize>(
+    law: FitLaw,
+    names: &[&'static str; N],
+    values: [f64; N],
+    d: [[f64; N]; N],
+    out: &solver::Outcome<N>,
+    p: &Points<'_>,
+) -> LawFit {
+    let cov = natural_covariance(out.a, out.ssr, p.weight(), d);
+    finish(
+        law,
+        names,
+        &values,
+        cov,
+        out.ssr,
+        p,
+        out.converged,
+        out.iterations,
+    )
+}
+
 struct Hollomon;
 struct Ludwik;
 struct Swift;
@@ -133,82 +175,46 @@ pub(super) fn fit_hollomon(p: &Points<'_>) -> LawFit {
     let (a, n) = log_line(&sp, |x| x, 0.0).unwrap_or((sp.y[0].max(1.0).ln(), 0.3));
     let out = solver::levenberg_marquardt(&Hollomon, [a, logit(n)], p);
     let (k, n) = (out.t[0].exp(), logistic(out.t[1]));
-    let cov = natural_covariance(out.a, out.ssr, p.weight(), diag([k, n * (1.0 - n)]));
-    finish(
-        FitLaw::Hollomon,
-        &["k_mpa", "n"],
-        &[k, n],
-        cov,
-        out.ssr,
-        p,
-        out.converged,
-        out.iterations,
-    )
+    let d = diag([k, n * (1.0 - n)]);
+    finish_solved(FitLaw::Hollomon, &["k_mpa", "n"], [k, n], d, &out, p)
 }
 
 pub(super) fn fit_ludwik(p: &Points<'_>) -> LawFit {
     let stride = Stride::of(p);
     let sp = stride.points();
     let ymin = sp.iter().map(|q| q.1).fold(f64::INFINITY, f64::min);
-    let mut start = None;
-    let mut best = f64::INFINITY;
-    for frac in [0.1, 0.3, 0.5, 0.7, 0.9] {
+    let starts = [0.1, 0.3, 0.5, 0.7, 0.9].into_iter().filter_map(|frac| {
         let s0 = frac * ymin;
-        if let Some((a, n)) = log_line(&sp, |x| x, s0) {
-            let t = [s0.ln(), a, logit(n)];
-            let s = ssr_at(&Ludwik, &t, &sp);
-            if s < best {
-                best = s;
-                start = Some(t);
-            }
-        }
-    }
-    let start = start.unwrap_or([(0.5 * ymin).ln(), ymin.ln(), 0.0]);
+        log_line(&sp, |x| x, s0).map(|(a, n)| [s0.ln(), a, logit(n)])
+    });
+    let start = best_start(&Ludwik, starts, &sp).unwrap_or([(0.5 * ymin).ln(), ymin.ln(), 0.0]);
     let out = solver::levenberg_marquardt(&Ludwik, start, p);
     let (s0, k, n) = (out.t[0].exp(), out.t[1].exp(), logistic(out.t[2]));
-    let cov = natural_covariance(out.a, out.ssr, p.weight(), diag([s0, k, n * (1.0 - n)]));
-    finish(
-        FitLaw::Ludwik,
-        &["sigma0_mpa", "k_mpa", "n"],
-        &[s0, k, n],
-        cov,
-        out.ssr,
-        p,
-        out.converged,
-        out.iterations,
-    )
+    let names = ["sigma0_mpa", "k_mpa", "n"];
+    let d = diag([s0, k, n * (1.0 - n)]);
+    finish_solved(FitLaw::Ludwik, &names, [s0, k, n], d, &out, p)
 }
 
 pub(super) fn fit_swift(p: &Points<'_>) -> LawFit {
     let stride = Stride::of(p);
     let sp = stride.points();
     let xmin = sp.iter().map(|q| q.0).fold(f64::INFINITY, f64::min);
-    let mut start = None;
-    let mut best = f64::INFINITY;
-    for e0 in [0.5 * xmin, 0.002, 0.005, 0.01, 0.02, 0.05, 0.1] {
-        if let Some((a, n)) = log_line(&sp, |x| e0 + x, 0.0) {
-            let t = [a, e0.ln(), logit(n)];
-            let s = ssr_at(&Swift, &t, &sp);
-            if s < best {
-                best = s;
-                start = Some(t);
-            }
-        }
-    }
+    let e0s = [0.5 * xmin, 0.002, 0.005, 0.01, 0.02, 0.05, 0.1];
+    let starts = e0s
+        .into_iter()
+        .filter_map(|e0| log_line(&sp, |x| e0 + x, 0.0).map(|(a, n)| [a, e0.ln(), logit(n)]));
     let ymax = sp.iter().map(|q| q.1).fold(0.0, f64::max);
-    let start = start.unwrap_or([ymax.ln(), (0.01f64).ln(), 0.0]);
+    let start = best_start(&Swift, starts, &sp).unwrap_or([ymax.ln(), (0.01f64).ln(), 0.0]);
     let out = solver::levenberg_marquardt(&Swift, start, p);
     let (k, e0, n) = (out.t[0].exp(), out.t[1].exp(), logistic(out.t[2]));
-    let cov = natural_covariance(out.a, out.ssr, p.weight(), diag([k, e0, n * (1.0 - n)]));
-    finish(
+    let d = diag([k, e0, n * (1.0 - n)]);
+    finish_solved(
         FitLaw::Swift,
         &["k_mpa", "eps0", "n"],
-        &[k, e0, n],
-        cov,
-        out.ssr,
+        [k, e0, n],
+        d,
+        &out,
         p,
-        out.converged,
-        out.iterations,
     )
 }
 
@@ -218,40 +224,23 @@ pub(super) fn fit_voce(p: &Points<'_>) -> LawFit {
     let xmax = sp.iter().map(|q| q.0).fold(0.0, f64::max).max(1e-6);
     let ymin = sp.iter().map(|q| q.1).fold(f64::INFINITY, f64::min);
     let ymax = sp.iter().map(|q| q.1).fold(0.0, f64::max);
-    let mut start = [
+    let fallback = [
         ymin.max(1e-3).ln(),
         (ymax - ymin).max(1e-3).ln(),
         (xmax / 3.0).ln(),
     ];
-    let mut best = f64::INFINITY;
     // ec from xmax/50 to 10 xmax, 40 steps; s0 and ss - s0 by linear least squares.
-    for i in 0..40 {
+    let starts = (0..40).filter_map(|i| {
         let ec = xmax / 50.0 * (500f64).powf(i as f64 / 39.0);
         let z = sp.iter().map(|(x, y, w)| (1.0 - (-x / ec).exp(), y, w));
         let z: Vec<(f64, f64, f64)> = z.collect();
-        if let Some((s0, d, ..)) = weighted_line(z.iter().copied()) {
-            if s0 > 0.0 && d > 0.0 {
-                let t = [s0.ln(), d.ln(), ec.ln()];
-                let s = ssr_at(&Voce, &t, &sp);
-                if s < best {
-                    best = s;
-                    start = t;
-                }
-            }
-        }
-    }
+        let (s0, d, ..) = weighted_line(z.iter().copied())?;
+        (s0 > 0.0 && d > 0.0).then(|| [s0.ln(), d.ln(), ec.ln()])
+    });
+    let start = best_start(&Voce, starts, &sp).unwrap_or(fallback);
     let out = solver::levenberg_marquardt(&Voce, start, p);
     let (s0, d, ec) = (out.t[0].exp(), out.t[1].exp(), out.t[2].exp());
     let dm = [[s0, 0.0, 0.0], [s0, d, 0.0], [0.0, 0.0, ec]];
-    let cov = natural_covariance(out.a, out.ssr, p.weight(), dm);
-    finish(
-        FitLaw::Voce,
-        &["sigma0_mpa", "saturation_mpa", "eps_c"],
-        &[s0, s0 + d, ec],
-        cov,
-        out.ssr,
-        p,
-        out.converged,
-        out.iterations,
-    )
+    let names = ["sigma0_mpa", "saturation_mpa", "eps_c"];
+    finish_solved(FitLaw::Voce, &names, [s0, s0 + d, ec], dm, &out, p)
 }
