@@ -36,7 +36,7 @@ pub enum FlowError {
 }
 
 /// `value` if it is finite, else [`FlowError::Overflow`] naming `quantity`.
-fn finite_or_overflow(quantity: &'static str, value: f64) -> Result<f64, FlowError> {
+pub(crate) fn finite_or_overflow(quantity: &'static str, value: f64) -> Result<f64, FlowError> {
     if value.is_finite() {
         Ok(value)
     } else {
