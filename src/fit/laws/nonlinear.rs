@@ -95,41 +95,85 @@ struct Ludwik;
 struct Swift;
 struct Voce;
 
+/// The points with `ln x` in place of `x`, for Hollomon and Ludwik, in
+/// which the strain enters only through its logarithm: the logarithm is
+/// taken once per point, not once per point and solver pass (the same
+/// values, so the same sums bit for bit).
+struct LogStrain {
+    /// `ln x` of every point.
+    lx: Vec<f64>,
+    /// The extra points with `ln x`.
+    extra: Vec<(f64, f64, f64)>,
+}
+
+impl LogStrain {
+    fn of(p: &Points<'_>) -> Self {
+        LogStrain {
+            lx: p.x.iter().map(|x| x.ln()).collect(),
+            extra: p.extra.iter().map(|&(x, y, w)| (x.ln(), y, w)).collect(),
+        }
+    }
+
+    /// `p` with `ln x` for `x`.
+    fn points<'a>(&'a self, p: &Points<'a>) -> Points<'a> {
+        Points {
+            x: &self.lx,
+            y: p.y,
+            extra: &self.extra,
+        }
+    }
+}
+
+// Hollomon and Ludwik take `ln x` for `x` (see LogStrain).
 impl Model<2> for Hollomon {
-    // t = (ln K, logit n)
-    fn eval(&self, t: &[f64; 2], x: f64) -> (f64, [f64; 2]) {
-        let n = logistic(t[1]);
-        let lx = x.ln();
-        let f = (t[0] + n * lx).exp();
+    // t = (ln K, logit n); at = (ln K, n)
+    type At = (f64, f64);
+    fn at(&self, t: &[f64; 2]) -> (f64, f64) {
+        (t[0], logistic(t[1]))
+    }
+    #[inline]
+    fn eval(&self, &(ln_k, n): &(f64, f64), lx: f64) -> (f64, [f64; 2]) {
+        let f = (ln_k + n * lx).exp();
         (f, [f, f * lx * n * (1.0 - n)])
     }
 }
 
 impl Model<3> for Ludwik {
-    // t = (ln s0, ln K, logit n)
-    fn eval(&self, t: &[f64; 3], x: f64) -> (f64, [f64; 3]) {
-        let (s0, n) = (t[0].exp(), logistic(t[2]));
-        let lx = x.ln();
-        let p = (t[1] + n * lx).exp();
+    // t = (ln s0, ln K, logit n); at = (s0, ln K, n)
+    type At = (f64, f64, f64);
+    fn at(&self, t: &[f64; 3]) -> (f64, f64, f64) {
+        (t[0].exp(), t[1], logistic(t[2]))
+    }
+    #[inline]
+    fn eval(&self, &(s0, ln_k, n): &(f64, f64, f64), lx: f64) -> (f64, [f64; 3]) {
+        let p = (ln_k + n * lx).exp();
         (s0 + p, [s0, p, p * lx * n * (1.0 - n)])
     }
 }
 
 impl Model<3> for Swift {
-    // t = (ln K, ln e0, logit n)
-    fn eval(&self, t: &[f64; 3], x: f64) -> (f64, [f64; 3]) {
-        let (e0, n) = (t[1].exp(), logistic(t[2]));
+    // t = (ln K, ln e0, logit n); at = (ln K, e0, n)
+    type At = (f64, f64, f64);
+    fn at(&self, t: &[f64; 3]) -> (f64, f64, f64) {
+        (t[0], t[1].exp(), logistic(t[2]))
+    }
+    #[inline]
+    fn eval(&self, &(ln_k, e0, n): &(f64, f64, f64), x: f64) -> (f64, [f64; 3]) {
         let u = e0 + x;
         let lu = u.ln();
-        let f = (t[0] + n * lu).exp();
+        let f = (ln_k + n * lu).exp();
         (f, [f, f * n / u * e0, f * lu * n * (1.0 - n)])
     }
 }
 
 impl Model<3> for Voce {
-    // t = (ln s0, ln (ss - s0), ln ec)
-    fn eval(&self, t: &[f64; 3], x: f64) -> (f64, [f64; 3]) {
-        let (s0, d, ec) = (t[0].exp(), t[1].exp(), t[2].exp());
+    // t = (ln s0, ln (ss - s0), ln ec); at = (s0, ss - s0, ec)
+    type At = (f64, f64, f64);
+    fn at(&self, t: &[f64; 3]) -> (f64, f64, f64) {
+        (t[0].exp(), t[1].exp(), t[2].exp())
+    }
+    #[inline]
+    fn eval(&self, &(s0, d, ec): &(f64, f64, f64), x: f64) -> (f64, [f64; 3]) {
         let ex = (-x / ec).exp();
         (s0 + d * (1.0 - ex), [s0, d * (1.0 - ex), -d * ex * x / ec])
     }
@@ -137,9 +181,10 @@ impl Model<3> for Voce {
 
 /// Weighted SSR of a model at `t`, `inf` when not finite.
 fn ssr_at<const N: usize, M: Model<N>>(model: &M, t: &[f64; N], p: &Points<'_>) -> f64 {
+    let at = model.at(t);
     let s: f64 = p
         .iter()
-        .map(|(x, y, w)| w * (y - model.eval(t, x).0).powi(2))
+        .map(|(x, y, w)| w * (y - model.eval(&at, x).0).powi(2))
         .sum();
     if s.is_finite() {
         s
@@ -173,7 +218,8 @@ pub(super) fn fit_hollomon(p: &Points<'_>) -> LawFit {
     let stride = Stride::of(p);
     let sp = stride.points();
     let (a, n) = log_line(&sp, |x| x, 0.0).unwrap_or((sp.y[0].max(1.0).ln(), 0.3));
-    let out = solver::levenberg_marquardt(&Hollomon, [a, logit(n)], p);
+    let logs = LogStrain::of(p);
+    let out = solver::levenberg_marquardt(&Hollomon, [a, logit(n)], &logs.points(p));
     let (k, n) = (out.t[0].exp(), logistic(out.t[1]));
     let d = diag([k, n * (1.0 - n)]);
     finish_solved(FitLaw::Hollomon, &["k_mpa", "n"], [k, n], d, &out, p)
@@ -187,8 +233,12 @@ pub(super) fn fit_ludwik(p: &Points<'_>) -> LawFit {
         let s0 = frac * ymin;
         log_line(&sp, |x| x, s0).map(|(a, n)| [s0.ln(), a, logit(n)])
     });
-    let start = best_start(&Ludwik, starts, &sp).unwrap_or([(0.5 * ymin).ln(), ymin.ln(), 0.0]);
-    let out = solver::levenberg_marquardt(&Ludwik, start, p);
+    let logs = LogStrain::of(p);
+    let lp = logs.points(p);
+    let log_stride = Stride::of(&lp);
+    let start = best_start(&Ludwik, starts, &log_stride.points());
+    let start = start.unwrap_or([(0.5 * ymin).ln(), ymin.ln(), 0.0]);
+    let out = solver::levenberg_marquardt(&Ludwik, start, &lp);
     let (s0, k, n) = (out.t[0].exp(), out.t[1].exp(), logistic(out.t[2]));
     let names = ["sigma0_mpa", "k_mpa", "n"];
     let d = diag([s0, k, n * (1.0 - n)]);
