@@ -3,7 +3,9 @@
 //! mechanics in SciPy and prints the ratio. Prints one JSON object: for each
 //! case, the best-of-rounds time of one whole schedule in microseconds.
 //!
-//! Usage: `cargo run --release --example core_25_passes -- [ROUNDS]`.
+//! Usage: `cargo run --release --example core_25_passes -- [ROUNDS] [CASE]`;
+//! with CASE (a part of a case's name, `fixed-angle/voce`) only the cases
+//! that contain it run (for `perf record`).
 
 use std::hint::black_box;
 use std::time::Instant;
@@ -21,6 +23,7 @@ fn main() {
         .unwrap_or(20);
     let voce = FlowLaw::voce(80.0, 470.0, 0.8).unwrap();
     let hollomon = FlowLaw::hollomon(530.0, 0.44).unwrap();
+    let only = std::env::args().nth(2).unwrap_or_default();
     let passes = core_passes();
     let cases = [
         ("fixed-angle/voce", &voce, None),
@@ -31,6 +34,9 @@ fn main() {
     ];
     let mut out = Vec::new();
     for (name, law, optimum) in cases {
+        if !name.contains(only.as_str()) {
+            continue;
+        }
         // Calibrate a batch to about 20 ms, then keep the best of `rounds` batches.
         let mut batch = 1u32;
         loop {

@@ -36,7 +36,7 @@ pub enum FlowError {
 }
 
 /// `value` if it is finite, else [`FlowError::Overflow`] naming `quantity`.
-fn finite_or_overflow(quantity: &'static str, value: f64) -> Result<f64, FlowError> {
+pub(crate) fn finite_or_overflow(quantity: &'static str, value: f64) -> Result<f64, FlowError> {
     if value.is_finite() {
         Ok(value)
     } else {
@@ -458,85 +458,6 @@ impl FlowLaw {
             "strain at that stress",
             e,
         )?))
-    }
-}
-
-/// Offset strain at which the entry yield of annealed stock is read when the
-/// law gives 0 at strain 0 (Hollomon `K 0^n`): the 0.2 % offset of the
-/// tensile test (common practice; docs/physics.md, "More single-pass physics").
-pub const ENTRY_YIELD_OFFSET_STRAIN: f64 = 0.002;
-
-impl FlowLaw {
-    /// The yield of the stock entering a die at accumulated strain `strain`,
-    /// MPa: the flow stress at `max(strain, ENTRY_YIELD_OFFSET_STRAIN)`, so that
-    /// annealed Hollomon stock has a positive yield to compare back tension
-    /// with, never `K 0^n = 0`.
-    pub fn entry_yield_mpa(&self, strain: f64) -> f64 {
-        self.stress_mpa(strain.max(ENTRY_YIELD_OFFSET_STRAIN))
-    }
-
-    /// The Considere strain: where `d sigma/d eps = sigma`, the strain that
-    /// maximises the engineering stress `sigma(eps) e^(-eps)` of a tensile
-    /// test (Considere 1885; Dieter ch. 8). Closed forms: Hollomon `n`; Swift
-    /// `n - e0` (0 if negative); linear `(H - Y)/H` (0 if `H <= Y`); Voce
-    /// `-ec ln(ss / ((ss - s0)(1 + 1/ec)))` (0 when that is negative);
-    /// perfectly plastic 0. Ludwik and tables: Brent's maximisation of
-    /// `ln sigma(eps) - eps` over [0, 10] to 1e-10.
-    pub fn considere_strain(&self) -> f64 {
-        match self.0 {
-            FlowLawSpec::PerfectlyPlastic { .. } => 0.0,
-            FlowLawSpec::Linear {
-                yield_mpa,
-                hardening_modulus_mpa,
-            } => {
-                if hardening_modulus_mpa > yield_mpa {
-                    (hardening_modulus_mpa - yield_mpa) / hardening_modulus_mpa
-                } else {
-                    0.0
-                }
-            }
-            FlowLawSpec::Hollomon { n, .. } => n,
-            FlowLawSpec::Swift { eps0, n, .. } => (n - eps0).max(0.0),
-            FlowLawSpec::Voce {
-                sigma0_mpa,
-                saturation_mpa,
-                eps_c,
-            } => {
-                let x = saturation_mpa / ((saturation_mpa - sigma0_mpa) * (1.0 + 1.0 / eps_c));
-                if x < 1.0 {
-                    -eps_c * x.ln()
-                } else {
-                    0.0
-                }
-            }
-            FlowLawSpec::Ludwik { .. } | FlowLawSpec::Points { .. } => {
-                let g = |e: f64| Ok::<f64, FlowError>(-(self.stress_mpa(e).ln() - e));
-                let (e, v, _) = crate::pass::optimum::brent_minimum(g, 0.0, 10.0, 1e-10)
-                    .unwrap_or((0.0, 0.0, 0));
-                // An engineering stress still rising at 0 strain cannot peak there: compare the end.
-                if g(0.0).map(|v0| v0 <= v).unwrap_or(false) {
-                    0.0
-                } else {
-                    e
-                }
-            }
-        }
-    }
-
-    /// Tensile strength (engineering, on the drawn section) of wire with
-    /// accumulated strain `strain`, MPa: the largest `sigma(strain + d) e^(-d)`
-    /// over further strain `d >= 0` (Considere): `sigma(strain)` once the
-    /// strain is past the Considere strain `eps_u`, else
-    /// `sigma(eps_u) e^(-(eps_u - strain))` (docs/physics.md).
-    pub fn tensile_strength_mpa(&self, strain: f64) -> Result<f64, FlowError> {
-        let e = param::non_negative("strain", strain)?;
-        let eu = self.considere_strain();
-        let uts = if eu <= e {
-            self.stress_mpa(e)
-        } else {
-            self.stress_mpa(eu) * (-(eu - e)).exp()
-        };
-        finite_or_overflow("tensile strength", uts)
     }
 }
 

@@ -153,3 +153,40 @@ fn optimum_angle_matches_a_fine_scan_to_1e_3_degree() {
         }
     }
 }
+
+#[test]
+fn prepared_flow_stresses_agree_with_quadrature_within_1e_9_on_every_law() {
+    // The prepared pass takes its mean flow stress from the law's closed
+    // form (for Voce with e^(-eps_a/ec) shared with the entry stress and the
+    // Sachs form); the reference is the mean by adaptive double-exponential
+    // quadrature of sigma_f over the pass (Dieter, ch. 19: the mean flow
+    // stress is the integral over the strain interval divided by its width).
+    let settings = Settings::default();
+    for law in every_law() {
+        for strain_before in [0.0, 1e-6, 0.01, 0.3, 1.1, 3.5] {
+            for (d0, d1) in [(5.0, 4.999), (5.0, 4.95), (5.0, 4.5), (8.0, 5.5)] {
+                let pass = DrawPass {
+                    entry_diameter_mm: d0,
+                    exit_diameter_mm: d1,
+                    strain_before,
+                    back_tension_mpa: 0.0,
+                    die: Die::new(6.0, 0.05).unwrap(),
+                };
+                let p = PreparedPass::new(&law, &pass, &settings).unwrap();
+                let m = p.own_mechanics().unwrap();
+                let (e1, e2) = (strain_before, strain_before + m.pass_strain);
+                let slow = law.integral_by_quadrature(e1, e2, 1e-13).unwrap().value / (e2 - e1);
+                let rel = (m.mean_flow_stress_mpa / slow - 1.0).abs();
+                assert!(
+                    rel < 1e-9,
+                    "{} from {strain_before}, {d0}->{d1}: mean {} vs {slow}",
+                    law.name(),
+                    m.mean_flow_stress_mpa
+                );
+                assert_eq!(m.flow_stress_entry_mpa, law.stress_mpa(e1));
+                assert_eq!(m.flow_stress_exit_mpa, law.stress_mpa(e2));
+                assert_eq!(m, coldpass::analyse_pass(&law, &pass, &settings).unwrap());
+            }
+        }
+    }
+}

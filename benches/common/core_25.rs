@@ -2,7 +2,8 @@
 //! `examples/core_25_passes.rs` (timed beside SciPy by
 //! `benches/scipy_side_by_side.py`), so both time the same work.
 
-use coldpass::{analyse_pass, optimum_semi_angle, Die, DrawPass, FlowLaw, Method, Settings};
+use coldpass::pass::PreparedPass;
+use coldpass::{Die, DrawPass, FlowLaw, Method, Settings};
 
 /// 8 mm down by 10 % in diameter a pass, an anneal after pass 13 (bench data only).
 pub fn core_passes() -> Vec<DrawPass> {
@@ -28,14 +29,19 @@ pub fn core_passes() -> Vec<DrawPass> {
     passes
 }
 
+/// Every pass's mechanics at its own die and, with `optimum`, its optimum
+/// angle by that method: what `check` does per pass (one prepared pass for
+/// both, as `evaluation::mechanics` does).
 pub fn run(law: &FlowLaw, passes: &[DrawPass], optimum: Option<Method>) -> f64 {
     let settings = Settings::default();
     let mut total = 0.0;
     for p in passes {
-        let m = analyse_pass(law, p, &settings).unwrap();
+        let prepared = PreparedPass::new(law, p, &settings).unwrap();
+        let m = prepared.own_mechanics().unwrap();
         total += m.draw_stress_mpa.sachs;
         if let Some(method) = optimum {
-            total += optimum_semi_angle(law, p, &settings, method)
+            total += prepared
+                .own_optimum_semi_angle(method)
                 .unwrap()
                 .unwrap()
                 .semi_angle_deg;

@@ -3,7 +3,7 @@
 //! force and the mean adiabatic temperature rise (formulas and sources in
 //! [`crate::pass`]).
 
-use crate::pass::{self, analyse_pass, optimum_semi_angle, Method, PassMechanics, Settings};
+use crate::pass::{self, Method, PassMechanics, PreparedPass, Settings};
 use crate::schedule::ScheduleError;
 
 use super::geometry::PlannedDraw;
@@ -55,13 +55,17 @@ pub(super) fn analyse(
 ) -> Result<PassFigures, ScheduleError> {
     let i = draw.index;
     let dp = &draw.pass;
-    let mech = analyse_pass(draw.law, dp, settings).map_err(|e| pass_error(i, e))?;
+    // One prepared pass for the pass's own die and its optimum angle: the
+    // same figures as `analyse_pass` and `optimum_semi_angle`, prepared once.
+    let prepared = PreparedPass::new(draw.law, dp, settings).map_err(|e| pass_error(i, e))?;
+    let mech = prepared.own_mechanics().map_err(|e| pass_error(i, e))?;
     let governing = mech
         .draw_stress_mpa
         .get(method)
         .map_err(|e| pass_error(i, e))?;
-    let optimum =
-        optimum_semi_angle(draw.law, dp, settings, method).map_err(|e| pass_error(i, e))?;
+    let optimum = prepared
+        .own_optimum_semi_angle(method)
+        .map_err(|e| pass_error(i, e))?;
     let rise = pass::temperature_rise_c(
         (governing - dp.back_tension_mpa).max(0.0),
         heat.density_kg_m3,

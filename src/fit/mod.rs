@@ -590,9 +590,31 @@ fn fit_plastic_laws(
     y: &[f64],
     extra: &[(f64, f64, f64)],
 ) -> Result<Vec<LawFit>, FitError> {
+    // Hollomon, Ludwik and Swift leave out points at strain 0 or below:
+    // one shared copy without them (when there are any) instead of one per
+    // law, so that the three fit the same points without copying the record
+    // three times (fit_law_weighted then keeps them all, in the same order).
+    let positive = |e: f64, s: f64| e.is_finite() && s.is_finite() && e > 0.0;
+    let all_positive = x.iter().zip(y).all(|(&e, &s)| positive(e, s));
+    let owned: Option<(Vec<f64>, Vec<f64>)> = (!all_positive).then(|| {
+        x.iter()
+            .zip(y)
+            .filter(|(&e, &s)| positive(e, s))
+            .map(|(e, s)| (*e, *s))
+            .unzip()
+    });
+    let (px, py) = match &owned {
+        Some((px, py)) => (px.as_slice(), py.as_slice()),
+        None => (x, y),
+    };
     let one = |laws: &[FitLaw]| -> Result<Vec<LawFit>, FitError> {
         laws.iter()
-            .map(|&l| fit_law_weighted(l, x, y, extra))
+            .map(|&l| match l {
+                FitLaw::Hollomon | FitLaw::Ludwik | FitLaw::Swift => {
+                    fit_law_weighted(l, px, py, extra)
+                }
+                _ => fit_law_weighted(l, x, y, extra),
+            })
             .collect()
     };
     let (here, other) = std::thread::scope(|s| {

@@ -101,10 +101,16 @@ impl Stride {
 }
 
 /// A law of `N` parameters in transformed (unbounded) parameters `t`: value
-/// and gradient at one abscissa.
+/// and gradient at one abscissa. The functions of `t` alone (`exp` of a
+/// log-parameter, the logistic of n) are taken once per pass over the
+/// points by [`Model::at`], not once per point.
 pub trait Model<const N: usize> {
-    /// `(f, df/dt)` at `x`.
-    fn eval(&self, t: &[f64; N], x: f64) -> (f64, [f64; N]);
+    /// What [`Model::eval`] needs of `t`.
+    type At;
+    /// The parts of the law that depend on `t` only.
+    fn at(&self, t: &[f64; N]) -> Self::At;
+    /// `(f, df/dt)` at `x`, with `at = self.at(t)`.
+    fn eval(&self, at: &Self::At, x: f64) -> (f64, [f64; N]);
 }
 
 /// Normal equations at `t`: `J^T W J`, `J^T W r`, weighted SSR; `None` if
@@ -127,8 +133,9 @@ fn normal<const N: usize, M: Model<N>>(
     let mut a = [[0.0; N]; N];
     let mut g = [0.0; N];
     let mut ssr = 0.0;
+    let at = model.at(t);
     for (x, y, w) in p.iter() {
-        let (f, j) = model.eval(t, x);
+        let (f, j) = model.eval(&at, x);
         let r = y - f;
         ssr += w * r * r;
         for i in 0..N {

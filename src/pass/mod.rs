@@ -218,7 +218,30 @@ impl Die {
 
     /// Checks: semi-angle in (0, 45) degrees; mu in [0, 0.5]; m in [0, 1];
     /// land 0 or more; efficiency in (0, 1].
+    #[inline]
     pub fn validate(&self) -> Result<(), PassError> {
+        // Valid dies (every call in design and risk runs) cost a few
+        // comparisons; a NaN fails them and the checks below name it.
+        let valid = self.semi_angle_deg > 0.0
+            && self.semi_angle_deg < 45.0
+            && self.friction >= 0.0
+            && self.friction <= 0.5
+            && self
+                .friction_factor
+                .is_none_or(|m| (0.0..=1.0).contains(&m))
+            && self.land_length_mm >= 0.0
+            && self.land_length_mm.is_finite()
+            && self.efficiency.is_none_or(|eta| eta > 0.0 && eta <= 1.0);
+        if valid {
+            return Ok(());
+        }
+        self.validate_each()
+    }
+
+    /// Each check of [`Die::validate`] in turn, for the error it gives.
+    #[cold]
+    #[inline(never)]
+    fn validate_each(&self) -> Result<(), PassError> {
         param::within("semi_angle_deg", self.semi_angle_deg, 0.0, 45.0, Ends::Open)?;
         param::within("friction", self.friction, 0.0, 0.5, Ends::Closed)?;
         if let Some(m) = self.friction_factor {
@@ -259,7 +282,26 @@ pub struct DrawPass {
 
 impl DrawPass {
     /// Checks the sizes, strain and back tension, then the die.
+    #[inline]
     pub fn validate(&self) -> Result<(), PassError> {
+        // As in Die::validate: valid passes cost a few comparisons.
+        let valid = self.entry_diameter_mm.is_finite()
+            && self.exit_diameter_mm > 0.0
+            && self.exit_diameter_mm < self.entry_diameter_mm
+            && self.strain_before >= 0.0
+            && self.strain_before.is_finite()
+            && self.back_tension_mpa >= 0.0
+            && self.back_tension_mpa.is_finite();
+        if valid {
+            return self.die.validate();
+        }
+        self.validate_each()
+    }
+
+    /// Each check of [`DrawPass::validate`] in turn, for the error it gives.
+    #[cold]
+    #[inline(never)]
+    fn validate_each(&self) -> Result<(), PassError> {
         param::positive("entry_diameter_mm", self.entry_diameter_mm)?;
         param::positive("exit_diameter_mm", self.exit_diameter_mm)?;
         if self.exit_diameter_mm >= self.entry_diameter_mm {
@@ -509,7 +551,7 @@ pub fn analyse_pass(
     pass: &DrawPass,
     settings: &Settings,
 ) -> Result<PassMechanics, PassError> {
-    PreparedPass::new(law, pass, settings)?.mechanics(&pass.die)
+    PreparedPass::new(law, pass, settings)?.own_mechanics()
 }
 
 /// The semi-angle in [1, 20] degrees that minimises `method`'s drawing stress
@@ -526,7 +568,7 @@ pub fn optimum_semi_angle(
     settings: &Settings,
     method: Method,
 ) -> Result<Option<OptimumAngle>, PassError> {
-    PreparedPass::new(law, pass, settings)?.optimum_semi_angle(&pass.die, method)
+    PreparedPass::new(law, pass, settings)?.own_optimum_semi_angle(method)
 }
 
 #[cfg(test)]

@@ -34,16 +34,37 @@ impl PreparedPass<'_> {
         method: Method,
     ) -> Result<Option<OptimumAngle>, PassError> {
         die.validate()?;
-        if !method.depends_on_angle() {
-            return Ok(None);
-        }
-        let terms = self.die_terms(die);
-        let f = |deg: f64| {
-            finite_or_overflow(
-                "drawing stress",
-                self.stress(&terms, method, deg.to_radians())?,
-            )
+        self.optimum_of(die, method)
+    }
+
+    /// [`PreparedPass::optimum_semi_angle`] with `die` already validated.
+    /// Each method's stress is its own closure, so that the search inlines
+    /// it rather than matching on the method at every probe.
+    pub(super) fn optimum_of(
+        &self,
+        die: &Die,
+        method: Method,
+    ) -> Result<Option<OptimumAngle>, PassError> {
+        let t = &self.die_terms(die);
+        let found = match method {
+            Method::Ideal | Method::Efficiency => return Ok(None),
+            Method::Sachs => self.search(|a| self.stress(t, Method::Sachs, a)),
+            Method::Siebel => self.search(|a| self.stress(t, Method::Siebel, a)),
+            Method::Redundant => self.search(|a| self.stress(t, Method::Redundant, a)),
+            Method::UpperBound => self.search(|a| Ok(self.upper_bound(t, a))),
+            Method::Max => self.search(|a| self.stress(t, Method::Max, a)),
         };
+        found.map(Some)
+    }
+
+    /// Brent's search of `stress` (MPa, of the angle in radians) over the
+    /// range, then the end itself when the stress still falls there.
+    #[inline(always)]
+    fn search<F>(&self, stress: F) -> Result<OptimumAngle, PassError>
+    where
+        F: Fn(f64) -> Result<f64, PassError>,
+    {
+        let f = |deg: f64| finite_or_overflow("drawing stress", stress(deg.to_radians())?);
         let (lo, hi) = (OPTIMUM_SEARCH_MIN_DEG, OPTIMUM_SEARCH_MAX_DEG);
         let (mut deg, mut value, _) = brent_minimum(f, lo, hi, ANGLE_TOLERANCE_DEG)?;
         // A stress still falling at an end converges onto it: take the end itself.
@@ -55,16 +76,17 @@ impl PreparedPass<'_> {
                 }
             }
         }
-        Ok(Some(OptimumAngle {
+        Ok(OptimumAngle {
             semi_angle_deg: deg,
             draw_stress_mpa: value,
             at_search_limit: deg - lo < AT_LIMIT_DEG || hi - deg < AT_LIMIT_DEG,
-        }))
+        })
     }
 }
 
 /// Brent's minimisation of a unimodal `f` on `[a, b]` to absolute tolerance
 /// `tol`: returns the abscissa, the value there and the number of probes.
+#[inline]
 pub(crate) fn brent_minimum<F, E>(mut f: F, a: f64, b: f64, tol: f64) -> Result<(f64, f64, u32), E>
 where
     F: FnMut(f64) -> Result<f64, E>,

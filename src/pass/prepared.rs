@@ -51,6 +51,8 @@ pub struct PreparedPass<'a> {
     flow_exit: f64,
     c: f64,
     form: SachsForm,
+    /// The pass's own die, validated with the pass.
+    die: Die,
 }
 
 /// The die's part of a pass for one evaluation, angle aside.
@@ -83,11 +85,13 @@ impl DieTerms {
 impl<'a> PreparedPass<'a> {
     /// Validates the pass (sizes, strain, back tension and its die) and the
     /// settings, and computes the die-independent part.
+    #[inline]
     pub fn new(law: &'a FlowLaw, pass: &DrawPass, settings: &Settings) -> Result<Self, PassError> {
         pass.validate()?;
         param::non_negative("redundant_c", settings.redundant_c)?;
         let eps = true_strain(pass.entry_diameter_mm, pass.exit_diameter_mm);
         let ea = pass.strain_before;
+        let flow = sachs::FlowParts::new(law, ea, eps)?;
         Ok(PreparedPass {
             law,
             entry_diameter_mm: pass.entry_diameter_mm,
@@ -95,13 +99,30 @@ impl<'a> PreparedPass<'a> {
             strain_before: ea,
             eps,
             reduction: area_reduction(pass.entry_diameter_mm, pass.exit_diameter_mm),
-            mean: law.mean_stress_mpa(ea, ea + eps)?,
+            mean: flow.mean_mpa,
             back: pass.back_tension_mpa,
-            flow_entry: law.stress_mpa(ea),
-            flow_exit: law.stress_mpa(ea + eps),
+            flow_entry: flow.entry_mpa,
+            flow_exit: flow.exit_mpa,
             c: settings.redundant_c,
-            form: SachsForm::new(law, ea, eps),
+            form: flow.form,
+            die: pass.die,
         })
+    }
+
+    /// [`PreparedPass::mechanics`] with the pass's own die (validated with
+    /// the pass): what [`super::analyse_pass`] gives.
+    #[inline]
+    pub fn own_mechanics(&self) -> Result<PassMechanics, PassError> {
+        self.mechanics_of(&self.die)
+    }
+
+    /// [`PreparedPass::optimum_semi_angle`] with the pass's own die's
+    /// friction, land and efficiency: what [`super::optimum_semi_angle`] gives.
+    pub fn own_optimum_semi_angle(
+        &self,
+        method: Method,
+    ) -> Result<Option<super::OptimumAngle>, PassError> {
+        self.optimum_of(&self.die, method)
     }
 
     /// Pass true strain `2 ln(D0/D1)`.
@@ -140,6 +161,12 @@ impl<'a> PreparedPass<'a> {
     /// Everything [`super::analyse_pass`] gives, with `die` (validated).
     pub fn mechanics(&self, die: &Die) -> Result<PassMechanics, PassError> {
         die.validate()?;
+        self.mechanics_of(die)
+    }
+
+    /// [`PreparedPass::mechanics`] with `die` already validated.
+    #[inline]
+    fn mechanics_of(&self, die: &Die) -> Result<PassMechanics, PassError> {
         let t = DieTerms::new(die, self.exit_diameter_mm);
         let alpha = die.semi_angle_deg.to_radians();
         let strain_after = self.strain_before + self.eps;
@@ -160,7 +187,7 @@ impl<'a> PreparedPass<'a> {
             friction_factor: t.m,
             friction_factor_derived: t.m_derived,
             back_tension_mpa: self.back,
-            draw_stress_mpa: self.all_stresses(&t, alpha)?,
+            draw_stress_mpa: self.all_stresses_with_delta(&t, alpha, shape)?,
         };
         // Valid but extreme inputs (a law constant near f64::MAX, a subnormal
         // yield stress) can overflow; report that rather than return infinities.
@@ -194,6 +221,16 @@ impl<'a> PreparedPass<'a> {
     }
 
     fn all_stresses(&self, t: &DieTerms, alpha: f64) -> Result<DrawStresses, PassError> {
+        self.all_stresses_with_delta(t, alpha, delta(alpha, self.reduction))
+    }
+
+    /// Every method's stress, with `shape = delta(alpha, r)` already at hand.
+    fn all_stresses_with_delta(
+        &self,
+        t: &DieTerms,
+        alpha: f64,
+        shape: f64,
+    ) -> Result<DrawStresses, PassError> {
         let cone = self.sachs_cone(t, alpha)?;
         Ok(DrawStresses {
             ideal: self.ideal(),
@@ -203,11 +240,12 @@ impl<'a> PreparedPass<'a> {
             },
             sachs: self.land(t, cone),
             siebel: self.land(t, self.siebel_cone(t, alpha)),
-            redundant: self.land(t, self.redundant_cone(alpha, cone)),
+            redundant: self.land(t, self.redundant_cone_of(shape, cone)),
             upper_bound: self.upper_bound(t, alpha),
         })
     }
 
+    #[inline]
     pub(super) fn stress(
         &self,
         t: &DieTerms,
@@ -288,7 +326,14 @@ impl<'a> PreparedPass<'a> {
         sachs_cone + (self.redundant_factor(alpha) - 1.0) * self.mean * self.eps
     }
 
-    fn upper_bound(&self, t: &DieTerms, alpha: f64) -> f64 {
+    /// [`Self::redundant_cone`] with `Delta` already at hand.
+    #[inline]
+    fn redundant_cone_of(&self, shape: f64, sachs_cone: f64) -> f64 {
+        sachs_cone + (self.factor_of(shape) - 1.0) * self.mean * self.eps
+    }
+
+    #[inline]
+    pub(super) fn upper_bound(&self, t: &DieTerms, alpha: f64) -> f64 {
         let (s, c) = alpha.sin_cos();
         let cot = c / s;
         let half = 0.5 * self.eps; // ln(R0/Rf)

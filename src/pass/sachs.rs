@@ -28,7 +28,7 @@
 //! used, as it is by [`integral_by_quadrature`], the independent check the
 //! tests compare the fast path with (agreement within 1e-9 relative, on every law).
 
-use crate::flow::{FlowLaw, FlowLawSpec};
+use crate::flow::{finite_or_overflow, FlowError, FlowLaw, FlowLawSpec};
 use crate::quad;
 
 use super::PassError;
@@ -99,6 +99,67 @@ pub(crate) enum SachsForm {
     Table {
         pieces: Vec<Piece>,
     },
+}
+
+/// The flow stresses of a pass over `[eps_a, eps_a + eps]` and the
+/// angle-independent part of its Sachs integral, computed together so that
+/// a law's transcendental functions are evaluated once: for Voce,
+/// `e^(-eps_a/ec)` serves the entry stress, the mean (through the integral)
+/// and the Sachs form. Every figure is bit for bit what
+/// [`FlowLaw::stress_mpa`], [`FlowLaw::mean_stress_mpa`] and [`SachsForm::new`]
+/// give apart (a unit test holds it).
+#[derive(Debug, Clone, PartialEq)]
+pub(crate) struct FlowParts {
+    /// Mean flow stress over the pass, MPa.
+    pub mean_mpa: f64,
+    /// Flow stress at entry, MPa.
+    pub entry_mpa: f64,
+    /// Flow stress at exit, MPa.
+    pub exit_mpa: f64,
+    /// The angle-independent part of the Sachs integral.
+    pub form: SachsForm,
+}
+
+impl FlowParts {
+    /// The parts for `law` over `[eps_a, eps_a + eps]`, `eps_a` at least 0.
+    pub(crate) fn new(law: &FlowLaw, eps_a: f64, eps: f64) -> Result<Self, FlowError> {
+        let e2 = eps_a + eps;
+        if let FlowLawSpec::Voce {
+            sigma0_mpa,
+            saturation_mpa,
+            eps_c,
+        } = *law.spec()
+        {
+            if e2 > eps_a && eps_a >= 0.0 && e2.is_finite() {
+                // The same expressions as FlowLaw::stress_mpa, integral_mpa
+                // and SachsForm::new, with e^(-eps_a/ec) taken once.
+                let e = eps_a.max(0.0);
+                let entry_decay = (-e / eps_c).exp();
+                let d = e2 - eps_a;
+                let drop = entry_decay * -(-d / eps_c).exp_m1();
+                let integral = saturation_mpa * d - (saturation_mpa - sigma0_mpa) * eps_c * drop;
+                let integral = finite_or_overflow("flow-stress integral", integral)?;
+                let mean = finite_or_overflow("mean flow stress", integral / d)?;
+                return Ok(FlowParts {
+                    mean_mpa: mean,
+                    entry_mpa: saturation_mpa - (saturation_mpa - sigma0_mpa) * entry_decay,
+                    exit_mpa: law.stress_mpa(e2),
+                    form: SachsForm::Voce {
+                        saturation_mpa,
+                        drop_mpa: (saturation_mpa - sigma0_mpa) * entry_decay,
+                        eps_c,
+                        pass_decay: (-eps / eps_c).exp(),
+                    },
+                });
+            }
+        }
+        Ok(FlowParts {
+            mean_mpa: law.mean_stress_mpa(eps_a, e2)?,
+            entry_mpa: law.stress_mpa(eps_a),
+            exit_mpa: law.stress_mpa(e2),
+            form: SachsForm::new(law, eps_a, eps),
+        })
+    }
 }
 
 /// `b^(n+1) - c^(n+1)` without cancellation for thin intervals.
@@ -319,4 +380,30 @@ pub(crate) fn integral_by_quadrature(
         &breaks,
     )?
     .value)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn voce_parts_are_bit_for_bit_the_separate_figures() {
+        // The shared-exponential path must not move a single bit of what
+        // stress_mpa, mean_stress_mpa and SachsForm::new give one by one.
+        for law in [
+            FlowLaw::voce(80.0, 470.0, 0.8).unwrap(),
+            FlowLaw::voce(300.0, 310.0, 0.01).unwrap(),
+            FlowLaw::voce(1e-3, 2e5, 30.0).unwrap(),
+        ] {
+            for ea in [0.0, 1e-9, 0.02, 0.3, 1.7, 6.0, 40.0] {
+                for eps in [1e-12, 1e-6, 0.01, 0.2, 0.4, 1.4, 3.0] {
+                    let parts = FlowParts::new(&law, ea, eps).unwrap();
+                    assert_eq!(parts.mean_mpa, law.mean_stress_mpa(ea, ea + eps).unwrap());
+                    assert_eq!(parts.entry_mpa, law.stress_mpa(ea));
+                    assert_eq!(parts.exit_mpa, law.stress_mpa(ea + eps));
+                    assert_eq!(parts.form, SachsForm::new(&law, ea, eps));
+                }
+            }
+        }
+    }
 }
