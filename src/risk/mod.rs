@@ -22,6 +22,7 @@
 //! chosen over a rank correlation because it streams: Spearman's needs every
 //! sample's rank.
 
+pub mod considere;
 pub mod distribution;
 pub mod model;
 pub mod plan;

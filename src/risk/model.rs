@@ -9,9 +9,10 @@
 
 use crate::evaluation::strength;
 use crate::flow::{FlowLaw, FlowLawSpec};
-use crate::pass::{self, analyse_pass, Die, DrawPass, Method, Settings};
+use crate::pass::{self, Die, DrawPass, Method, PreparedPass, Settings};
 use crate::schedule::{ScheduleFile, Step};
 
+use super::considere::ConsidereSolver;
 use super::distribution::{Law, Sampler};
 use super::scatter::{flow_param, DieSpread, FlowSpread};
 
@@ -94,6 +95,11 @@ pub struct Model {
     annealed: FlowLaw,
     /// Considere strains of the nominal laws.
     considere: (Option<f64>, Option<f64>),
+    /// The annealed law is the drawn law (no `annealed_flow`): a sample's
+    /// deviations then give one law, solved once.
+    annealed_is_flow: bool,
+    /// Considere solvers warmed on the nominal laws (drawn, annealed).
+    solvers: (ConsidereSolver, ConsidereSolver),
     finish_speed_m_s: Option<f64>,
     block_power_kw: Option<f64>,
     warn: f64,
@@ -307,6 +313,11 @@ impl Model {
                 strength::considere_strain(&file.material.flow),
                 strength::considere_strain(file.annealed_law()),
             ),
+            annealed_is_flow: file.annealed_law() == &file.material.flow,
+            solvers: (
+                ConsidereSolver::new(&file.material.flow),
+                ConsidereSolver::new(file.annealed_law()),
+            ),
             finish_speed_m_s: line.map(|l| l.finish_speed_m_s),
             block_power_kw: line.and_then(|l| l.block_power_kw),
             warn: file.limits.draw_ratio_warn,
@@ -377,12 +388,17 @@ impl Model {
                         .sum::<f64>();
                 }
                 let flow = self.law_with(&self.flow, &out.flow_dev)?;
-                let annealed = self.law_with(&self.annealed, &out.flow_dev)?;
-                let considere = (
-                    strength::considere_strain(&flow),
-                    strength::considere_strain(&annealed),
-                );
-                Some((flow, annealed, considere))
+                let eps_u = self.solvers.0.strain(&flow);
+                // The same law and so the same Considere strain when the
+                // file gives no annealed law: built and solved once.
+                let (annealed, annealed_eps_u) = if self.annealed_is_flow {
+                    (flow.clone(), eps_u)
+                } else {
+                    let a = self.law_with(&self.annealed, &out.flow_dev)?;
+                    let e = self.solvers.1.strain(&a);
+                    (a, e)
+                };
+                Some((flow, annealed, (eps_u, annealed_eps_u)))
             }
             _ => None,
         };
@@ -426,6 +442,9 @@ impl Model {
         let nd = self.drivers.len();
         let mut law = flow;
         let mut eps_u = considere.0;
+        // sigma(eps_u), the same for every pass under one law.
+        let at_u = |law: &FlowLaw, eps_u: Option<f64>| eps_u.map(|e| law.stress_mpa(e));
+        let mut stress_at_u = at_u(law, eps_u);
         let mut strain = self.start_strain;
         let mut d_in = start;
         let mut j = 0;
@@ -434,6 +453,7 @@ impl Model {
                 NominalStep::Anneal => {
                     law = annealed;
                     eps_u = considere.1;
+                    stress_at_u = at_u(law, eps_u);
                     strain = 0.0;
                     continue;
                 }
@@ -481,15 +501,22 @@ impl Model {
                 back_tension_mpa: back,
                 die,
             };
-            let mech =
-                analyse_pass(law, &dp, &self.settings).map_err(|e| format!("step {step}: {e}"))?;
-            let governing = mech
-                .draw_stress_mpa
-                .get(self.method)
+            // Only the governing stress, not every method's figures: the
+            // same value `analyse_pass(..).draw_stress_mpa.get(method)` gives.
+            let prepared = PreparedPass::new(law, &dp, &self.settings)
                 .map_err(|e| format!("step {step}: {e}"))?;
-            out.ratio[j] = governing / mech.flow_stress_exit_mpa;
-            let uts = strength::tensile_strength_mpa(law, eps_u, mech.strain_after)
-                .unwrap_or(mech.flow_stress_exit_mpa);
+            let governing = prepared
+                .stress_mpa(&die, self.method)
+                .map_err(|e| format!("step {step}: {e}"))?;
+            let flow_exit = prepared.flow_stress_exit_mpa();
+            let strain_after = strain + prepared.pass_strain();
+            out.ratio[j] = governing / flow_exit;
+            // strength::tensile_strength_mpa with sigma(eps_u) computed once
+            // per law and sigma(strain_after) the exit flow stress.
+            let uts = match (eps_u, stress_at_u) {
+                (Some(e), Some(s)) if strain_after < e => s * (strain_after - e).exp(),
+                _ => flow_exit,
+            };
             out.tensile_strength_mpa[j] = uts;
             out.breaks[j] = governing >= uts;
             if let Some(v) = self.finish_speed_m_s {
@@ -521,7 +548,7 @@ impl Model {
                     };
                 }
             }
-            strain = mech.strain_after;
+            strain = strain_after;
             d_in = d_out;
             j += 1;
         }
