@@ -35,12 +35,13 @@ use rayon::prelude::*;
 use serde::Serialize;
 
 use crate::evaluation::{self, EvaluateOptions, StepKind};
+use crate::machine::Machine;
 use crate::param::ParamError;
 use crate::pass::Method;
 use crate::schedule::{ScheduleError, ScheduleFile};
 
 pub use distribution::{Law, Shape, Spread};
-pub use model::{Driver, Model, SampleOut, Spreads};
+pub use model::{BlockLimit, Driver, Model, SampleOut, Spreads};
 pub use plan::{Plan, Sampling};
 pub use scatter::{Correlation, DieSpread, FlowScatter, FlowSpread, Scatter};
 pub use stats::Tally;
@@ -154,7 +155,10 @@ pub struct PassRisk {
     pub over_max_probability: f64,
     /// Its standard error.
     pub over_max_standard_error: f64,
-    /// Probability that the pulling power is over `line.block_power_kw`.
+    /// Probability that the block after the die is over its rating: its net
+    /// power over `line.block_power_kw`, or on a machine its motor load
+    /// (net pull, drive efficiency) over the block's `motor_kw`, by the test
+    /// `check` flags `over-block-power` with.
     pub over_block_power_probability: Option<f64>,
     /// Its standard error.
     pub over_block_power_standard_error: Option<f64>,
@@ -323,6 +327,14 @@ pub fn spreads(file: &ScheduleFile) -> Result<(Spreads, Vec<InputScatter>), Risk
     ))
 }
 
+/// The names of the values [`assess_keeping`] hands over per sample
+/// ([`Model::sample_columns`]).
+pub fn sample_columns(file: &ScheduleFile) -> Result<Vec<String>, RiskError> {
+    let (spreads, _) = spreads(file)?;
+    let model = Model::new(file, Method::Sachs, spreads).map_err(RiskError::Nominal)?;
+    Ok(model.sample_columns())
+}
+
 /// The name of a driver in the report.
 pub fn driver_name(model: &Model, d: Driver) -> String {
     match d {
@@ -339,20 +351,50 @@ pub fn driver_name(model: &Model, d: Driver) -> String {
     }
 }
 
+/// The samples of one chunk as `--keep-samples` writes them: each sample's
+/// values in [`Model::sample_columns`] order, and why it was refused.
+#[derive(Debug, Clone, Default)]
+pub struct KeptChunk {
+    /// Values of every sample of the chunk, one after the other.
+    pub values: Vec<f64>,
+    /// Per sample: its index and, when refused, why.
+    pub samples: Vec<(u64, Option<String>)>,
+}
+
+/// What receives every kept sample, in index order: its index, its values
+/// in [`Model::sample_columns`] order, and why it was refused.
+pub type KeepSample<'a> = &'a mut dyn FnMut(u64, &[f64], Option<&str>);
+
 /// Evaluates chunk `c` of the plan into a tally.
 pub fn run_chunk(model: &Model, plan: &Plan, nominal: &[f64], c: u64) -> Tally {
+    run_chunk_keeping(model, plan, nominal, c, None)
+}
+
+/// [`run_chunk`], recording each sample into `kept` when given.
+pub fn run_chunk_keeping(
+    model: &Model,
+    plan: &Plan,
+    nominal: &[f64],
+    c: u64,
+    mut kept: Option<&mut KeptChunk>,
+) -> Tally {
     let lo = c * CHUNK_SAMPLES;
     let hi = (lo + CHUNK_SAMPLES).min(plan.samples);
     let nd = model.drivers.len();
     let (warn, max) = model.lines();
-    let block = model.block_power_kw().filter(|_| model.has_block_power());
+    let block = model.has_block_power();
     let mut t = Tally::new(model.draws, nd);
     let mut rng = plan.generator();
     let mut z = vec![0.0; model.dims];
     let mut out = model.buffer();
     for i in lo..hi {
         plan.scores(i, &mut rng, &mut z);
-        if let Err(why) = model.evaluate(Some(&z), &mut out) {
+        let result = model.evaluate(Some(&z), &mut out);
+        if let Some(k) = kept.as_deref_mut() {
+            model.sample_values(&out, result.is_ok(), &mut k.values);
+            k.samples.push((i, result.as_ref().err().cloned()));
+        }
+        if let Err(why) = result {
             t.rejected += 1;
             if t.first_rejection.is_none() {
                 t.first_rejection = Some((i, why));
@@ -377,10 +419,8 @@ pub fn run_chunk(model: &Model, plan: &Plan, nominal: &[f64], c: u64) -> Tally {
                 p.over_max += 1;
                 over = true;
             }
-            if let Some(b) = block {
-                if out.power_kw[j] > b {
-                    p.over_power += 1;
-                }
+            if block && out.over_block[j] {
+                p.over_power += 1;
             }
             p.lowest = p.lowest.min(r);
             p.highest = p.highest.max(r);
@@ -415,6 +455,21 @@ pub fn sample(
     progress: &(dyn Fn(u64) + Sync),
     cancel: &AtomicBool,
 ) -> Result<Tally, RiskError> {
+    sample_keeping(model, plan, nominal, progress, cancel, None)
+}
+
+/// [`sample`], handing every sample to `keep` in index order when given
+/// (a round's samples are held until they are handed over, so memory stays
+/// bounded by [`CHUNKS_PER_ROUND`] chunks).
+pub fn sample_keeping(
+    model: &Model,
+    plan: &Plan,
+    nominal: &[f64],
+    progress: &(dyn Fn(u64) + Sync),
+    cancel: &AtomicBool,
+    mut keep: Option<KeepSample<'_>>,
+) -> Result<Tally, RiskError> {
+    let width = model.sample_columns().len();
     let chunks = plan.samples.div_ceil(CHUNK_SAMPLES);
     let mut total = Tally::new(model.draws, model.drivers.len());
     let mut c = 0;
@@ -423,12 +478,22 @@ pub fn sample(
             return Err(RiskError::Cancelled);
         }
         let end = (c + CHUNKS_PER_ROUND).min(chunks);
-        let round: Vec<Tally> = (c..end)
+        let keeping = keep.is_some();
+        let round: Vec<(Tally, KeptChunk)> = (c..end)
             .into_par_iter()
-            .map(|k| run_chunk(model, plan, nominal, k))
+            .map(|k| {
+                let mut kept = KeptChunk::default();
+                let t = run_chunk_keeping(model, plan, nominal, k, keeping.then_some(&mut kept));
+                (t, kept)
+            })
             .collect();
-        for t in &round {
+        for (t, kept) in &round {
             total.merge(t);
+            if let Some(f) = keep.as_mut() {
+                for ((i, why), values) in kept.samples.iter().zip(kept.values.chunks(width)) {
+                    f(*i, values, why.as_deref());
+                }
+            }
         }
         c = end;
         progress((c * CHUNK_SAMPLES).min(plan.samples));
@@ -467,15 +532,47 @@ pub fn assess(
     progress: &(dyn Fn(u64) + Sync),
     cancel: &AtomicBool,
 ) -> Result<RiskReport, RiskError> {
+    assess_on(file, options, None, progress, cancel)
+}
+
+/// [`assess`] on `machine` (the schedule's `machine:` or `--machine`): the
+/// nominal schedule is `check`'s on that machine (`evaluation::evaluate_on`),
+/// the dancers give the back tension of a pass that has none, and each
+/// block's load is held to its own motor.
+pub fn assess_on(
+    file: &ScheduleFile,
+    options: &RiskOptions,
+    machine: Option<&Machine>,
+    progress: &(dyn Fn(u64) + Sync),
+    cancel: &AtomicBool,
+) -> Result<RiskReport, RiskError> {
+    assess_keeping(file, options, machine, progress, cancel, None)
+}
+
+/// [`assess_on`], handing every sample to `keep` (index order) when given,
+/// with its values in [`sample_columns`] order.
+pub fn assess_keeping(
+    file: &ScheduleFile,
+    options: &RiskOptions,
+    machine: Option<&Machine>,
+    progress: &(dyn Fn(u64) + Sync),
+    cancel: &AtomicBool,
+    keep: Option<KeepSample<'_>>,
+) -> Result<RiskReport, RiskError> {
     check_options(options)?;
-    let check = evaluation::evaluate(
+    let check = evaluation::evaluate_on(
         file,
         &EvaluateOptions {
             method: options.method,
         },
+        machine,
     )?;
     let (spreads, listed) = spreads(file)?;
-    let model = Model::new(file, check.method, spreads).map_err(RiskError::Nominal)?;
+    let on = match (machine, &check.machine) {
+        (Some(m), Some(run)) => Some((m, run)),
+        _ => None,
+    };
+    let model = Model::on(file, check.method, spreads, on).map_err(RiskError::Nominal)?;
     let mut nominal_out = model.buffer();
     model
         .evaluate(None, &mut nominal_out)
@@ -483,7 +580,7 @@ pub fn assess(
     let nominal = nominal_out.ratio.clone();
     let nominal_strength = nominal_out.tensile_strength_mpa.clone();
     let plan = Plan::new(options.samples, options.seed, options.sampling, model.dims);
-    let tally = sample(&model, &plan, &nominal, progress, cancel)?;
+    let tally = sample_keeping(&model, &plan, &nominal, progress, cancel, keep)?;
     Ok(build_report(
         file,
         options,
@@ -676,6 +773,16 @@ fn build_report(
         .is_some_and(|s| s.back_tension_mpa.is_some())
     {
         notes.push("back tension scatters only on the passes that have one".into());
+    }
+    match (model.block_limit(), &check.machine) {
+        (Some(BlockLimit::Machine { .. }), Some(run)) => notes.push(format!(
+            "over block power: the block's motor load (front pull less the back pull it holds on the next die, times its capstan speed, over its drive efficiency) above its motor_kw, as check flags it, with machine '{}' running at {:.3} m/s in every sample",
+            run.name, run.running_speed_m_s
+        )),
+        (Some(BlockLimit::Line { limit_kw }), _) => notes.push(format!(
+            "over block power: the net power (front pull less the back pull held on the next die, times the exit speed) above line.block_power_kw {limit_kw} kW, as check flags it"
+        )),
+        _ => {}
     }
     let wp = &passes[weakest];
     RiskReport {

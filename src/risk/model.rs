@@ -9,6 +9,7 @@
 
 use crate::evaluation::strength;
 use crate::flow::{FlowLaw, FlowLawSpec};
+use crate::machine::{Machine, MachineKind, MachineRun};
 use crate::pass::{self, Die, DrawPass, Method, PreparedPass, Settings};
 use crate::schedule::{ScheduleFile, Step};
 
@@ -101,7 +102,11 @@ pub struct Model {
     /// Considere solvers warmed on the nominal laws (drawn, annealed).
     solvers: (ConsidereSolver, ConsidereSolver),
     finish_speed_m_s: Option<f64>,
-    block_power_kw: Option<f64>,
+    /// What a block's load is held to, when anything.
+    block_limit: Option<BlockLimit>,
+    /// Per draw pass: whether the next step is a draw, whose back pull the
+    /// capstan after this die holds.
+    holds_next: Vec<bool>,
     warn: f64,
     max: f64,
     /// Rod diameter sampler and its score index.
@@ -122,6 +127,36 @@ pub struct Model {
     pub drivers: Vec<Driver>,
 }
 
+/// Inputs a sample records per draw pass (see [`Model::sample_columns`]).
+const DRAWN_PER_PASS: usize = 4;
+
+/// What a block's load is held to: the same test `check` flags
+/// `over-block-power` by.
+#[derive(Debug, Clone, PartialEq)]
+pub enum BlockLimit {
+    /// A line with `block_power_kw`: the net power `(F_i - B_i+1) v_i` over it.
+    Line {
+        /// `line.block_power_kw`, kW.
+        limit_kw: f64,
+    },
+    /// A machine: block `i`'s motor load `(F_i - B_i+1) V_i / eta_i` over
+    /// its `motor_kw` (beyond `1 + 1e-9`, check's margin at the limit), at
+    /// the speed `check` runs it (the file's finish speed, else the
+    /// attainable one), held for every sample.
+    Machine {
+        /// The finish speed the machine runs at, m/s.
+        running_speed_m_s: f64,
+        /// Slip machine: the capstan speeds are fixed by the step ratios
+        /// (per unit finish speed, `h_i`); otherwise each capstan runs at
+        /// the wire speed off its die, `(d_f / d_i)^2` of the sample's sizes.
+        fixed_capstan_speed: Option<Vec<f64>>,
+        /// Drive efficiency of each block.
+        efficiency: Vec<f64>,
+        /// Motor rating of each block, kW.
+        motor_kw: Vec<f64>,
+    },
+}
+
 /// What one sample gives per draw pass.
 #[derive(Debug, Clone, Default)]
 pub struct SampleOut {
@@ -133,12 +168,26 @@ pub struct SampleOut {
     /// Tensile strength of the wire after each pass, MPa (Considere; the
     /// exit flow stress when the law has no Considere strain).
     pub tensile_strength_mpa: Vec<f64>,
-    /// Power per draw pass, kW (with a line).
+    /// Net power per draw pass, kW (with a line or a machine): front pull
+    /// less the back pull held on the next die, times the capstan speed.
     pub power_kw: Vec<f64>,
+    /// Per draw pass: the block's load over its rating (line:
+    /// `block_power_kw`; machine: the motor's `motor_kw` with the drive
+    /// efficiency), with a limit.
+    pub block_load: Vec<f64>,
+    /// Per draw pass: over the block's rating, as check flags it.
+    pub over_block: Vec<bool>,
     /// Per draw pass, the score of each driver (`drivers` order), flattened.
     pub driver_scores: Vec<f64>,
     exits: Vec<f64>,
     die_z: Vec<f64>,
+    front_kn: Vec<f64>,
+    back_mpa: Vec<f64>,
+    /// Per draw pass: exit diameter, friction, semi-angle, back tension as
+    /// drawn (NaN past a pass that refused the sample).
+    drawn: Vec<f64>,
+    /// The rod diameter drawn, mm.
+    rod_mm: f64,
     flow_dev: Vec<f64>,
 }
 
@@ -162,7 +211,21 @@ pub struct Spreads {
 impl Model {
     /// Prepares `file` (already checked by `evaluation::evaluate`) with `method`.
     pub fn new(file: &ScheduleFile, method: Method, spreads: Spreads) -> Result<Self, String> {
+        Self::on(file, method, spreads, None)
+    }
+
+    /// [`Model::new`] on a machine, with the run `check` made of it
+    /// (`evaluation::evaluate_on`): the machine's dancers give the back
+    /// tension of a pass that has none, and each block's load is held to
+    /// its motor.
+    pub fn on(
+        file: &ScheduleFile,
+        method: Method,
+        spreads: Spreads,
+        machine: Option<(&Machine, &MachineRun)>,
+    ) -> Result<Self, String> {
         let mut steps = Vec::with_capacity(file.passes.len());
+        let mut draw_no = 0;
         for (i, s) in file.passes.iter().enumerate() {
             steps.push(match s {
                 Step::Anneal => NominalStep::Anneal,
@@ -172,11 +235,17 @@ impl Model {
                         .semi_angle_deg
                         .or(file.dies.semi_angle_deg)
                         .ok_or_else(|| format!("passes[{i}]: no semi_angle_deg"))?;
+                    // As check lays it out: the pass's own back tension, else
+                    // the dancer of the block it runs on.
+                    let dancer = machine
+                        .and_then(|(m, _)| m.blocks.get(draw_no))
+                        .and_then(|b| b.dancer_back_tension_mpa);
+                    draw_no += 1;
                     NominalStep::Draw {
                         step: i + 1,
                         exit_diameter_mm: d.exit.mm(),
                         die: file.die_for(&d.die, angle).map_err(|e| e.to_string())?,
-                        back_tension_mpa: d.back_tension_mpa.unwrap_or(0.0),
+                        back_tension_mpa: d.back_tension_mpa.or(dancer).unwrap_or(0.0),
                     }
                 }
             });
@@ -295,6 +364,37 @@ impl Model {
             (f, first)
         });
         let line = file.line.as_ref();
+        let block_limit = match machine {
+            Some((m, run)) => Some(BlockLimit::Machine {
+                running_speed_m_s: run.running_speed_m_s,
+                fixed_capstan_speed: (m.kind == MachineKind::Slip).then(|| {
+                    // As machine::run: the last capstan at the finish speed,
+                    // each one before it slower by its successor's step ratio.
+                    let mut h = vec![1.0; draws];
+                    for j in (0..draws.saturating_sub(1)).rev() {
+                        h[j] = h[j + 1] / m.blocks[j + 1].step_ratio.unwrap_or(1.0);
+                    }
+                    h
+                }),
+                efficiency: (0..draws).map(|j| m.efficiency(j)).collect(),
+                motor_kw: m.blocks.iter().take(draws).map(|b| b.motor_kw).collect(),
+            }),
+            None => match line {
+                Some(l) => l
+                    .block_power_kw
+                    .map(|limit_kw| BlockLimit::Line { limit_kw }),
+                None => None,
+            },
+        };
+        let holds_next = {
+            let mut v = Vec::with_capacity(draws);
+            for (i, s) in steps.iter().enumerate() {
+                if matches!(s, NominalStep::Draw { .. }) {
+                    v.push(matches!(steps.get(i + 1), Some(NominalStep::Draw { .. })));
+                }
+            }
+            v
+        };
         Ok(Self {
             method,
             settings: Settings {
@@ -318,8 +418,11 @@ impl Model {
                 ConsidereSolver::new(&file.material.flow),
                 ConsidereSolver::new(file.annealed_law()),
             ),
-            finish_speed_m_s: line.map(|l| l.finish_speed_m_s),
-            block_power_kw: line.and_then(|l| l.block_power_kw),
+            finish_speed_m_s: line
+                .map(|l| l.finish_speed_m_s)
+                .or(machine.map(|(_, r)| r.running_speed_m_s)),
+            block_limit,
+            holds_next,
             warn: file.limits.draw_ratio_warn,
             max: file.limits.draw_ratio_max,
             rod,
@@ -338,14 +441,14 @@ impl Model {
         (self.warn, self.max)
     }
 
-    /// Whether the model has a block power to compare with.
+    /// Whether the model has a block rating to compare with.
     pub fn has_block_power(&self) -> bool {
-        self.block_power_kw.is_some() && self.finish_speed_m_s.is_some()
+        self.block_limit.is_some()
     }
 
-    /// The block power limit, kW.
-    pub fn block_power_kw(&self) -> Option<f64> {
-        self.block_power_kw
+    /// What a block's load is held to.
+    pub fn block_limit(&self) -> Option<&BlockLimit> {
+        self.block_limit.as_ref()
     }
 
     /// A buffer sized for this model.
@@ -355,6 +458,12 @@ impl Model {
             breaks: vec![false; self.draws],
             tensile_strength_mpa: vec![0.0; self.draws],
             power_kw: vec![0.0; self.draws],
+            block_load: vec![0.0; self.draws],
+            over_block: vec![false; self.draws],
+            front_kn: vec![0.0; self.draws],
+            back_mpa: vec![0.0; self.draws],
+            drawn: vec![f64::NAN; DRAWN_PER_PASS * self.draws],
+            rod_mm: f64::NAN,
             driver_scores: vec![0.0; self.draws * self.drivers.len()],
             exits: vec![0.0; self.draws],
             die_z: vec![0.0; self.draws],
@@ -414,6 +523,8 @@ impl Model {
             (Some(_), Some((sampler, _))) => sampler.value(rod_z),
             _ => self.start_diameter_mm,
         };
+        out.rod_mm = start;
+        out.drawn.fill(f64::NAN);
         fn per_die<'m>(
             z: Option<&[f64]>,
             input: &'m Option<DieInput>,
@@ -494,6 +605,12 @@ impl Model {
                 Some((zj, l)) => l.value(zj),
                 None => back,
             };
+            out.drawn[DRAWN_PER_PASS * j..DRAWN_PER_PASS * (j + 1)].copy_from_slice(&[
+                d_out,
+                die.friction,
+                die.semi_angle_deg,
+                back,
+            ]);
             let dp = DrawPass {
                 entry_diameter_mm: d_in,
                 exit_diameter_mm: d_out,
@@ -519,12 +636,8 @@ impl Model {
             };
             out.tensile_strength_mpa[j] = uts;
             out.breaks[j] = governing >= uts;
-            if let Some(v) = self.finish_speed_m_s {
-                out.power_kw[j] = pass::power_kw(
-                    pass::force_kn(governing, d_out),
-                    v * (finish / d_out).powi(2),
-                );
-            }
+            out.front_kn[j] = pass::force_kn(governing, d_out);
+            out.back_mpa[j] = back;
             if z.is_some() {
                 let row = &mut out.driver_scores[j * nd..(j + 1) * nd];
                 for (slot, d) in row.iter_mut().zip(&self.drivers) {
@@ -552,6 +665,96 @@ impl Model {
             d_in = d_out;
             j += 1;
         }
+        self.block_loads(finish, out);
         Ok(())
+    }
+
+    /// The columns of a kept sample ([`Model::sample_values`]): the rod
+    /// diameter, each scattering flow-law parameter (`flow.k_mpa`), then per
+    /// draw step `s` its `step<s>.exit_diameter_mm`, `.friction`,
+    /// `.semi_angle_deg`, `.back_tension_mpa` and `.draw_ratio` (the names
+    /// of check's CSV).
+    pub fn sample_columns(&self) -> Vec<String> {
+        let mut c = vec!["rod_diameter_mm".to_string()];
+        if let Some((f, _)) = &self.flow_spread {
+            c.extend(f.keys.iter().map(|k| format!("flow.{k}")));
+        }
+        for s in &self.steps {
+            if let NominalStep::Draw { step, .. } = s {
+                for key in [
+                    "exit_diameter_mm",
+                    "friction",
+                    "semi_angle_deg",
+                    "back_tension_mpa",
+                    "draw_ratio",
+                ] {
+                    c.push(format!("step{step}.{key}"));
+                }
+            }
+        }
+        c
+    }
+
+    /// The values of one evaluated sample in [`Model::sample_columns`]
+    /// order, appended to `values`: NaN where the sample was refused before
+    /// reaching the figure (`accepted` false leaves every draw ratio NaN).
+    pub fn sample_values(&self, out: &SampleOut, accepted: bool, values: &mut Vec<f64>) {
+        values.push(out.rod_mm);
+        if let Some((f, _)) = &self.flow_spread {
+            let mut spec = self.flow.spec().clone();
+            for (k, d) in f.keys.iter().zip(&out.flow_dev) {
+                values.push(flow_param(&mut spec, k).map_or(f64::NAN, |p| *p + d));
+            }
+        }
+        for j in 0..self.draws {
+            values.extend_from_slice(&out.drawn[DRAWN_PER_PASS * j..DRAWN_PER_PASS * (j + 1)]);
+            values.push(if accepted { out.ratio[j] } else { f64::NAN });
+        }
+    }
+
+    /// Net power and block load of every draw, as check's line and machine
+    /// stages make them: the capstan after die `j` carries the front pull
+    /// `F_j` less the back pull `B_j+1 = sigma_b,j+1 A_j` it holds on the
+    /// next die (none before an anneal or after the last die).
+    fn block_loads(&self, finish: f64, out: &mut SampleOut) {
+        let Some(v) = self.finish_speed_m_s else {
+            return;
+        };
+        for j in 0..self.draws {
+            let d_out = out.exits[j];
+            let held = if self.holds_next[j] {
+                pass::force_kn(out.back_mpa[j + 1], d_out)
+            } else {
+                0.0
+            };
+            let net = out.front_kn[j] - held;
+            match &self.block_limit {
+                Some(BlockLimit::Machine {
+                    running_speed_m_s,
+                    fixed_capstan_speed,
+                    efficiency,
+                    motor_kw,
+                }) => {
+                    let h = match fixed_capstan_speed {
+                        Some(h) => h[j],
+                        None => (finish / d_out).powi(2),
+                    };
+                    let power = net * (running_speed_m_s * h);
+                    let load = power / efficiency[j] / motor_kw[j];
+                    out.power_kw[j] = power;
+                    out.block_load[j] = load;
+                    // check's margin: a block exactly at its limit is within it.
+                    out.over_block[j] = load > 1.0 + 1e-9;
+                }
+                limit => {
+                    let power = pass::power_kw(net, v * (finish / d_out).powi(2));
+                    out.power_kw[j] = power;
+                    if let Some(BlockLimit::Line { limit_kw }) = limit {
+                        out.block_load[j] = power / limit_kw;
+                        out.over_block[j] = power > *limit_kw;
+                    }
+                }
+            }
+        }
     }
 }
