@@ -77,8 +77,17 @@ impl ConsidereSolver {
     /// The Considere strain of `law`: the same value as
     /// [`strength::considere_strain`]`(law)`.
     pub fn strain(&self, law: &FlowLaw) -> Option<f64> {
+        match self.scan(law) {
+            Scan::Solved(e) => e,
+            Scan::Bracket { lo, hi } => Some(bisect(law, lo, hi)),
+        }
+    }
+
+    /// The scan part of [`ConsidereSolver::strain`]: the answer, or the
+    /// bracket `[lo, hi]` the bisection ([`bisect`]) narrows to it.
+    pub fn scan(&self, law: &FlowLaw) -> Scan {
         if !crosses_once(law) {
-            return strength::considere_strain(law);
+            return Scan::Solved(strength::considere_strain(law));
         }
         let s = &self.scan;
         // As the scan reads it: a NaN excess counts as still positive.
@@ -92,7 +101,7 @@ impl ConsidereSolver {
             loop {
                 k += 1;
                 if s[k] > SEARCH_MAX_STRAIN {
-                    return None;
+                    return Scan::Solved(None);
                 }
                 if !positive(k) {
                     break;
@@ -104,22 +113,48 @@ impl ConsidereSolver {
             }
         }
         if k == 0 {
-            return Some(0.0);
+            return Scan::Solved(Some(0.0));
         }
-        let (mut lo, mut hi) = (s[k - 1], s[k]);
-        for _ in 0..200 {
-            let mid = 0.5 * (lo + hi);
-            if excess(law, mid) > 0.0 {
-                lo = mid;
-            } else {
-                hi = mid;
-            }
-            if hi - lo < 1e-13 * hi {
-                break;
-            }
+        Scan::Bracket {
+            lo: s[k - 1],
+            hi: s[k],
         }
-        Some(0.5 * (lo + hi))
     }
+}
+
+/// What the scan found.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Scan {
+    /// The answer itself (no Considere strain below 20, 0 at yield, or a
+    /// table's full solve).
+    Solved(Option<f64>),
+    /// The Considere strain lies in `[lo, hi]` (for the laws that cross
+    /// once, the engineering stress `sigma(e) e^-e` rises to it and falls
+    /// after: unimodal on the bracket).
+    Bracket {
+        /// Last scan point with a positive excess.
+        lo: f64,
+        /// First with a non-positive one.
+        hi: f64,
+    },
+}
+
+/// The bisection of [`strength::considere_strain`] from the bracket
+/// `[lo, hi]` of [`ConsidereSolver::scan`]: the same steps, the same bits.
+pub fn bisect(law: &FlowLaw, lo: f64, hi: f64) -> f64 {
+    let (mut lo, mut hi) = (lo, hi);
+    for _ in 0..200 {
+        let mid = 0.5 * (lo + hi);
+        if excess(law, mid) > 0.0 {
+            lo = mid;
+        } else {
+            hi = mid;
+        }
+        if hi - lo < 1e-13 * hi {
+            break;
+        }
+    }
+    0.5 * (lo + hi)
 }
 
 #[cfg(test)]

@@ -13,7 +13,7 @@ use crate::machine::{Machine, MachineKind, MachineRun};
 use crate::pass::{self, Die, DrawPass, Method, PreparedPass, Settings};
 use crate::schedule::{ScheduleFile, Step};
 
-use super::considere::ConsidereSolver;
+use super::considere::{bisect, ConsidereSolver, Scan};
 use super::distribution::{Law, Sampler};
 use super::scatter::{flow_param, DieSpread, FlowSpread};
 
@@ -125,6 +125,91 @@ pub struct Model {
     pub dims: usize,
     /// The inputs reported as drivers, in report order.
     pub drivers: Vec<Driver>,
+}
+
+/// The Considere strain of the law in force, as far as a sample has needed
+/// it: `strength::tensile_strength_mpa` is `sigma(eps_u) e^(eps - eps_u)`
+/// below `eps_u` and `sigma(eps)` past it, and for a pass to break the
+/// governing stress must reach it. Most passes are decided by the scan's
+/// bracket alone; the bisection runs only for a pass it cannot decide, and
+/// then gives the very bits `check` has.
+#[derive(Debug, Clone, Copy)]
+enum Necking {
+    /// `eps_u` (or none) and `sigma(eps_u)`.
+    Known(Option<f64>, Option<f64>),
+    /// `eps_u` in `[lo, hi]`, with `sigma(lo)`, `sigma(hi)`.
+    Bracket {
+        lo: f64,
+        hi: f64,
+        stress_lo: f64,
+        stress_hi: f64,
+    },
+}
+
+impl Necking {
+    fn known(law: &FlowLaw, eps_u: Option<f64>) -> Self {
+        Necking::Known(eps_u, eps_u.map(|e| law.stress_mpa(e)))
+    }
+
+    fn scan(solver: &ConsidereSolver, law: &FlowLaw) -> Self {
+        match solver.scan(law) {
+            Scan::Solved(e) => Self::known(law, e),
+            Scan::Bracket { lo, hi } => Necking::Bracket {
+                lo,
+                hi,
+                stress_lo: law.stress_mpa(lo),
+                stress_hi: law.stress_mpa(hi),
+            },
+        }
+    }
+
+    /// Whether a pass with `governing` stress, drawn to `strain`, breaks,
+    /// and the wire's strength when it was computed (NaN when the bracket
+    /// decided without it).
+    fn breaks(
+        &mut self,
+        law: &FlowLaw,
+        governing: f64,
+        strain: f64,
+        flow_exit: f64,
+    ) -> (bool, f64) {
+        let (eps_u, stress_u) = match *self {
+            Necking::Known(e, s) => (e, s),
+            Necking::Bracket {
+                lo,
+                hi,
+                stress_lo,
+                stress_hi,
+            } => {
+                if strain >= hi {
+                    // Past every eps_u in the bracket: the exit flow stress.
+                    return (governing >= flow_exit, flow_exit);
+                }
+                if strain < lo {
+                    // sigma(e) e^(strain - e) is unimodal on the bracket (its
+                    // log's slope is sigma'/sigma - 1, positive then
+                    // negative), so at eps_u it is at least the lower of its
+                    // ends; a margin of 1e-12 covers the rounding of both.
+                    let least =
+                        (stress_lo * (strain - lo).exp()).min(stress_hi * (strain - hi).exp());
+                    if governing < least * (1.0 - 1e-12) {
+                        return (false, f64::NAN);
+                    }
+                }
+                let e = bisect(law, lo, hi);
+                let s = law.stress_mpa(e);
+                *self = Necking::Known(Some(e), Some(s));
+                (Some(e), Some(s))
+            }
+        };
+        // strength::tensile_strength_mpa with sigma(eps_u) computed once per
+        // law and sigma(strain) the exit flow stress.
+        let uts = match (eps_u, stress_u) {
+            (Some(e), Some(s)) if strain < e => s * (strain - e).exp(),
+            _ => flow_exit,
+        };
+        (governing >= uts, uts)
+    }
 }
 
 /// Inputs a sample records per draw pass (see [`Model::sample_columns`]).
@@ -497,23 +582,30 @@ impl Model {
                         .sum::<f64>();
                 }
                 let flow = self.law_with(&self.flow, &out.flow_dev)?;
-                let eps_u = self.solvers.0.strain(&flow);
+                let necking = Necking::scan(&self.solvers.0, &flow);
                 // The same law and so the same Considere strain when the
-                // file gives no annealed law: built and solved once.
-                let (annealed, annealed_eps_u) = if self.annealed_is_flow {
-                    (flow.clone(), eps_u)
+                // file gives no annealed law: built and scanned once.
+                let (annealed, annealed_necking) = if self.annealed_is_flow {
+                    (flow.clone(), necking)
                 } else {
                     let a = self.law_with(&self.annealed, &out.flow_dev)?;
-                    let e = self.solvers.1.strain(&a);
-                    (a, e)
+                    let n = Necking::scan(&self.solvers.1, &a);
+                    (a, n)
                 };
-                Some((flow, annealed, (eps_u, annealed_eps_u)))
+                Some((flow, annealed, (necking, annealed_necking)))
             }
             _ => None,
         };
         let (flow, annealed, considere) = match &laws {
             Some((a, b, c)) => (a, b, *c),
-            None => (&self.flow, &self.annealed, self.considere),
+            None => (
+                &self.flow,
+                &self.annealed,
+                (
+                    Necking::known(&self.flow, self.considere.0),
+                    Necking::known(&self.annealed, self.considere.1),
+                ),
+            ),
         };
         let rod_z = match (z, &self.rod) {
             (Some(z), Some((_, k))) => z[*k],
@@ -552,10 +644,7 @@ impl Model {
         let finish = out.exits.last().copied().unwrap_or(start);
         let nd = self.drivers.len();
         let mut law = flow;
-        let mut eps_u = considere.0;
-        // sigma(eps_u), the same for every pass under one law.
-        let at_u = |law: &FlowLaw, eps_u: Option<f64>| eps_u.map(|e| law.stress_mpa(e));
-        let mut stress_at_u = at_u(law, eps_u);
+        let (mut necking, mut annealed_necking) = considere;
         let mut strain = self.start_strain;
         let mut d_in = start;
         let mut j = 0;
@@ -563,8 +652,11 @@ impl Model {
             let (step, die, back) = match s {
                 NominalStep::Anneal => {
                     law = annealed;
-                    eps_u = considere.1;
-                    stress_at_u = at_u(law, eps_u);
+                    if self.annealed_is_flow {
+                        // One law: keep what the drawn passes resolved.
+                        annealed_necking = necking;
+                    }
+                    necking = annealed_necking;
                     strain = 0.0;
                     continue;
                 }
@@ -628,14 +720,8 @@ impl Model {
             let flow_exit = prepared.flow_stress_exit_mpa();
             let strain_after = strain + prepared.pass_strain();
             out.ratio[j] = governing / flow_exit;
-            // strength::tensile_strength_mpa with sigma(eps_u) computed once
-            // per law and sigma(strain_after) the exit flow stress.
-            let uts = match (eps_u, stress_at_u) {
-                (Some(e), Some(s)) if strain_after < e => s * (strain_after - e).exp(),
-                _ => flow_exit,
-            };
-            out.tensile_strength_mpa[j] = uts;
-            out.breaks[j] = governing >= uts;
+            (out.breaks[j], out.tensile_strength_mpa[j]) =
+                necking.breaks(law, governing, strain_after, flow_exit);
             out.front_kn[j] = pass::force_kn(governing, d_out);
             out.back_mpa[j] = back;
             if z.is_some() {
@@ -755,6 +841,55 @@ impl Model {
                     }
                 }
             }
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// SplitMix64 uniforms in [lo, hi) for the test's cases.
+    fn uniforms(seed: u64) -> impl FnMut(f64, f64) -> f64 {
+        let mut x = seed;
+        move |lo, hi| {
+            x = x.wrapping_add(0x9E37_79B9_7F4A_7C15);
+            let mut z = x;
+            z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
+            z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
+            z ^= z >> 31;
+            lo + (hi - lo) * ((z >> 11) as f64 / (1u64 << 53) as f64)
+        }
+    }
+
+    #[test]
+    fn the_bracket_decides_a_break_as_the_full_considere_solve_does() {
+        // Against evaluation::strength (check's own strength): the same
+        // verdict on every case, and the same strength wherever one is given.
+        let nominal = FlowLaw::hollomon(530.0, 0.26).unwrap();
+        let solver = ConsidereSolver::new(&nominal);
+        let mut u = uniforms(3);
+        for _ in 0..20_000 {
+            let law = match (u(0.0, 3.0) as u32, u(0.0, 1.0)) {
+                (0, _) => FlowLaw::hollomon(u(300.0, 700.0), u(0.05, 0.6)),
+                (1, _) => FlowLaw::voce(u(50.0, 200.0), u(300.0, 700.0), u(0.1, 1.5)),
+                _ => FlowLaw::swift(u(300.0, 900.0), u(0.0, 0.1), u(0.1, 0.6)),
+            }
+            .unwrap();
+            let eps_u = strength::considere_strain(&law);
+            let strain = u(0.0, 1.5);
+            let flow_exit = law.stress_mpa(strain);
+            let uts = strength::tensile_strength_mpa(&law, eps_u, strain).unwrap_or(flow_exit);
+            // Governing stresses about the strength, some within rounding of it.
+            let governing = match u(0.0, 3.0) as u32 {
+                0 => uts * u(0.3, 1.2),
+                1 => uts * (1.0 + u(-1e-13, 1e-13)),
+                _ => uts,
+            };
+            let mut n = Necking::scan(&solver, &law);
+            let (broke, strength) = n.breaks(&law, governing, strain, flow_exit);
+            assert_eq!(broke, governing >= uts, "{law:?} at {strain}: {governing} vs {uts}");
+            assert!(strength.is_nan() || strength.to_bits() == uts.to_bits());
         }
     }
 }
