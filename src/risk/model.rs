@@ -1,11 +1,14 @@
 //! One sample of a schedule: the nominal steps with each scattering input
-//! moved by its drawn score, evaluated pass by pass with the core's
-//! [`analyse_pass`] exactly as `check` does (the draw ratio is the governing
-//! drawing stress over the exit flow stress; power is force times the exit
-//! speed by volume constancy from the finish speed). A pass breaks when the
-//! governing drawing stress reaches the drawn wire's tensile strength from
-//! the Considere condition (`evaluation::strength`, as `check` reports it):
-//! the exit flow stress for wire drawn past its Considere strain.
+//! moved by its drawn score, evaluated pass by pass with the core's pass
+//! mechanics as `check` does ([`PreparedPass`], the governing method's
+//! stress only: the value `analyse_pass` gives; the draw ratio is the
+//! governing drawing stress over the exit flow stress). A pass breaks when
+//! the governing drawing stress reaches the drawn wire's tensile strength
+//! from the Considere condition (`evaluation::strength`, as `check` reports
+//! it): the exit flow stress for wire drawn past its Considere strain. The
+//! block after each die carries the net pull, front less the back pull it
+//! holds on the next die, held to `line.block_power_kw` or, on a machine, to
+//! its motor ([`BlockLimit`]), as check's line and machine stages do.
 
 use crate::evaluation::strength;
 use crate::flow::{FlowLaw, FlowLawSpec};
