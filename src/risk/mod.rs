@@ -388,9 +388,10 @@ pub fn run_chunk_keeping(
     let mut rng = plan.generator();
     let mut z = vec![0.0; model.dims];
     let mut out = model.buffer();
+    let prepared = model.prepare();
     for i in lo..hi {
         plan.scores(i, &mut rng, &mut z);
-        let result = model.evaluate(Some(&z), &mut out);
+        let result = model.evaluate_prepared(Some(&z), prepared.as_deref(), &mut out);
         if let Some(k) = kept.as_deref_mut() {
             model.sample_values(&out, result.is_ok(), &mut k.values);
             k.samples.push((i, result.as_ref().err().cloned()));

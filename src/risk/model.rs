@@ -572,9 +572,70 @@ impl Model {
         FlowLaw::new(spec).map_err(|e| format!("flow law: {e}"))
     }
 
+    /// Whether every pass's sizes, strain, law and back tension are the
+    /// nominal ones in every sample (only the dies' friction and angles
+    /// scatter): the die-independent part of each pass is then the same.
+    pub fn passes_are_fixed(&self) -> bool {
+        self.rod.is_none()
+            && self.die_diameter.is_none()
+            && self.flow_spread.is_none()
+            && self.back_tension.is_none()
+    }
+
+    /// The die-independent part of every draw pass ([`PreparedPass`]), made
+    /// once, when no sample moves it ([`Model::passes_are_fixed`]); `None`
+    /// otherwise, or when the nominal passes themselves are refused (each
+    /// sample then says why).
+    pub fn prepare(&self) -> Option<Vec<PreparedPass<'_>>> {
+        if !self.passes_are_fixed() {
+            return None;
+        }
+        let mut out = Vec::with_capacity(self.draws);
+        let (mut law, mut strain, mut d_in) =
+            (&self.flow, self.start_strain, self.start_diameter_mm);
+        for s in &self.steps {
+            match s {
+                NominalStep::Anneal => {
+                    law = &self.annealed;
+                    strain = 0.0;
+                }
+                NominalStep::Draw {
+                    exit_diameter_mm,
+                    die,
+                    back_tension_mpa,
+                    ..
+                } => {
+                    let dp = DrawPass {
+                        entry_diameter_mm: d_in,
+                        exit_diameter_mm: *exit_diameter_mm,
+                        strain_before: strain,
+                        back_tension_mpa: *back_tension_mpa,
+                        die: *die,
+                    };
+                    let p = PreparedPass::new(law, &dp, &self.settings).ok()?;
+                    strain += p.pass_strain();
+                    d_in = *exit_diameter_mm;
+                    out.push(p);
+                }
+            }
+        }
+        Some(out)
+    }
+
     /// Evaluates one sample with scores `z` (or the nominal schedule with
     /// `None`) into `out`; an `Err` names why the drawn inputs were refused.
     pub fn evaluate(&self, z: Option<&[f64]>, out: &mut SampleOut) -> Result<(), String> {
+        self.evaluate_prepared(z, None, out)
+    }
+
+    /// [`Model::evaluate`] with the passes of [`Model::prepare`] when given:
+    /// the same figures, without preparing each pass again.
+    pub fn evaluate_prepared(
+        &self,
+        z: Option<&[f64]>,
+        prepared: Option<&[PreparedPass<'_>]>,
+        out: &mut SampleOut,
+    ) -> Result<(), String> {
         // Flow-law deviations d = L z.
         let laws = match (z, &self.flow_spread) {
             (Some(z), Some((f, first))) => {
@@ -715,8 +776,15 @@ impl Model {
             };
             // Only the governing stress, not every method's figures: the
             // same value `analyse_pass(..).draw_stress_mpa.get(method)` gives.
-            let prepared = PreparedPass::new(law, &dp, &self.settings)
-                .map_err(|e| format!("step {step}: {e}"))?;
+            let made;
+            let prepared = match prepared {
+                Some(p) => &p[j],
+                None => {
+                    made = PreparedPass::new(law, &dp, &self.settings)
+                        .map_err(|e| format!("step {step}: {e}"))?;
+                    &made
+                }
+            };
             let governing = prepared
                 .stress_mpa(&die, self.method)
                 .map_err(|e| format!("step {step}: {e}"))?;
@@ -891,8 +959,46 @@ mod tests {
             };
             let mut n = Necking::scan(&solver, &law);
             let (broke, strength) = n.breaks(&law, governing, strain, flow_exit);
-            assert_eq!(broke, governing >= uts, "{law:?} at {strain}: {governing} vs {uts}");
+            assert_eq!(
+                broke,
+                governing >= uts,
+                "{law:?} at {strain}: {governing} vs {uts}"
+            );
             assert!(strength.is_nan() || strength.to_bits() == uts.to_bits());
+        }
+    }
+
+    #[test]
+    fn passes_prepared_once_give_what_preparing_each_sample_gives() {
+        // Only friction and angles scatter: the die-independent part of each
+        // pass is prepared once, and every figure of a sample is unchanged.
+        let text = "material: {density_kg_m3: 8940, specific_heat_j_kg_k: 385, flow: {law: hollomon, k_mpa: 530, n: 0.44}}
+start: {diameter: 8.0}
+dies: {semi_angle_deg: 6, friction: 0.05}
+limits: {method: max, draw_ratio_warn: 0.6, draw_ratio_max: 0.8}
+passes:
+  - exit: 7.2
+  - {exit: 6.5, back_tension_mpa: 20}
+  - anneal: {}
+  - exit: 5.8
+scatter:
+  friction: {distribution: lognormal, cv: 0.3, between_dies: 0.5}
+  semi_angle_deg: {distribution: uniform, tolerance: 1.0, between_dies: 0}
+";
+        let file = crate::schedule::parse(text).unwrap();
+        let model =
+            Model::new(&file, Method::Max, super::super::spreads(&file).unwrap().0).unwrap();
+        let prepared = model.prepare().expect("nothing but the dies scatters");
+        let mut u = uniforms(11);
+        let (mut a, mut b) = (model.buffer(), model.buffer());
+        for _ in 0..2000 {
+            let z: Vec<f64> = (0..model.dims).map(|_| u(-4.0, 4.0)).collect();
+            let ra = model.evaluate(Some(&z), &mut a);
+            let rb = model.evaluate_prepared(Some(&z), Some(&prepared), &mut b);
+            assert_eq!(ra, rb);
+            assert_eq!(a.ratio, b.ratio);
+            assert_eq!(a.breaks, b.breaks);
+            assert_eq!(a.driver_scores, b.driver_scores);
         }
     }
 }
