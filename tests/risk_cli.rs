@@ -301,9 +301,13 @@ fn samples_the_model_refuses_are_counted_and_warned_about() {
         ),
     )
     .unwrap();
+    // The copy names its machine relative to the demo folder: give it here.
+    let machine = root("machines/harrow-lane-dry-7.yaml");
     let o = coldpass(&[
         "risk",
         file.to_str().unwrap(),
+        "--machine",
+        machine.to_str().unwrap(),
         "--samples",
         "2000",
         "--format",
@@ -354,5 +358,81 @@ fn ctrl_c_stops_the_run_and_writes_nothing() {
     assert!(stderr(&o).contains("nothing was written"), "{}", stderr(&o));
     assert!(!out.exists() && !svg.exists());
     // No temporary file left beside the targets either.
+    assert_eq!(std::fs::read_dir(dir.path()).unwrap().count(), 0);
+}
+
+#[test]
+fn kept_samples_count_the_same_over_warn_passes_as_the_report() {
+    // The CSV is an independent record of the run: counting its draw ratios
+    // over the warn line must give the report's probability exactly.
+    let dir = tempfile::tempdir().unwrap();
+    let csv_path = dir.path().join("samples.csv");
+    let csv_arg = csv_path.to_str().unwrap();
+    let o = coldpass(&[
+        "risk",
+        DEMO,
+        "--samples",
+        "3000",
+        "--format",
+        "json",
+        "--keep-samples",
+        csv_arg,
+    ]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let rep: serde_json::Value = serde_json::from_str(&stdout(&o)).unwrap();
+    let mut r = csv::Reader::from_path(&csv_path).unwrap();
+    let header = r.headers().unwrap().clone();
+    assert_eq!(&header[0], "sample");
+    assert!(header.iter().any(|h| h == "step4.friction"), "{header:?}");
+    let rows: Vec<csv::StringRecord> = r.records().map(|x| x.unwrap()).collect();
+    assert_eq!(rows.len(), 3000);
+    let warn = rep["draw_ratio_warn"].as_f64().unwrap();
+    for p in rep["passes"].as_array().unwrap() {
+        let step = p["step"].as_u64().unwrap();
+        let col = header
+            .iter()
+            .position(|h| h == format!("step{step}.draw_ratio"))
+            .unwrap();
+        let over = rows
+            .iter()
+            .filter(|row| row[col].parse::<f64>().unwrap() > warn)
+            .count();
+        // Six significant digits in the file: a ratio within 5e-7 of the line could round across it.
+        let near = rows
+            .iter()
+            .filter(|row| (row[col].parse::<f64>().unwrap() - warn).abs() < 1e-6)
+            .count();
+        let p_over = p["over_warn_probability"].as_f64().unwrap() * 3000.0;
+        assert!(
+            (over as f64 - p_over).abs() <= near as f64 + 1e-9,
+            "step {step}: {over} rows over warn, report {p_over}"
+        );
+    }
+    // Every sample index once, in order.
+    for (i, row) in rows.iter().enumerate() {
+        assert_eq!(row[0].parse::<usize>().unwrap(), i);
+    }
+}
+
+#[test]
+fn kept_samples_into_a_folder_that_does_not_exist_write_nothing_at_all() {
+    let dir = tempfile::tempdir().unwrap();
+    let report = dir.path().join("report.json");
+    let o = coldpass(&[
+        "risk",
+        DEMO,
+        "--samples",
+        "500",
+        "-o",
+        report.to_str().unwrap(),
+        "--keep-samples",
+        dir.path().join("missing/samples.csv").to_str().unwrap(),
+    ]);
+    assert_ne!(o.status.code(), Some(0));
+    assert!(stderr(&o).contains("--keep-samples"), "{}", stderr(&o));
+    assert!(
+        !report.exists(),
+        "the report was written although the samples were not"
+    );
     assert_eq!(std::fs::read_dir(dir.path()).unwrap().count(), 0);
 }

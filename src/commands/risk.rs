@@ -51,6 +51,14 @@ pub struct RiskArgs {
     /// Governing method, overriding the file's `limits.method`.
     #[arg(long, value_name = "NAME", value_parser = method_parser())]
     pub method: Option<Method>,
+    /// Run the schedule on this machine file (YAML), overriding the file's
+    /// `machine:`: each block's load is held to its own motor.
+    #[arg(long, value_name = "FILE")]
+    pub machine: Option<PathBuf>,
+    /// Also write every sample (its drawn inputs and each pass's draw ratio,
+    /// one row a sample) to this CSV file; without it no sample is stored.
+    #[arg(long, value_name = "FILE.csv")]
+    pub keep_samples: Option<PathBuf>,
     #[command(flatten)]
     pub report: ReportArgs,
 }
@@ -73,6 +81,7 @@ pub fn run(args: &RiskArgs) -> Result<u8> {
         file = d.schedule;
         file.scatter = scatter;
     }
+    let machine = super::check::machine_of(&args.file, args.machine.as_deref(), &file)?;
     let options = RiskOptions {
         samples: args.samples,
         seed: args.seed,
@@ -103,7 +112,28 @@ pub fn run(args: &RiskArgs) -> Result<u8> {
             b.set_position(done);
         }
     };
-    let result = risk::assess(&file, &options, &progress, &cancel);
+    let mut kept = match &args.keep_samples {
+        Some(_) => Some(KeptSamples::new(
+            &risk::sample_columns(&file)
+                .with_context(|| format!("assessing the break risk of '{name}'"))?,
+        )?),
+        None => None,
+    };
+    let mut keep = |i: u64, values: &[f64], why: Option<&str>| {
+        if let Some(k) = kept.as_mut() {
+            k.add(i, values, why);
+        }
+    };
+    let result = risk::assess_keeping(
+        &file,
+        &options,
+        machine.as_ref().map(|(_, m)| m),
+        &progress,
+        &cancel,
+        args.keep_samples
+            .is_some()
+            .then_some(&mut keep as risk::KeepSample<'_>),
+    );
     if let Some(b) = &bar {
         b.finish_and_clear();
     }
@@ -120,9 +150,17 @@ pub fn run(args: &RiskArgs) -> Result<u8> {
         Some(_) => Some(report::risk::svg(&rep)?),
         None => None,
     };
-    let mut outputs = output::Outputs::new(&[&args.file]);
+    // Neither the schedule nor its machine file may be overwritten by an output.
+    let mut inputs = vec![args.file.as_path()];
+    if let Some((path, _)) = &machine {
+        inputs.push(path.as_path());
+    }
+    let mut outputs = output::Outputs::new(&inputs);
     if let (Some(path), Some(svg)) = (&args.report.plot, chart) {
         outputs.file("--plot", path, svg);
+    }
+    if let (Some(path), Some(k)) = (&args.keep_samples, kept) {
+        outputs.file("--keep-samples", path, k.finish()?);
     }
     outputs.report(args.report.output.as_deref(), body);
     outputs.write()?;
@@ -131,4 +169,64 @@ pub fn run(args: &RiskArgs) -> Result<u8> {
     } else {
         EXIT_OK
     })
+}
+
+/// The `--keep-samples` CSV, built in memory and written with the report
+/// (whole or not at all): a `sample` column, the model's columns, `refused`
+/// (why the model refused the sample, empty when it did not) and the
+/// caution on the first row. Figures to [`report::csv::SIGNIFICANT_DIGITS`]
+/// digits, like every CSV; a figure the sample never reached is empty.
+struct KeptSamples {
+    writer: ::csv::Writer<Vec<u8>>,
+    row: Vec<String>,
+    first: bool,
+    error: Option<String>,
+}
+
+impl KeptSamples {
+    fn new(columns: &[String]) -> Result<Self> {
+        let mut writer = ::csv::Writer::from_writer(Vec::new());
+        let mut header = vec!["sample".to_string()];
+        header.extend(columns.iter().cloned());
+        header.push("refused".into());
+        header.push("caution".into());
+        writer.write_record(&header)?;
+        Ok(Self {
+            writer,
+            row: Vec::with_capacity(header.len()),
+            first: true,
+            error: None,
+        })
+    }
+
+    fn add(&mut self, index: u64, values: &[f64], why: Option<&str>) {
+        self.row.clear();
+        self.row.push(index.to_string());
+        self.row.extend(values.iter().map(|&v| {
+            if v.is_nan() {
+                String::new()
+            } else {
+                report::csv::sig(v)
+            }
+        }));
+        self.row.push(why.unwrap_or_default().to_string());
+        self.row.push(if self.first {
+            coldpass::evaluation::CAUTION.to_string()
+        } else {
+            String::new()
+        });
+        self.first = false;
+        if let Err(e) = self.writer.write_record(&self.row) {
+            self.error.get_or_insert(e.to_string());
+        }
+    }
+
+    fn finish(self) -> Result<Vec<u8>> {
+        if let Some(e) = self.error {
+            anyhow::bail!("writing the kept samples: {e}");
+        }
+        self.writer
+            .into_inner()
+            .map_err(|e| anyhow::anyhow!("writing the kept samples: {e}"))
+    }
 }

@@ -2,6 +2,7 @@
 //! bytes; only `crate::output` writes them anywhere.
 
 pub mod catalogue;
+pub mod chart;
 pub mod columns;
 pub mod compare;
 pub mod csv;

@@ -429,14 +429,10 @@ pub fn csv(rep: &RiskReport) -> Result<Vec<u8>> {
     w.into_inner().map_err(|e| anyhow!("writing CSV: {e}"))
 }
 
-const BAND: RGBColor = RGBColor(31, 119, 180);
-const WARN: RGBColor = RGBColor(230, 145, 20);
-const OVER: RGBColor = RGBColor(200, 30, 30);
-const GREY: RGBColor = RGBColor(110, 110, 110);
-
-fn err<E: std::fmt::Display>(e: E) -> anyhow::Error {
-    anyhow!("drawing the chart: {e}")
-}
+use super::chart::{
+    bar, count_mesh, err, framed, legend, level_lines, limit_lines, page_title, Area, DARK_GREY,
+    OK as BAND, OVER, WIDE,
+};
 
 /// The chart: draw-ratio fan per pass, and break probability per pass.
 pub fn svg(rep: &RiskReport) -> Result<Vec<u8>> {
@@ -444,11 +440,7 @@ pub fn svg(rep: &RiskReport) -> Result<Vec<u8>> {
     {
         let root = SVGBackend::with_string(&mut buf, (960, 760)).into_drawing_area();
         root.fill(&WHITE).map_err(err)?;
-        let title = if rep.title.is_empty() {
-            "Schedule".to_string()
-        } else {
-            rep.title.clone()
-        };
+        let title = page_title(&rep.title);
         let root = root
             .titled(
                 &format!(
@@ -475,7 +467,7 @@ fn step_labels(rep: &RiskReport, x: f64) -> String {
     }
 }
 
-fn fan(rep: &RiskReport, area: &DrawingArea<SVGBackend, plotters::coord::Shift>) -> Result<()> {
+fn fan(rep: &RiskReport, area: &Area<'_>) -> Result<()> {
     let n = rep.passes.len() as f64;
     let cap = |x: Option<f64>| x.unwrap_or(2.0);
     let top = rep
@@ -485,25 +477,21 @@ fn fan(rep: &RiskReport, area: &DrawingArea<SVGBackend, plotters::coord::Shift>)
         .fold(rep.draw_ratio_max.max(1.0), f64::max)
         * 1.1;
     let room = 0.12 * n.max(8.0);
-    let mut chart = ChartBuilder::on(area)
-        .caption(
-            "Draw ratio per pass: median and 5-95 % band under scatter",
-            ("sans-serif", 15),
-        )
-        .margin(12)
-        .x_label_area_size(36)
-        .y_label_area_size(56)
-        .build_cartesian_2d(0.5f64..n + 0.5 + room, 0f64..top)
-        .map_err(err)?;
-    chart
-        .configure_mesh()
-        .x_desc("step")
-        .y_desc("draw ratio")
-        .x_labels((n + room).ceil() as usize + 1)
-        .x_label_formatter(&|x| step_labels(rep, *x))
-        .light_line_style(WHITE.mix(0.0))
-        .draw()
-        .map_err(err)?;
+    let mut chart = framed(
+        area,
+        "Draw ratio per pass: median and 5-95 % band under scatter",
+        15,
+        WIDE,
+        0.5f64..n + 0.5 + room,
+        0f64..top,
+    )?;
+    count_mesh(
+        &mut chart,
+        "step",
+        "draw ratio",
+        (n + room).ceil() as usize + 1,
+        &|x| step_labels(rep, *x),
+    )?;
     let xs = |i: usize| (i + 1) as f64;
     let mut band: Vec<(f64, f64)> = rep
         .passes
@@ -544,46 +532,21 @@ fn fan(rep: &RiskReport, area: &DrawingArea<SVGBackend, plotters::coord::Shift>)
         .map_err(err)?
         .label("nominal (check)")
         .legend(|(x, y)| Circle::new((x + 6, y), 3, BLACK.filled()));
-    for (level, colour, label) in [
-        (
-            rep.draw_ratio_warn,
-            WARN,
-            format!("warn {}", rep.draw_ratio_warn),
-        ),
-        (
-            rep.draw_ratio_max,
-            OVER,
-            format!("max {}", rep.draw_ratio_max),
-        ),
-        (1.0, GREY, "break 1".to_string()),
-    ] {
-        chart
-            .draw_series(DashedLineSeries::new(
-                vec![(0.5, level), (n + 0.5 + room, level)],
-                10,
-                5,
-                colour.stroke_width(2),
-            ))
-            .map_err(err)?;
-        chart
-            .draw_series(std::iter::once(Text::new(
-                label,
-                (n + 0.55, level + top * 0.035),
-                ("sans-serif", 13).into_font().color(&colour),
-            )))
-            .map_err(err)?;
-    }
-    chart
-        .configure_series_labels()
-        .position(SeriesLabelPosition::UpperLeft)
-        .background_style(WHITE.mix(0.85))
-        .border_style(BLACK)
-        .draw()
-        .map_err(err)?;
-    Ok(())
+    level_lines(
+        &mut chart,
+        {
+            let mut lines = limit_lines(rep.draw_ratio_warn, rep.draw_ratio_max);
+            lines.push((1.0, DARK_GREY, "break 1".to_string()));
+            lines
+        },
+        n + 0.5 + room,
+        n + 0.55,
+        top * 0.035,
+    )?;
+    legend(&mut chart, SeriesLabelPosition::UpperLeft)
 }
 
-fn bars(rep: &RiskReport, area: &DrawingArea<SVGBackend, plotters::coord::Shift>) -> Result<()> {
+fn bars(rep: &RiskReport, area: &Area<'_>) -> Result<()> {
     let n = rep.passes.len() as f64;
     let top_pct = rep
         .passes
@@ -593,32 +556,25 @@ fn bars(rep: &RiskReport, area: &DrawingArea<SVGBackend, plotters::coord::Shift>
         .max(0.1)
         * 1.15;
     let room = 0.12 * n.max(8.0);
-    let mut chart = ChartBuilder::on(area)
-        .caption(
-            "Break probability per pass (%, bar; whisker: +- 2 standard errors)",
-            ("sans-serif", 15),
-        )
-        .margin(12)
-        .x_label_area_size(36)
-        .y_label_area_size(56)
-        .build_cartesian_2d(0.5f64..n + 0.5 + room, 0f64..top_pct)
-        .map_err(err)?;
-    chart
-        .configure_mesh()
-        .x_desc("step")
-        .y_desc("break probability, %")
-        .x_labels((n + room).ceil() as usize + 1)
-        .x_label_formatter(&|x| step_labels(rep, *x))
-        .light_line_style(WHITE.mix(0.0))
-        .draw()
-        .map_err(err)?;
+    let mut chart = framed(
+        area,
+        "Break probability per pass (%, bar; whisker: +- 2 standard errors)",
+        15,
+        WIDE,
+        0.5f64..n + 0.5 + room,
+        0f64..top_pct,
+    )?;
+    count_mesh(
+        &mut chart,
+        "step",
+        "break probability, %",
+        (n + room).ceil() as usize + 1,
+        &|x| step_labels(rep, *x),
+    )?;
     chart
         .draw_series(rep.passes.iter().enumerate().map(|(i, p)| {
             let x = (i + 1) as f64;
-            Rectangle::new(
-                [(x - 0.3, 0.0), (x + 0.3, 100.0 * p.break_probability)],
-                OVER.mix(0.8).filled(),
-            )
+            bar(x, 100.0 * p.break_probability, OVER.mix(0.8).filled())
         }))
         .map_err(err)?;
     chart

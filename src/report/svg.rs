@@ -4,20 +4,16 @@
 //! load per block against 100 % and the wire temperature in and out of each
 //! die against the limit. The caution runs along the foot.
 
-use anyhow::{anyhow, Result};
+use anyhow::Result;
 use coldpass::evaluation::{ScheduleReport, StepKind};
 use coldpass::machine::MachineRun;
 use coldpass::schedule::ScheduleFile;
 use plotters::prelude::*;
 
-const OK: RGBColor = RGBColor(31, 119, 180);
-const WARN: RGBColor = RGBColor(230, 145, 20);
-const OVER: RGBColor = RGBColor(200, 30, 30);
-const GREY: RGBColor = RGBColor(150, 150, 150);
-
-fn err<E: std::fmt::Display>(e: E) -> anyhow::Error {
-    anyhow!("drawing the chart: {e}")
-}
+use super::chart::{
+    anneal_line, bar, count_mesh, err, framed, legend, level_lines, limit_lines, page_title,
+    whole_number, Area, Frame, GREY, HALF, OK, OVER, WARN, WIDE,
+};
 
 /// Draws the chart of a checked schedule; `file` gives the laws for the curves.
 pub fn schedule(rep: &ScheduleReport, file: &ScheduleFile) -> Result<Vec<u8>> {
@@ -26,11 +22,7 @@ pub fn schedule(rep: &ScheduleReport, file: &ScheduleFile) -> Result<Vec<u8>> {
         let height = if rep.machine.is_some() { 1120 } else { 780 };
         let root = SVGBackend::with_string(&mut buf, (960, height)).into_drawing_area();
         root.fill(&WHITE).map_err(err)?;
-        let title = if rep.title.is_empty() {
-            "Schedule".to_string()
-        } else {
-            rep.title.clone()
-        };
+        let title = page_title(&rep.title);
         let root = root
             .titled(
                 &format!("{title}  (method: {})", rep.method),
@@ -68,10 +60,7 @@ pub fn schedule(rep: &ScheduleReport, file: &ScheduleFile) -> Result<Vec<u8>> {
     Ok(buf.into_bytes())
 }
 
-fn draw_ratios(
-    rep: &ScheduleReport,
-    area: &DrawingArea<SVGBackend, plotters::coord::Shift>,
-) -> Result<()> {
+fn draw_ratios(rep: &ScheduleReport, area: &Area<'_>) -> Result<()> {
     let n = rep.passes.len() as f64;
     let top = rep
         .passes
@@ -81,81 +70,35 @@ fn draw_ratios(
         * 1.4;
     // Room right of the last bar for the labels of the warn and max lines.
     let label_room = 0.12 * n.max(8.0);
-    let mut chart = ChartBuilder::on(area)
-        .caption(
-            "Draw ratio per pass (drawing stress / exit flow stress)",
-            ("sans-serif", 16),
-        )
-        .margin(12)
-        .x_label_area_size(36)
-        .y_label_area_size(56)
-        .build_cartesian_2d(0.5f64..n + 0.5 + label_room, 0f64..top)
-        .map_err(err)?;
-    chart
-        .configure_mesh()
-        .x_desc("step")
-        .y_desc("draw ratio")
-        .x_labels((n + label_room).ceil() as usize + 1)
-        // Only the step numbers: no tick in the label room, none between steps.
-        .x_label_formatter(&|x| {
-            let k = x.round();
-            if (x - k).abs() < 1e-6 && k >= 1.0 && k <= n {
-                format!("{k:.0}")
-            } else {
-                String::new()
-            }
-        })
-        .light_line_style(WHITE.mix(0.0))
-        .draw()
-        .map_err(err)?;
+    let mut chart = framed(
+        area,
+        "Draw ratio per pass (drawing stress / exit flow stress)",
+        16,
+        WIDE,
+        0.5f64..n + 0.5 + label_room,
+        0f64..top,
+    )?;
+    // Only the step numbers: no tick in the label room, none between steps.
+    count_mesh(
+        &mut chart,
+        "step",
+        "draw ratio",
+        (n + label_room).ceil() as usize + 1,
+        &|x| whole_number(*x, n),
+    )?;
     for r in rep.passes.iter().filter(|r| r.kind == StepKind::Anneal) {
         let x = r.step as f64;
-        chart
-            .draw_series(DashedLineSeries::new(
-                vec![(x, 0.0), (x, top)],
-                6,
-                4,
-                GREY.stroke_width(2),
-            ))
-            .map_err(err)?;
-        chart
-            .draw_series(std::iter::once(Text::new(
-                "anneal",
-                (x + 0.08, top * 0.95),
-                ("sans-serif", 13).into_font().color(&GREY),
-            )))
-            .map_err(err)?;
+        anneal_line(&mut chart, x, top, (x + 0.08, top * 0.95))?;
     }
     // The warn and max lines are labelled past the last bar, so the legend only
     // has to explain the bar colours.
-    for (level, colour, label) in [
-        (
-            rep.draw_ratio_warn,
-            WARN,
-            format!("warn {}", rep.draw_ratio_warn),
-        ),
-        (
-            rep.draw_ratio_max,
-            OVER,
-            format!("max {}", rep.draw_ratio_max),
-        ),
-    ] {
-        chart
-            .draw_series(DashedLineSeries::new(
-                vec![(0.5, level), (n + 0.5 + label_room, level)],
-                10,
-                5,
-                colour.stroke_width(2),
-            ))
-            .map_err(err)?;
-        chart
-            .draw_series(std::iter::once(Text::new(
-                label,
-                (n + 0.55, level + top * 0.045),
-                ("sans-serif", 13).into_font().color(&colour),
-            )))
-            .map_err(err)?;
-    }
+    level_lines(
+        &mut chart,
+        limit_lines(rep.draw_ratio_warn, rep.draw_ratio_max),
+        n + 0.5 + label_room,
+        n + 0.55,
+        top * 0.045,
+    )?;
     let status = |d: f64| {
         if d > rep.draw_ratio_max {
             OVER
@@ -172,9 +115,9 @@ fn draw_ratios(
         .collect();
     chart
         .draw_series(
-            points.iter().map(|&(x, y, c)| {
-                Rectangle::new([(x - 0.3, 0.0), (x + 0.3, y)], c.mix(0.85).filled())
-            }),
+            points
+                .iter()
+                .map(|&(x, y, c)| bar(x, y, c.mix(0.85).filled())),
         )
         .map_err(err)?;
     // Legend entries for the three bar colours (empty series carry the labels).
@@ -189,21 +132,10 @@ fn draw_ratios(
             .label(label)
             .legend(move |(x, y)| Rectangle::new([(x, y - 5), (x + 12, y + 5)], colour.filled()));
     }
-    chart
-        .configure_series_labels()
-        .position(SeriesLabelPosition::UpperLeft)
-        .background_style(WHITE.mix(0.85))
-        .border_style(BLACK)
-        .draw()
-        .map_err(err)?;
-    Ok(())
+    legend(&mut chart, SeriesLabelPosition::UpperLeft)
 }
 
-fn draw_flow(
-    rep: &ScheduleReport,
-    file: &ScheduleFile,
-    area: &DrawingArea<SVGBackend, plotters::coord::Shift>,
-) -> Result<()> {
+fn draw_flow(rep: &ScheduleReport, file: &ScheduleFile, area: &Area<'_>) -> Result<()> {
     // x: total strain drawn since the start (never reset); y: flow stress.
     let mut segments: Vec<Vec<(f64, f64)>> = Vec::new();
     let mut exits: Vec<(f64, f64, usize)> = Vec::new();
@@ -232,13 +164,17 @@ fn draw_flow(
     }
     let ymax = segments.iter().flatten().map(|p| p.1).fold(0.0, f64::max) * 1.12;
     let xmax = x.max(1e-6) * 1.03;
-    let mut chart = ChartBuilder::on(area)
-        .caption("Flow stress against total strain drawn", ("sans-serif", 16))
-        .margin(12)
-        .x_label_area_size(40)
-        .y_label_area_size(56)
-        .build_cartesian_2d(0f64..xmax, 0f64..ymax.max(1.0))
-        .map_err(err)?;
+    let mut chart = framed(
+        area,
+        "Flow stress against total strain drawn",
+        16,
+        Frame {
+            x_labels: 40,
+            ..WIDE
+        },
+        0f64..xmax,
+        0f64..ymax.max(1.0),
+    )?;
     chart
         .configure_mesh()
         .x_desc("total true strain drawn from the start")
@@ -247,22 +183,8 @@ fn draw_flow(
         .light_line_style(WHITE.mix(0.0))
         .draw()
         .map_err(err)?;
-    for a in &anneals {
-        chart
-            .draw_series(DashedLineSeries::new(
-                vec![(*a, 0.0), (*a, ymax)],
-                6,
-                4,
-                GREY.stroke_width(2),
-            ))
-            .map_err(err)?;
-        chart
-            .draw_series(std::iter::once(Text::new(
-                "anneal",
-                (*a + xmax * 0.005, ymax * 0.06),
-                ("sans-serif", 13).into_font().color(&GREY),
-            )))
-            .map_err(err)?;
+    for &a in &anneals {
+        anneal_line(&mut chart, a, ymax, (a + xmax * 0.005, ymax * 0.06))?;
     }
     for (i, seg) in segments.into_iter().enumerate() {
         let s = chart
@@ -298,17 +220,8 @@ fn draw_flow(
                 }),
         )
         .map_err(err)?;
-    chart
-        .configure_series_labels()
-        .position(SeriesLabelPosition::LowerRight)
-        .background_style(WHITE.mix(0.85))
-        .border_style(BLACK)
-        .draw()
-        .map_err(err)?;
-    Ok(())
+    legend(&mut chart, SeriesLabelPosition::LowerRight)
 }
-
-type Area<'a> = DrawingArea<SVGBackend<'a>, plotters::coord::Shift>;
 
 /// Motor load per block (bars, coloured against 100 %).
 fn draw_load(m: &MachineRun, area: &Area<'_>) -> Result<()> {
@@ -324,32 +237,21 @@ fn draw_load(m: &MachineRun, area: &Area<'_>) -> Result<()> {
         .iter()
         .map(|b| 100.0 * b.motor_load)
         .fold(0.0, f64::min);
-    let mut chart = ChartBuilder::on(area)
-        .caption(
-            format!("Motor load per block at {:.2} m/s", m.running_speed_m_s),
-            ("sans-serif", 15),
-        )
-        .margin(10)
-        .x_label_area_size(34)
-        .y_label_area_size(48)
-        .build_cartesian_2d(0.5f64..n + 0.5, bottom..top)
-        .map_err(err)?;
-    chart
-        .configure_mesh()
-        .x_desc("block")
-        .y_desc("load, % of rating")
-        .x_labels(m.blocks.len() + 1)
-        .x_label_formatter(&|x| {
-            let k = x.round();
-            if (x - k).abs() < 1e-6 && k >= 1.0 && k <= n {
-                format!("{k:.0}")
-            } else {
-                String::new()
-            }
-        })
-        .light_line_style(WHITE.mix(0.0))
-        .draw()
-        .map_err(err)?;
+    let mut chart = framed(
+        area,
+        &format!("Motor load per block at {:.2} m/s", m.running_speed_m_s),
+        15,
+        HALF,
+        0.5f64..n + 0.5,
+        bottom..top,
+    )?;
+    count_mesh(
+        &mut chart,
+        "block",
+        "load, % of rating",
+        m.blocks.len() + 1,
+        &|x| whole_number(*x, n),
+    )?;
     chart
         .draw_series(DashedLineSeries::new(
             vec![(0.5, 100.0), (n + 0.5, 100.0)],
@@ -365,17 +267,10 @@ fn draw_load(m: &MachineRun, area: &Area<'_>) -> Result<()> {
             let x = b.block as f64;
             let y = 100.0 * b.motor_load;
             let c = if b.motor_load > 1.0 { OVER } else { OK };
-            Rectangle::new([(x - 0.3, 0.0), (x + 0.3, y)], c.mix(0.85).filled())
+            bar(x, y, c.mix(0.85).filled())
         }))
         .map_err(err)?;
-    chart
-        .configure_series_labels()
-        .position(SeriesLabelPosition::UpperLeft)
-        .background_style(WHITE.mix(0.85))
-        .border_style(BLACK)
-        .draw()
-        .map_err(err)?;
-    Ok(())
+    legend(&mut chart, SeriesLabelPosition::UpperLeft)
 }
 
 /// Wire temperature into and out of each block's die, against the limit.
@@ -392,35 +287,24 @@ fn draw_heat(m: &MachineRun, area: &Area<'_>) -> Result<()> {
         .map(|b| b.wire_temperature_in_c)
         .fold(f64::INFINITY, f64::min)
         .min(0.0);
-    let mut chart = ChartBuilder::on(area)
-        .caption(
-            format!(
-                "Wire temperature, cooling {:.0} % between dies",
-                100.0 * m.cooling_between_dies
-            ),
-            ("sans-serif", 15),
-        )
-        .margin(10)
-        .x_label_area_size(34)
-        .y_label_area_size(48)
-        .build_cartesian_2d(0.5f64..n + 0.5, coolest..hottest * 1.2 + 1.0)
-        .map_err(err)?;
-    chart
-        .configure_mesh()
-        .x_desc("block")
-        .y_desc("wire temperature, C")
-        .x_labels(m.blocks.len() + 1)
-        .x_label_formatter(&|x| {
-            let k = x.round();
-            if (x - k).abs() < 1e-6 && k >= 1.0 && k <= n {
-                format!("{k:.0}")
-            } else {
-                String::new()
-            }
-        })
-        .light_line_style(WHITE.mix(0.0))
-        .draw()
-        .map_err(err)?;
+    let mut chart = framed(
+        area,
+        &format!(
+            "Wire temperature, cooling {:.0} % between dies",
+            100.0 * m.cooling_between_dies
+        ),
+        15,
+        HALF,
+        0.5f64..n + 0.5,
+        coolest..hottest * 1.2 + 1.0,
+    )?;
+    count_mesh(
+        &mut chart,
+        "block",
+        "wire temperature, C",
+        m.blocks.len() + 1,
+        &|x| whole_number(*x, n),
+    )?;
     if let Some(t) = m.wire_temperature_max_c {
         chart
             .draw_series(DashedLineSeries::new(
@@ -459,12 +343,5 @@ fn draw_heat(m: &MachineRun, area: &Area<'_>) -> Result<()> {
             )
         }))
         .map_err(err)?;
-    chart
-        .configure_series_labels()
-        .position(SeriesLabelPosition::UpperLeft)
-        .background_style(WHITE.mix(0.85))
-        .border_style(BLACK)
-        .draw()
-        .map_err(err)?;
-    Ok(())
+    legend(&mut chart, SeriesLabelPosition::UpperLeft)
 }

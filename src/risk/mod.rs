@@ -22,9 +22,11 @@
 //! chosen over a rank correlation because it streams: Spearman's needs every
 //! sample's rank.
 
+pub mod considere;
 pub mod distribution;
 pub mod model;
 pub mod plan;
+mod report;
 pub mod scatter;
 pub mod stats;
 
@@ -33,13 +35,14 @@ use std::sync::atomic::{AtomicBool, Ordering};
 use rayon::prelude::*;
 use serde::Serialize;
 
-use crate::evaluation::{self, EvaluateOptions, StepKind};
+use crate::evaluation::{self, EvaluateOptions};
+use crate::machine::Machine;
 use crate::param::ParamError;
 use crate::pass::Method;
 use crate::schedule::{ScheduleError, ScheduleFile};
 
 pub use distribution::{Law, Shape, Spread};
-pub use model::{Driver, Model, SampleOut, Spreads};
+pub use model::{BlockLimit, Driver, Model, SampleOut, Spreads};
 pub use plan::{Plan, Sampling};
 pub use scatter::{Correlation, DieSpread, FlowScatter, FlowSpread, Scatter};
 pub use stats::Tally;
@@ -153,7 +156,10 @@ pub struct PassRisk {
     pub over_max_probability: f64,
     /// Its standard error.
     pub over_max_standard_error: f64,
-    /// Probability that the pulling power is over `line.block_power_kw`.
+    /// Probability that the block after the die is over its rating: its net
+    /// power over `line.block_power_kw`, or on a machine its motor load
+    /// (net pull, drive efficiency) over the block's `motor_kw`, by the test
+    /// `check` flags `over-block-power` with.
     pub over_block_power_probability: Option<f64>,
     /// Its standard error.
     pub over_block_power_standard_error: Option<f64>,
@@ -322,6 +328,14 @@ pub fn spreads(file: &ScheduleFile) -> Result<(Spreads, Vec<InputScatter>), Risk
     ))
 }
 
+/// The names of the values [`assess_keeping`] hands over per sample
+/// ([`Model::sample_columns`]).
+pub fn sample_columns(file: &ScheduleFile) -> Result<Vec<String>, RiskError> {
+    let (spreads, _) = spreads(file)?;
+    let model = Model::new(file, Method::Sachs, spreads).map_err(RiskError::Nominal)?;
+    Ok(model.sample_columns())
+}
+
 /// The name of a driver in the report.
 pub fn driver_name(model: &Model, d: Driver) -> String {
     match d {
@@ -338,20 +352,51 @@ pub fn driver_name(model: &Model, d: Driver) -> String {
     }
 }
 
+/// The samples of one chunk as `--keep-samples` writes them: each sample's
+/// values in [`Model::sample_columns`] order, and why it was refused.
+#[derive(Debug, Clone, Default)]
+pub struct KeptChunk {
+    /// Values of every sample of the chunk, one after the other.
+    pub values: Vec<f64>,
+    /// Per sample: its index and, when refused, why.
+    pub samples: Vec<(u64, Option<String>)>,
+}
+
+/// What receives every kept sample, in index order: its index, its values
+/// in [`Model::sample_columns`] order, and why it was refused.
+pub type KeepSample<'a> = &'a mut dyn FnMut(u64, &[f64], Option<&str>);
+
 /// Evaluates chunk `c` of the plan into a tally.
 pub fn run_chunk(model: &Model, plan: &Plan, nominal: &[f64], c: u64) -> Tally {
+    run_chunk_keeping(model, plan, nominal, c, None)
+}
+
+/// [`run_chunk`], recording each sample into `kept` when given.
+pub fn run_chunk_keeping(
+    model: &Model,
+    plan: &Plan,
+    nominal: &[f64],
+    c: u64,
+    mut kept: Option<&mut KeptChunk>,
+) -> Tally {
     let lo = c * CHUNK_SAMPLES;
     let hi = (lo + CHUNK_SAMPLES).min(plan.samples);
     let nd = model.drivers.len();
     let (warn, max) = model.lines();
-    let block = model.block_power_kw().filter(|_| model.has_block_power());
+    let block = model.has_block_power();
     let mut t = Tally::new(model.draws, nd);
     let mut rng = plan.generator();
     let mut z = vec![0.0; model.dims];
     let mut out = model.buffer();
+    let prepared = model.prepare();
     for i in lo..hi {
         plan.scores(i, &mut rng, &mut z);
-        if let Err(why) = model.evaluate(Some(&z), &mut out) {
+        let result = model.evaluate_prepared(Some(&z), prepared.as_deref(), &mut out);
+        if let Some(k) = kept.as_deref_mut() {
+            model.sample_values(&out, result.is_ok(), &mut k.values);
+            k.samples.push((i, result.as_ref().err().cloned()));
+        }
+        if let Err(why) = result {
             t.rejected += 1;
             if t.first_rejection.is_none() {
                 t.first_rejection = Some((i, why));
@@ -376,10 +421,8 @@ pub fn run_chunk(model: &Model, plan: &Plan, nominal: &[f64], c: u64) -> Tally {
                 p.over_max += 1;
                 over = true;
             }
-            if let Some(b) = block {
-                if out.power_kw[j] > b {
-                    p.over_power += 1;
-                }
+            if block && out.over_block[j] {
+                p.over_power += 1;
             }
             p.lowest = p.lowest.min(r);
             p.highest = p.highest.max(r);
@@ -414,6 +457,21 @@ pub fn sample(
     progress: &(dyn Fn(u64) + Sync),
     cancel: &AtomicBool,
 ) -> Result<Tally, RiskError> {
+    sample_keeping(model, plan, nominal, progress, cancel, None)
+}
+
+/// [`sample`], handing every sample to `keep` in index order when given
+/// (a round's samples are held until they are handed over, so memory stays
+/// bounded by [`CHUNKS_PER_ROUND`] chunks).
+pub fn sample_keeping(
+    model: &Model,
+    plan: &Plan,
+    nominal: &[f64],
+    progress: &(dyn Fn(u64) + Sync),
+    cancel: &AtomicBool,
+    mut keep: Option<KeepSample<'_>>,
+) -> Result<Tally, RiskError> {
+    let width = model.sample_columns().len();
     let chunks = plan.samples.div_ceil(CHUNK_SAMPLES);
     let mut total = Tally::new(model.draws, model.drivers.len());
     let mut c = 0;
@@ -422,12 +480,22 @@ pub fn sample(
             return Err(RiskError::Cancelled);
         }
         let end = (c + CHUNKS_PER_ROUND).min(chunks);
-        let round: Vec<Tally> = (c..end)
+        let keeping = keep.is_some();
+        let round: Vec<(Tally, KeptChunk)> = (c..end)
             .into_par_iter()
-            .map(|k| run_chunk(model, plan, nominal, k))
+            .map(|k| {
+                let mut kept = KeptChunk::default();
+                let t = run_chunk_keeping(model, plan, nominal, k, keeping.then_some(&mut kept));
+                (t, kept)
+            })
             .collect();
-        for t in &round {
+        for (t, kept) in &round {
             total.merge(t);
+            if let Some(f) = keep.as_mut() {
+                for ((i, why), values) in kept.samples.iter().zip(kept.values.chunks(width)) {
+                    f(*i, values, why.as_deref());
+                }
+            }
         }
         c = end;
         progress((c * CHUNK_SAMPLES).min(plan.samples));
@@ -466,15 +534,47 @@ pub fn assess(
     progress: &(dyn Fn(u64) + Sync),
     cancel: &AtomicBool,
 ) -> Result<RiskReport, RiskError> {
+    assess_on(file, options, None, progress, cancel)
+}
+
+/// [`assess`] on `machine` (the schedule's `machine:` or `--machine`): the
+/// nominal schedule is `check`'s on that machine (`evaluation::evaluate_on`),
+/// the dancers give the back tension of a pass that has none, and each
+/// block's load is held to its own motor.
+pub fn assess_on(
+    file: &ScheduleFile,
+    options: &RiskOptions,
+    machine: Option<&Machine>,
+    progress: &(dyn Fn(u64) + Sync),
+    cancel: &AtomicBool,
+) -> Result<RiskReport, RiskError> {
+    assess_keeping(file, options, machine, progress, cancel, None)
+}
+
+/// [`assess_on`], handing every sample to `keep` (index order) when given,
+/// with its values in [`sample_columns`] order.
+pub fn assess_keeping(
+    file: &ScheduleFile,
+    options: &RiskOptions,
+    machine: Option<&Machine>,
+    progress: &(dyn Fn(u64) + Sync),
+    cancel: &AtomicBool,
+    keep: Option<KeepSample<'_>>,
+) -> Result<RiskReport, RiskError> {
     check_options(options)?;
-    let check = evaluation::evaluate(
+    let check = evaluation::evaluate_on(
         file,
         &EvaluateOptions {
             method: options.method,
         },
+        machine,
     )?;
     let (spreads, listed) = spreads(file)?;
-    let model = Model::new(file, check.method, spreads).map_err(RiskError::Nominal)?;
+    let on = match (machine, &check.machine) {
+        (Some(m), Some(run)) => Some((m, run)),
+        _ => None,
+    };
+    let model = Model::on(file, check.method, spreads, on).map_err(RiskError::Nominal)?;
     let mut nominal_out = model.buffer();
     model
         .evaluate(None, &mut nominal_out)
@@ -482,8 +582,8 @@ pub fn assess(
     let nominal = nominal_out.ratio.clone();
     let nominal_strength = nominal_out.tensile_strength_mpa.clone();
     let plan = Plan::new(options.samples, options.seed, options.sampling, model.dims);
-    let tally = sample(&model, &plan, &nominal, progress, cancel)?;
-    Ok(build_report(
+    let tally = sample_keeping(&model, &plan, &nominal, progress, cancel, keep)?;
+    Ok(report::build_report(
         file,
         options,
         &check,
@@ -492,223 +592,4 @@ pub fn assess(
         (&nominal, &nominal_strength),
         &tally,
     ))
-}
-
-fn build_report(
-    file: &ScheduleFile,
-    options: &RiskOptions,
-    check: &evaluation::ScheduleReport,
-    model: &Model,
-    listed: &[InputScatter],
-    (nominal, nominal_strength): (&[f64], &[f64]),
-    t: &Tally,
-) -> RiskReport {
-    let n = t.accepted;
-    let mut warnings = Vec::new();
-    let draw_rows: Vec<&evaluation::StepReport> = check
-        .passes
-        .iter()
-        .filter(|r| r.kind == StepKind::Draw)
-        .collect();
-    let has_power = model.has_block_power();
-    let mut passes = Vec::with_capacity(model.draws);
-    for (j, p) in t.passes.iter().enumerate() {
-        let row = draw_rows[j];
-        let (pb, sb) = stats::probability(p.breaks, n);
-        let (pw, sw) = stats::probability(p.over_warn, n);
-        let (pm, sm) = stats::probability(p.over_max, n);
-        let power = has_power.then(|| stats::probability(p.over_power, n));
-        let q = |x: f64| p.ratio.quantile(x, n, p.lowest, p.highest);
-        let mut drivers: Vec<DriverShare> = model
-            .drivers
-            .iter()
-            .enumerate()
-            .filter_map(|(k, d)| {
-                p.correlation(k, n).map(|r| DriverShare {
-                    input: driver_name(model, *d),
-                    correlation: r,
-                    share: r * r,
-                })
-            })
-            .collect();
-        // Largest |r| first; equal ones keep the model's order (stable sort).
-        drivers.sort_by(|a, b| b.share.total_cmp(&a.share));
-        if p.breaks > 0 && 1.96 * sb > RELATIVE_PRECISION * pb {
-            warnings.push(format!(
-                "step {}: {} breaks in {} samples: the 95 % interval of its break probability is +-{:.0} %; --samples {} would bring it to +-20 %",
-                row.step,
-                p.breaks,
-                n,
-                100.0 * 1.96 * sb / pb,
-                stats::samples_for(pb, RELATIVE_PRECISION)
-            ));
-        }
-        passes.push(PassRisk {
-            step: row.step,
-            exit_diameter_mm: row.exit_diameter_mm,
-            draw_ratio: nominal[j],
-            tensile_strength_mpa: nominal_strength[j],
-            break_probability: pb,
-            break_standard_error: sb,
-            over_warn_probability: pw,
-            over_warn_standard_error: sw,
-            over_max_probability: pm,
-            over_max_standard_error: sm,
-            over_block_power_probability: power.map(|x| x.0),
-            over_block_power_standard_error: power.map(|x| x.1),
-            draw_ratio_p5: q(0.05),
-            draw_ratio_p50: q(0.50),
-            draw_ratio_p95: q(0.95),
-            draw_ratio_p99: q(0.99),
-            lowest_draw_ratio: p.lowest,
-            highest_draw_ratio: p.highest,
-            main_driver: drivers.first().map(|d| d.input.clone()),
-            drivers,
-        });
-    }
-    let weakest = passes
-        .iter()
-        .enumerate()
-        .fold(None, |best: Option<usize>, (j, p)| match best {
-            None => Some(j),
-            Some(b) => {
-                let pb = &passes[b];
-                let key = |x: &PassRisk| {
-                    (
-                        x.break_probability,
-                        x.draw_ratio_p99.unwrap_or(f64::INFINITY),
-                        x.draw_ratio,
-                    )
-                };
-                if key(p).partial_cmp(&key(pb)) == Some(std::cmp::Ordering::Greater) {
-                    Some(j)
-                } else {
-                    Some(b)
-                }
-            }
-        })
-        .unwrap_or(0);
-    let (pa, sa) = stats::probability(t.any_break, n);
-    let (po, so) = stats::probability(t.any_over_max, n);
-    let upper = (t.any_break == 0 && n > 0).then(|| 3.0 / n as f64);
-    if let Some(u) = upper {
-        warnings.push(format!(
-            "no sample broke: the schedule's break probability is below {u:.2e} (95 %, rule of three), not zero"
-        ));
-    } else if 1.96 * sa > RELATIVE_PRECISION * pa {
-        warnings.push(format!(
-            "{} of {} samples broke: the 95 % interval of the schedule's break probability is +-{:.0} %; --samples {} would bring it to +-20 %",
-            t.any_break,
-            n,
-            100.0 * 1.96 * sa / pa,
-            stats::samples_for(pa, RELATIVE_PRECISION)
-        ));
-    }
-    let target = options.target_probability;
-    let (at_target, scale, weakest_needs) = match target {
-        Some(tp) if n > 0 => {
-            if tp * (n as f64) < 10.0 {
-                warnings.push(format!(
-                    "--target-probability {tp}: {n} samples put fewer than 10 beyond it, too few to place the margin; use --samples {} or more",
-                    (10.0 / tp).ceil() as u64
-                ));
-            }
-            let qa = t
-                .worst
-                .quantile(1.0 - tp, n, t.worst_range.0, t.worst_range.1);
-            let wp = &t.passes[weakest];
-            let qw = wp.ratio.quantile(1.0 - tp, n, wp.lowest, wp.highest);
-            (qa, qa.map(|q| 1.0 / q), qw.map(|q| nominal[weakest] / q))
-        }
-        _ => (None, None, None),
-    };
-    let verdict = match target {
-        None => "no-target",
-        Some(tp) if pa > tp => "over-target",
-        Some(_) => "within-target",
-    };
-    if t.rejected > 0 {
-        let (i, why) = t.first_rejection.clone().unwrap_or_default();
-        warnings.push(format!(
-            "{} of {} samples drew inputs the model refuses and are left out of every probability (first: sample {i}, {why}); narrow or truncate the scatter",
-            t.rejected, options.samples
-        ));
-    }
-    if let Some((f, _)) = &model.flow_spread {
-        if let Some(k) = f.specimens.filter(|&k| k < 5) {
-            warnings.push(format!(
-                "the flow-law scatter comes from {k} specimens: a standard deviation from so few is itself uncertain by about +-{:.0} % (1/sqrt(2(n-1)))",
-                100.0 / (2.0 * (k.max(2) as f64 - 1.0)).sqrt()
-            ));
-        }
-    }
-    if listed.is_empty() {
-        warnings.push("nothing scatters (no scatter block, no material.flow_scatter): every sample is the nominal schedule".into());
-    }
-    let mut notes = vec![
-        format!(
-            "break: the governing drawing stress ({}) reaches the drawn wire's tensile strength (Considere, tensile_strength_mpa as check reports it; for wire drawn past its Considere strain, the exit flow stress: draw ratio 1)",
-            check.method
-        ),
-        format!(
-            "{} samples by {} with seed {}; standard errors are binomial, sqrt(p(1-p)/N), an upper figure for a Latin hypercube",
-            options.samples,
-            options.sampling.name(),
-            options.seed
-        ),
-        "percentiles from a histogram of draw-ratio bins 0.0005 wide (within 0.00025 of the sample percentile)".into(),
-        "driver: the input whose normal score correlates most with the pass's draw ratio (Pearson); its share is the correlation squared".into(),
-    ];
-    if file.scatter.as_ref().is_some_and(|s| s.friction.is_some()) {
-        notes.push(
-            "a given shear factor m moves with the friction in proportion (capped at 1)".into(),
-        );
-    }
-    if model.flow_spread.is_some() && file.material.annealed_flow.is_some() {
-        notes.push(
-            "the flow-law deviations of a sample apply to the annealed law too (same heat)".into(),
-        );
-    }
-    if file
-        .scatter
-        .as_ref()
-        .is_some_and(|s| s.back_tension_mpa.is_some())
-    {
-        notes.push("back tension scatters only on the passes that have one".into());
-    }
-    let wp = &passes[weakest];
-    RiskReport {
-        title: check.title.clone(),
-        material: check.material.clone(),
-        method: check.method,
-        method_source: check.method_source.clone(),
-        sampling: options.sampling,
-        seed: options.seed,
-        draw_ratio_warn: check.draw_ratio_warn,
-        draw_ratio_max: check.draw_ratio_max,
-        scatter: listed.to_vec(),
-        summary: RiskSummary {
-            samples: options.samples,
-            samples_used: n,
-            samples_refused: t.rejected,
-            any_break_probability: pa,
-            any_break_standard_error: sa,
-            any_break_upper_95: upper,
-            any_over_max_probability: po,
-            any_over_max_standard_error: so,
-            weakest_step: wp.step,
-            weakest_break_probability: wp.break_probability,
-            weakest_main_driver: wp.main_driver.clone(),
-            target_probability: target,
-            worst_draw_ratio_at_target: at_target,
-            draw_ratio_scale_for_target: scale,
-            weakest_draw_ratio_for_target: weakest_needs,
-            verdict: verdict.into(),
-        },
-        passes,
-        warnings,
-        notes,
-        scope: SCOPE.into(),
-        caution: evaluation::CAUTION.into(),
-    }
 }
