@@ -412,9 +412,15 @@ pub fn evaluate_on(
         },
     };
     let finish_d = geometry::finish_diameter_mm(file);
+    // Without an annealed law the stock anneals back onto the same law: one
+    // Considere solve serves both (it is a few hundred flow stresses).
+    let flow_eps_u = strength::considere_strain(&file.material.flow);
     let considere = Considere {
-        flow: strength::considere_strain(&file.material.flow),
-        annealed: strength::considere_strain(file.annealed_law()),
+        flow: flow_eps_u,
+        annealed: match &file.material.annealed_flow {
+            Some(law) => strength::considere_strain(law),
+            None => flow_eps_u,
+        },
     };
 
     // 1. Geometry and strain.
