@@ -18,34 +18,93 @@ use clap::Subcommand;
 #[derive(Debug, Subcommand)]
 pub enum Command {
     /// Evaluate a pass schedule pass by pass against the mill's limits.
-    #[command(after_help = EXIT_CODES)]
+    #[command(after_help = EXIT_CODES_CHECK)]
     Check(check::CheckArgs),
     /// Lay out reductions, die angles and anneals that meet the mill's limits.
-    #[command(after_help = EXIT_CODES)]
+    #[command(after_help = EXIT_CODES_DESIGN)]
     Design(design::DesignArgs),
     /// Fit hardening laws to a tensile-test record.
-    #[command(after_help = EXIT_CODES)]
+    #[command(after_help = EXIT_CODES_FIT)]
     Fit(fit::FitArgs),
     /// Put two schedules (or a schedule and a design file) side by side.
-    #[command(after_help = EXIT_CODES)]
+    #[command(after_help = EXIT_CODES_COMPARE)]
     Compare(compare::CompareArgs),
     /// Write a commented starter schedule, design or machine file.
+    #[command(after_help = EXIT_CODES_INIT)]
     Init(init::InitArgs),
     /// Print a shell completion script (bash, zsh, fish, elvish, powershell).
+    #[command(after_help = EXIT_CODES_PRINT)]
     Completions(shell::CompletionsArgs),
     /// Print the man page (roff) of coldpass.
+    #[command(after_help = EXIT_CODES_PRINT)]
     Man(shell::ManArgs),
     /// How likely each pass is to break when friction, material and sizes scatter.
+    #[command(after_help = EXIT_CODES_RISK)]
     Risk(risk::RiskArgs),
 }
 
-/// The exit codes, shown at the foot of `--help` and in the man page.
+/// The exit codes of every command, shown at the foot of `coldpass --help`
+/// and in the man page.
 pub const EXIT_CODES: &str = "Exit status:
-  0  every figure within the limits (check, design, compare, fit, init, completions, man)
-  1  bad input (the message names the file, field, value and what is allowed), or a design
-     that cannot meet the limits, or a catalogue with a file that could not be checked
-  2  bad usage (an unknown option or value; clap's own)
-  3  a checked schedule (or any product of a catalogue) is over a limit or due an anneal";
+  0    every figure within the limits (check, design, compare), or the job done (fit, init,
+       completions, man), or a break probability within --target-probability (risk)
+  1    bad input (the message names the file, field, value and what is allowed), or a design
+       that cannot meet the limits, or a catalogue with a file that could not be checked
+  2    bad usage (an unknown option or value; clap's own)
+  3    a checked schedule (or any product of a catalogue) is over a limit or due an anneal;
+       risk: the break probability is over --target-probability
+  130  stopped by Ctrl-C or SIGTERM (nothing is written)";
+
+/// The exit codes of `check` (one file, or a catalogue of several).
+pub const EXIT_CODES_CHECK: &str = "Exit status:
+  0    every pass within the limits (warnings only are still 0; the verdict says `warn`)
+  1    bad input (the message names the file, field, value and what is allowed); with several
+       files, any file that could not be checked
+  2    bad usage (an unknown option or value; clap's own)
+  3    a pass over a limit or an anneal due and not scheduled (with several files: any product)
+  130  stopped by Ctrl-C or SIGTERM (nothing is written)";
+
+/// The exit codes of `design`.
+pub const EXIT_CODES_DESIGN: &str = "Exit status:
+  0    a design that meets the limits
+  1    bad input, or no design meets the limits (the message names the binding constraint)
+  2    bad usage (an unknown option or value; clap's own)
+  130  stopped by Ctrl-C or SIGTERM (nothing is written)";
+
+/// The exit codes of `fit`.
+pub const EXIT_CODES_FIT: &str = "Exit status:
+  0    the record was fitted (warnings are in the report)
+  1    bad input (the message names the file, line, column or option and what is allowed),
+       or --emit-law of a fit that did not converge without --allow-unconverged
+  2    bad usage (an unknown option or value; clap's own)
+  130  stopped by Ctrl-C or SIGTERM (nothing is written)";
+
+/// The exit codes of `compare`.
+pub const EXIT_CODES_COMPARE: &str = "Exit status:
+  0    both files read and checked (their verdicts are in the output, whatever they are)
+  1    bad input in either file
+  2    bad usage (an unknown option or value; clap's own)
+  130  stopped by Ctrl-C or SIGTERM (nothing is written)";
+
+/// The exit codes of `risk`.
+pub const EXIT_CODES_RISK: &str = "Exit status:
+  0    done, and the break probability within --target-probability when one is given
+  1    bad input (the message names the file, field, value and what is allowed)
+  2    bad usage (an unknown option or value; clap's own)
+  3    the schedule's break probability is over --target-probability
+  130  stopped by Ctrl-C or SIGTERM (nothing is written)";
+
+/// The exit codes of `init`.
+pub const EXIT_CODES_INIT: &str = "Exit status:
+  0    written
+  1    the file exists already (init never overwrites one) or could not be written; nothing written
+  2    bad usage (an unknown option or value; clap's own)";
+
+/// The exit codes of `completions` and `man`.
+pub const EXIT_CODES_PRINT: &str = "Exit status:
+  0    printed (or written with -o)
+  1    the output could not be written (nothing is written)
+  2    bad usage (an unknown option or value; clap's own)";
 
 /// Exit status when every figure is within the limits.
 pub const EXIT_OK: u8 = 0;
