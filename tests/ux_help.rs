@@ -188,6 +188,12 @@ fn init_writes_starters_that_check_clean_and_never_overwrites() {
     assert_eq!(run(&["init", "design", "d.yaml"]).status.code(), Some(0));
     let design = run(&["design", "d.yaml", "--format", "json"]);
     assert_eq!(design.status.code(), Some(0), "{}", stderr(&design));
+    let j: serde_json::Value = serde_json::from_slice(&design.stdout).unwrap();
+    assert_eq!(
+        j["schedule"]["summary"]["verdict"], "ok",
+        "the starter design is clean too, not just within limits: {}",
+        j["schedule"]["passes"]
+    );
 
     // A second init refuses, naming the file, and leaves it as it was.
     std::fs::write(dir.path().join("schedule.yaml"), "mine").unwrap();
