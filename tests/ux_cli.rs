@@ -139,6 +139,73 @@ fn csv_figures_carry_six_significant_digits() {
     }
 }
 
+/// Every figure of the CSV, the machine and temperature columns included, is
+/// rounded: a machine schedule's CSV once printed `62.12634449563879`.
+#[test]
+fn every_csv_figure_on_a_machine_carries_at_most_six_significant_digits() {
+    let path = "schedules-demo/steel-multiblock.yaml";
+    let text = stdout(&coldpass(&["check", path, "--format", "csv"]));
+    let mut r = csv::Reader::from_reader(text.as_bytes());
+    let header = r.headers().unwrap().clone();
+    assert!(header.iter().any(|h| h == "machine.capstan_rpm"));
+    let mut figures = 0;
+    for row in r.records().map(Result::unwrap) {
+        for (h, cell) in header.iter().zip(row.iter()) {
+            if cell.parse::<f64>().is_err() {
+                continue;
+            }
+            figures += 1;
+            let digits = cell
+                .trim_start_matches('-')
+                .replace('.', "")
+                .trim_start_matches('0')
+                .trim_end_matches('0')
+                .len();
+            assert!(digits <= 6, "{h} = {cell}");
+        }
+    }
+    assert!(figures > 7 * 40, "{figures}");
+}
+
+/// The summary CSV carries the machine's answer too: the attainable speed,
+/// the block and limit that bind and the tonnes per shift at that speed.
+#[test]
+fn the_summary_csv_on_a_machine_gives_the_attainable_speed() {
+    let path = "schedules-demo/steel-multiblock.yaml";
+    let text = stdout(&coldpass(&["check", path, "--format", "csv", "--summary"]));
+    let json = json_of(&["check", path, "--format", "json"]);
+    let mut r = csv::Reader::from_reader(text.as_bytes());
+    let header = r.headers().unwrap().clone();
+    let row = r.records().next().unwrap().unwrap();
+    let cell = |key: &str| {
+        let i = header
+            .iter()
+            .position(|h| h == key)
+            .unwrap_or_else(|| panic!("{key}"));
+        row[i].to_string()
+    };
+    for key in [
+        "attainable_speed_m_s",
+        "attainable_t_per_shift",
+        "tensile_strength_mpa",
+    ] {
+        let v: f64 = cell(key).parse().unwrap();
+        let full = json["summary"][key].as_f64().unwrap();
+        assert!(
+            (v - full).abs() <= 1e-5 * full.abs(),
+            "{key}: {v} vs {full}"
+        );
+    }
+    assert_eq!(
+        cell("binding_block"),
+        json["summary"]["binding_block"].to_string()
+    );
+    assert_eq!(
+        cell("binding_limit"),
+        json["summary"]["binding_limit"].as_str().unwrap()
+    );
+}
+
 #[test]
 fn the_summary_csv_is_one_row_of_the_summary_keys() {
     let path = "schedules-demo/copper-building-wire.yaml";

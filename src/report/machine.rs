@@ -269,7 +269,7 @@ pub fn html_tables(rep: &ScheduleReport, units: Units) -> Vec<html::Table> {
 }
 
 /// The machine and temperature CSV columns, inserted before the caution.
-const CSV_COLUMNS: [&str; 14] = [
+const CSV_COLUMNS: [&str; 15] = [
     "wire_temperature_entry_c",
     "wire_temperature_no_cooling_c",
     "entry_yield_mpa",
@@ -284,6 +284,7 @@ const CSV_COLUMNS: [&str; 14] = [
     "summary.attainable_speed_m_s",
     "summary.binding_block",
     "summary.binding_limit",
+    "summary.attainable_t_per_shift",
 ];
 
 /// The CSV header with the machine columns before the last (the caution).
@@ -296,9 +297,8 @@ pub fn csv_header(base: &[&str]) -> Vec<String> {
         .collect()
 }
 
-fn num(x: Option<f64>) -> String {
-    x.map(|v| v.to_string()).unwrap_or_default()
-}
+// Rounded as every CSV figure is (the JSON keeps full precision).
+use super::csv::num;
 
 /// Inserts one step's machine columns before the last field of `record`.
 pub fn csv_record(rep: &ScheduleReport, r: &StepReport, mut record: Vec<String>) -> Vec<String> {
@@ -324,6 +324,7 @@ pub fn csv_record(rep: &ScheduleReport, r: &StepReport, mut record: Vec<String>)
         s.binding_limit
             .map(|l| l.name().to_string())
             .unwrap_or_default(),
+        num(s.attainable_t_per_shift),
     ];
     let last = record.pop().unwrap_or_default();
     record.extend(extra);
