@@ -59,7 +59,10 @@ fn a_folder_gives_one_row_per_product_matching_each_check() {
             .unwrap();
         assert_eq!(p["finish_speed_m_s"], last_draw["exit_speed_m_s"], "{rel}");
     }
-    assert!(cat["caution"].as_str().unwrap().contains("confirm"));
+    // The whole caution, safety words included, as on every check report.
+    let caution = cat["caution"].as_str().unwrap();
+    assert!(caution.contains("confirm"), "{caution}");
+    assert!(caution.contains("whips when it breaks"), "{caution}");
 }
 
 #[test]

@@ -13,8 +13,9 @@ use serde::Serialize;
 use super::units::{Quantity, Units};
 use super::{fixed, Format, Look};
 
-/// The caution on every catalogue.
-const CAUTION: &str = "Planning estimates only: confirm every figure by trial; the machine maker's limits, local codes and licensed practice govern.";
+/// The caution on every catalogue: the check report's own, safety words
+/// included (a catalogue is read on the shop floor as much as one check).
+const CAUTION: &str = coldpass::evaluation::CAUTION;
 
 /// One product's row.
 #[derive(Debug, Clone, Serialize)]
@@ -227,7 +228,9 @@ pub fn render(products: &[Product], format: Format, look: &Look) -> Result<Vec<u
             let mut out = format!("Catalogue: {} products\n{t}\n", products.len());
             if products.iter().any(|p| p.attainable_speed_m_s.is_some()) {
                 out.push_str(&super::table::wrap(
-                    "* at the speed the machine allows (attainable_speed_m_s); others at line.finish_speed_m_s",
+                    "* at the speed the machine allows (attainable_speed_m_s); others at line.finish_speed_m_s. \
+                     Total power is at the speed the schedule is checked at: line.finish_speed_m_s when the file \
+                     gives one, else the attainable speed",
                     look.table.width,
                     "  ",
                 ));
