@@ -179,3 +179,41 @@ fn the_page_holds_every_step_marks_flagged_rows_in_words_and_names_both_files() 
     ]));
     assert!(us.contains("<th>exit in A</th>") && us.contains("<th>power hp B</th>"));
 }
+
+/// The side-by-side summary answers the planner's question for both files:
+/// the attainable speed, the block and limit that bind and tonnes per shift
+/// at that speed (from each file's own check), and it keeps A and B beside
+/// each other at 80 columns by wrapping long values.
+#[test]
+fn the_summary_gives_the_attainable_speed_side_by_side_at_80_columns() {
+    let a = "schedules-demo/steel-multiblock.yaml";
+    let b = "schedules-demo/copper-building-wire.yaml";
+    let out = assert_cmd::Command::cargo_bin("coldpass")
+        .unwrap()
+        .current_dir(common::root(""))
+        .env("COLUMNS", "80")
+        .args(["compare", a, b])
+        .output()
+        .unwrap();
+    let text = stdout(&out);
+    assert!(text.lines().all(|l| l.chars().count() <= 80), "{text}");
+    let check = json(&["check", a, "--format", "json"]);
+    let speed = check["summary"]["attainable_speed_m_s"].as_f64().unwrap();
+    let block = check["summary"]["binding_block"].as_u64().unwrap();
+    let row = |label: &str| {
+        text.lines()
+            .find(|l| l.starts_with(&format!("│ {label} ")))
+            .unwrap_or_else(|| panic!("{label} missing:\n{text}"))
+            .to_string()
+    };
+    assert!(row("attainable speed").contains(&format!("{speed:.2} m/s")));
+    assert!(row("binding block and limit").contains(&format!("block {block}, motor-rating")));
+    // B has no machine: said, not left blank, on the same line as A.
+    assert!(row("tonnes per shift at it").contains("- (no machine)"));
+    // Side by side: one header row names both.
+    assert!(
+        text.lines()
+            .any(|l| l.contains("│ A ") && l.contains("│ B ")),
+        "{text}"
+    );
+}

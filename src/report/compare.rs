@@ -215,6 +215,17 @@ fn pass_panel(
     t.to_string()
 }
 
+/// A schedule's summary rows, then its machine's (the attainable speed, the
+/// block and limit that bind, tonnes per shift at it) when either side runs
+/// on a machine.
+fn summary_rows(rep: &ScheduleReport, units: Units, machine: bool) -> Vec<(String, String)> {
+    let mut rows = super::table::summary_rows(rep, units);
+    if machine {
+        rows.extend(super::machine::summary_rows(rep, units));
+    }
+    rows
+}
+
 fn table(a: &ScheduleReport, b: &ScheduleReport, names: &[String; 2], look: &Look) -> String {
     let units = look.table.units;
     let width = look.table.width;
@@ -235,12 +246,28 @@ fn table(a: &ScheduleReport, b: &ScheduleReport, names: &[String; 2], look: &Loo
         .collect::<Vec<_>>()
         .join("\n\n");
 
-    // The two summaries side by side; A and B one under the other when
-    // side by side is wider than the terminal.
-    let rows = super::table::summary_rows(a, units)
+    // The two summaries side by side, a long value wrapped at words so that
+    // A and B stay beside each other; one under the other only when even
+    // wrapped they are wider than the terminal.
+    let machine = a.machine.is_some() || b.machine.is_some();
+    let pairs: Vec<(String, String, String)> = summary_rows(a, units, machine)
         .into_iter()
-        .zip(super::table::summary_rows(b, units))
-        .map(|((k, va), (_, vb))| vec![k, va, vb])
+        .zip(summary_rows(b, units, machine))
+        .map(|((k, va), (_, vb))| (k, va, vb))
+        .collect();
+    let key_width = pairs.iter().map(|p| p.0.chars().count()).max().unwrap_or(0);
+    // Borders and padding of three columns: 4 bars and 2 spaces a column.
+    let value_width = width.saturating_sub(key_width + 10) / 2;
+    let fit = |v: String| {
+        if value_width >= 20 && v.chars().count() > value_width {
+            super::table::wrap(&v, value_width, "")
+        } else {
+            v
+        }
+    };
+    let rows = pairs
+        .into_iter()
+        .map(|(k, va, vb)| vec![k, fit(va), fit(vb)])
         .collect();
     let st = super::table::build(
         ["", "A", "B"].map(String::from).to_vec(),
@@ -438,9 +465,10 @@ fn page(a: &ScheduleReport, b: &ScheduleReport, names: &[String; 2], units: Unit
             }
         })
         .collect();
-    let summary_rows = super::table::summary_rows(a, units)
+    let machine = a.machine.is_some() || b.machine.is_some();
+    let summary_rows = summary_rows(a, units, machine)
         .into_iter()
-        .zip(super::table::summary_rows(b, units))
+        .zip(summary_rows(b, units, machine))
         .map(|((k, va), (_, vb))| html::Row {
             cells: vec![k, va, vb],
             status: html::Status::None,

@@ -157,6 +157,31 @@ fn machine_heading(m: &MachineRun, units: Units) -> String {
     )
 }
 
+/// The machine summary's rows of `rep` for a side-by-side summary (compare):
+/// the attainable speed, the block and limit that bind, tonnes per shift at
+/// it and the motor load; `-` on every row for a schedule with no machine, so
+/// that two reports' rows line up.
+pub fn summary_rows(rep: &ScheduleReport, units: Units) -> Vec<(String, String)> {
+    match &rep.machine {
+        Some(m) => machine_summary(rep, m, units)
+            .into_iter()
+            .map(|[k, v]| (k, v))
+            .collect(),
+        None => [
+            "attainable speed",
+            "binding block and limit",
+            match units {
+                Units::Si => "tonnes per shift at it",
+                Units::Us => "short tons per shift at it",
+            },
+            "total motor load",
+        ]
+        .into_iter()
+        .map(|k| (k.to_string(), "- (no machine)".to_string()))
+        .collect(),
+    }
+}
+
 fn machine_summary(rep: &ScheduleReport, m: &MachineRun, units: Units) -> Vec<[String; 2]> {
     let s = &rep.summary;
     let attainable = match (s.attainable_speed_m_s, units) {
