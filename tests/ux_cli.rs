@@ -265,3 +265,47 @@ fn fails_in_one_line_when_check_is_given_a_csv_file() {
         assert!(e.contains("CSV") && e.contains("coldpass fit"), "{e}");
     }
 }
+
+/// `--summary` changes only the CSV: with another format, or on design (whose
+/// CSV has no summary form yet), it is refused as bad usage (exit 2) instead
+/// of being silently ignored.
+#[test]
+fn summary_without_csv_is_refused_as_bad_usage() {
+    for args in [
+        vec!["check", "schedules-demo/steel-multiblock.yaml", "--summary"],
+        vec![
+            "check",
+            "schedules-demo/steel-multiblock.yaml",
+            "--summary",
+            "--format",
+            "json",
+        ],
+        vec![
+            "compare",
+            "schedules-demo/steel-multiblock.yaml",
+            "schedules-demo/stainless-spring.yaml",
+            "--summary",
+        ],
+        vec![
+            "design",
+            "schedules-demo/design-steel-ratio.yaml",
+            "--format",
+            "csv",
+            "--summary",
+        ],
+    ] {
+        let out = coldpass(&args);
+        assert_eq!(out.status.code(), Some(2), "{args:?}");
+        let err = stderr(&out);
+        assert!(err.contains("--summary"), "{err}");
+        assert!(out.stdout.is_empty(), "{args:?}");
+    }
+    let ok = coldpass(&[
+        "check",
+        "schedules-demo/steel-multiblock.yaml",
+        "--summary",
+        "--format",
+        "csv",
+    ]);
+    assert_eq!(ok.status.code(), Some(0), "{}", stderr(&ok));
+}

@@ -111,6 +111,56 @@ pub const EXIT_OK: u8 = 0;
 /// Exit status when a checked schedule is over a limit.
 pub const EXIT_OVER: u8 = 3;
 
+impl Command {
+    /// The subcommand's name on the command line.
+    pub fn name(&self) -> &'static str {
+        match self {
+            Command::Check(_) => "check",
+            Command::Design(_) => "design",
+            Command::Fit(_) => "fit",
+            Command::Compare(_) => "compare",
+            Command::Init(_) => "init",
+            Command::Completions(_) => "completions",
+            Command::Man(_) => "man",
+            Command::Risk(_) => "risk",
+        }
+    }
+}
+
+/// A combination of options clap's definitions cannot refuse by themselves,
+/// with the message that says what is allowed: `--summary` changes only the
+/// CSV, so with another format it would be silently ignored.
+pub fn usage_conflict(command: &Command) -> Option<String> {
+    use crate::report::Format;
+    let (name, report, view) = match command {
+        Command::Check(a) => ("check", &a.report, &a.view),
+        Command::Compare(a) => ("compare", &a.report, &a.view),
+        Command::Design(a) => ("design", &a.report, &a.view),
+        _ => return None,
+    };
+    if !view.summary {
+        return None;
+    }
+    if name == "design" {
+        return Some(
+            "--summary: design has no summary CSV yet (its CSV is one row per step); \
+             the design summary is in the table, JSON and YAML, or check the emitted schedule \
+             (--emit-schedule FILE.yaml, then coldpass check FILE.yaml --format csv --summary)"
+                .into(),
+        );
+    }
+    if report.format != Format::Csv {
+        return Some(format!(
+            "--summary goes with --format csv (one row of the summary keys); the {} format \
+             already carries the summary: drop --summary, or add --format csv",
+            clap::ValueEnum::to_possible_value(&report.format)
+                .map(|v| v.get_name().to_string())
+                .unwrap_or_default()
+        ));
+    }
+    None
+}
+
 /// Runs the chosen subcommand and returns its exit status. `cli` builds the
 /// whole command-line definition, for completions and the man page (passed
 /// in, so that commands/ does not depend on cli.rs).
