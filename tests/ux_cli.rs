@@ -309,3 +309,66 @@ fn summary_without_csv_is_refused_as_bad_usage() {
     ]);
     assert_eq!(ok.status.code(), Some(0), "{}", stderr(&ok));
 }
+
+/// A coldpass file given in the wrong place is named for what it is, in one
+/// line, with where it goes: a machine file or a fitted law given as the
+/// schedule, a schedule or a tensile CSV given as the machine (the CSV was
+/// once pasted whole into the message), and a machine file with a
+/// byte-order mark is read as a schedule's is.
+#[test]
+fn a_file_of_another_kind_is_named_for_what_it_is() {
+    let cases: &[(&[&str], &str)] = &[
+        (
+            &["check", "machines/harrow-lane-dry-7.yaml"],
+            "it looks like a machine file",
+        ),
+        (
+            &["design", "machines/harrow-lane-dry-7.yaml"],
+            "give it with --machine",
+        ),
+        (
+            &["check", "schedules-demo/copper-rod-law.yaml"],
+            "paste its blocks under `material:`",
+        ),
+        (
+            &[
+                "check",
+                "schedules-demo/steel-multiblock.yaml",
+                "--machine",
+                "schedules-demo/stainless-spring.yaml",
+            ],
+            "is not a machine file: it looks like a schedule",
+        ),
+        (
+            &[
+                "check",
+                "schedules-demo/steel-multiblock.yaml",
+                "--machine",
+                "schedules-demo/tensile-copper-rod.csv",
+            ],
+            "is not a machine file: it looks like a CSV table",
+        ),
+    ];
+    for (args, words) in cases {
+        let out = coldpass(args);
+        assert_eq!(out.status.code(), Some(1), "{args:?}");
+        let err = stderr(&out);
+        assert!(err.contains(words), "{args:?}: {err}");
+        assert_eq!(err.trim_end().lines().count(), 1, "one line: {err}");
+        assert!(err.len() < 400, "short: {err}");
+    }
+    let dir = tempfile::tempdir().unwrap();
+    let m = dir.path().join("bom-machine.yaml");
+    let mut bytes = vec![0xEF, 0xBB, 0xBF];
+    bytes.extend(std::fs::read(root("machines/harrow-lane-dry-7.yaml")).unwrap());
+    std::fs::write(&m, bytes).unwrap();
+    let with = coldpass(&[
+        "check",
+        "schedules-demo/steel-multiblock.yaml",
+        "--machine",
+        m.to_str().unwrap(),
+        "--format",
+        "json",
+    ]);
+    assert_eq!(with.status.code(), Some(0), "{}", stderr(&with));
+}
