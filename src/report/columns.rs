@@ -395,7 +395,15 @@ pub fn find(key: &str) -> Option<&'static Column> {
 pub fn pick(keys: &[String]) -> Result<Vec<&'static Column>, String> {
     keys.iter()
         .map(|k| {
-            find(k.trim()).ok_or_else(|| {
+            if k.trim().is_empty() {
+                return Err(format!(
+                    "--columns: an empty name (two commas together, or a comma at an end) in '{}'; \
+                     name the columns by their JSON keys, comma-separated, e.g. step,exit_diameter_mm,draw_ratio,flags",
+                    keys.join(",")
+                ));
+            }
+            // Keys are lower case; a name typed in capitals means the same key.
+            find(&k.trim().to_ascii_lowercase()).ok_or_else(|| {
                 format!(
                     "--columns: no column is named '{}'; the columns are (JSON keys): {}",
                     k.trim(),
@@ -445,5 +453,11 @@ mod tests {
         assert_eq!(fixed_set(FIRST).len(), FIRST.len());
         let e = pick(&["exit_diameter_mm".into(), "nope".into()]).unwrap_err();
         assert!(e.contains("'nope'") && e.contains("draw_ratio"), "{e}");
+        let e = pick(&["step".into(), "".into(), "flags".into()]).unwrap_err();
+        assert!(
+            e.contains("an empty name") && e.contains("'step,,flags'"),
+            "{e}"
+        );
+        assert_eq!(pick(&["Draw_Ratio".into()]).unwrap()[0].key, "draw_ratio");
     }
 }
