@@ -195,6 +195,11 @@ fn init_writes_starters_that_check_clean_and_never_overwrites() {
         j["schedule"]["passes"]
     );
 
+    // A folder gets the starter under its default name.
+    std::fs::create_dir(dir.path().join("starters")).unwrap();
+    assert_eq!(run(&["init", "machine", "starters"]).status.code(), Some(0));
+    assert!(dir.path().join("starters/machine.yaml").is_file());
+
     // A second init refuses, naming the file, and leaves it as it was.
     std::fs::write(dir.path().join("schedule.yaml"), "mine").unwrap();
     let again = run(&["init", "schedule"]);
