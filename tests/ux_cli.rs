@@ -168,6 +168,31 @@ fn every_csv_figure_on_a_machine_carries_at_most_six_significant_digits() {
         }
     }
     assert!(figures > 7 * 40, "{figures}");
+    // Every figure of a block in the JSON's `machine.blocks` is a column,
+    // under the same name with `machine.` before it, and equal to it.
+    let json = json_of(&["check", path, "--format", "json"]);
+    let mut rows = csv::Reader::from_reader(text.as_bytes());
+    let first = rows.records().next().unwrap().unwrap();
+    let block = &json["machine"]["blocks"][0];
+    for (key, value) in block.as_object().unwrap() {
+        if matches!(
+            key.as_str(),
+            "block" | "step" | "capstan_diameter_mm" | "max_surface_speed_m_s"
+        ) {
+            continue; // `block` is its own column; the others are the machine file's own figures
+        }
+        let col = format!("machine.{key}");
+        let i = header
+            .iter()
+            .position(|h| h == col)
+            .unwrap_or_else(|| panic!("{col} missing"));
+        let v: f64 = first[i].parse().unwrap();
+        let full = value.as_f64().unwrap();
+        assert!(
+            (v - full).abs() <= 1e-5 * full.abs().max(1e-9),
+            "{col}: {v} vs {full}"
+        );
+    }
 }
 
 /// The summary CSV carries the machine's answer too: the attainable speed,

@@ -294,7 +294,7 @@ pub fn html_tables(rep: &ScheduleReport, units: Units) -> Vec<html::Table> {
 }
 
 /// The machine and temperature CSV columns, inserted before the caution.
-const CSV_COLUMNS: [&str; 15] = [
+const CSV_COLUMNS: [&str; 21] = [
     "wire_temperature_entry_c",
     "wire_temperature_no_cooling_c",
     "entry_yield_mpa",
@@ -306,6 +306,12 @@ const CSV_COLUMNS: [&str; 15] = [
     "machine.slip",
     "machine.net_power_kw",
     "machine.motor_load",
+    "machine.wire_speed_m_s",
+    "machine.net_pull_kn",
+    "machine.motor_load_kw",
+    "machine.motor_kw",
+    "machine.wire_temperature_in_c",
+    "machine.wire_temperature_out_c",
     "summary.attainable_speed_m_s",
     "summary.binding_block",
     "summary.binding_limit",
@@ -344,6 +350,12 @@ pub fn csv_record(rep: &ScheduleReport, r: &StepReport, mut record: Vec<String>)
         num(block.map(|b| b.slip)),
         num(block.map(|b| b.net_power_kw)),
         num(block.map(|b| b.motor_load)),
+        num(block.map(|b| b.wire_speed_m_s)),
+        num(block.map(|b| b.net_pull_kn)),
+        num(block.map(|b| b.motor_load_kw)),
+        num(block.map(|b| b.motor_kw)),
+        num(block.map(|b| b.wire_temperature_in_c)),
+        num(block.map(|b| b.wire_temperature_out_c)),
         num(s.attainable_speed_m_s),
         s.binding_block.map(|b| b.to_string()).unwrap_or_default(),
         s.binding_limit
