@@ -130,6 +130,19 @@ pub fn machine_of(
     }
     let m =
         machine::parse(&text).with_context(|| format!("reading machine '{}'", path.display()))?;
+    // The wire enters die 1 at the schedule's ambient and only warms: a limit
+    // at or below it flags every die, as the schedule's own limit would be
+    // refused for.
+    let ambient = file.limits.ambient_c.unwrap_or(schedule::DEFAULT_AMBIENT_C);
+    if let Some(t) = m.wire_temperature_max_c.filter(|&t| t <= ambient) {
+        anyhow::bail!(
+            "reading machine '{}': `wire_temperature_max_c` = {t}: allowed above the ambient \
+             {ambient} C at which the wire enters die 1 (the schedule's `limits.ambient_c`), \
+             and at most {} C",
+            path.display(),
+            schedule::WIRE_TEMPERATURE_MAX_C
+        );
+    }
     Ok(Some((path, m)))
 }
 
