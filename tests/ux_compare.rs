@@ -217,3 +217,62 @@ fn the_summary_gives_the_attainable_speed_side_by_side_at_80_columns() {
         "{text}"
     );
 }
+
+/// `--columns` and `--wide` shape compare's table as they shape check's (they
+/// were silently ignored): the picked quantities only, each as A and B; the
+/// wide set at 120 columns still fits, cut into panels led by the step.
+#[test]
+fn columns_and_wide_pick_the_compared_quantities() {
+    let run = |extra: &[&str]| {
+        let mut args = vec![
+            "compare",
+            "schedules-demo/steel-multiblock.yaml",
+            "schedules-demo/stainless-spring.yaml",
+        ];
+        args.extend_from_slice(extra);
+        assert_cmd::Command::cargo_bin("coldpass")
+            .unwrap()
+            .current_dir(common::root(""))
+            .env("COLUMNS", "120")
+            .args(&args)
+            .output()
+            .unwrap()
+    };
+    let picked = stdout(&run(&["--columns", "step,flow_stress_exit_mpa"]));
+    let passes = &picked[picked.find("Passes").unwrap()..picked.find("Summary").unwrap()];
+    assert!(passes.contains("MPa"), "{passes}");
+    assert!(
+        !passes.contains("ratio"),
+        "only the picked quantity:\n{passes}"
+    );
+    assert!(
+        !passes.contains("flags"),
+        "flags only when picked:\n{passes}"
+    );
+    // Step 1's exit flow stress of each file, as check reports it.
+    let fa = json(&[
+        "check",
+        "schedules-demo/steel-multiblock.yaml",
+        "--format",
+        "json",
+    ]);
+    let fb = json(&[
+        "check",
+        "schedules-demo/stainless-spring.yaml",
+        "--format",
+        "json",
+    ]);
+    let row = passes.lines().find(|l| l.starts_with("│ 1 ")).unwrap();
+    for f in [&fa, &fb] {
+        let v = f["passes"][0]["flow_stress_exit_mpa"].as_f64().unwrap();
+        assert!(row.contains(&format!(" {v:.0} ")), "{row}");
+    }
+
+    let wide = stdout(&run(&["--wide"]));
+    assert!(wide.lines().all(|l| l.chars().count() <= 120), "{wide}");
+    assert!(wide.contains("force") && wide.contains("Delta"), "{wide}");
+
+    let bad = run(&["--columns", "bogus"]);
+    assert_eq!(bad.status.code(), Some(1));
+    assert!(stderr(&bad).contains("no column is named 'bogus'"));
+}

@@ -20,6 +20,7 @@ use tabled::settings::peaker::PriorityMax;
 use tabled::settings::{Alignment, Span, Style, Width};
 
 use super::columns::{self, Column};
+use super::table::View;
 use super::units::Units;
 use super::{html, Format, Look};
 
@@ -31,6 +32,43 @@ const COMPARED: [&str; 5] = [
     "power_kw",
     "wire_temperature_c",
 ];
+
+/// The columns `--wide` compares per pass (the table only; JSON, YAML and
+/// CSV keep [`COMPARED`]).
+const COMPARED_WIDE: [&str; 13] = [
+    "exit_diameter_mm",
+    "area_reduction",
+    "cumulative_reduction",
+    "strain_after",
+    "flow_stress_exit_mpa",
+    "governing_draw_stress_mpa",
+    "draw_ratio",
+    "delta",
+    "semi_angle_deg",
+    "force_kn",
+    "exit_speed_m_s",
+    "power_kw",
+    "wire_temperature_c",
+];
+
+/// The table's pass columns for `view`, and whether the flags are shown:
+/// the default set, `--wide`'s, or `--columns`' (the step always leads, so
+/// naming it is allowed and changes nothing).
+fn compared_columns(view: &View) -> Result<(Vec<&'static Column>, bool)> {
+    Ok(match view {
+        View::First => (columns::fixed_set(&COMPARED), true),
+        View::Wide => (columns::fixed_set(&COMPARED_WIDE), true),
+        View::Pick(keys) => {
+            let picked = columns::pick(keys).map_err(|e| anyhow::anyhow!(e))?;
+            let flags = picked.iter().any(|c| c.key == "flags");
+            let cols = picked
+                .into_iter()
+                .filter(|c| c.key != "step" && c.key != "flags")
+                .collect();
+            (cols, flags)
+        }
+    })
+}
 
 #[derive(Serialize)]
 struct Side {
@@ -226,14 +264,19 @@ fn summary_rows(rep: &ScheduleReport, units: Units, machine: bool) -> Vec<(Strin
     rows
 }
 
-fn table(a: &ScheduleReport, b: &ScheduleReport, names: &[String; 2], look: &Look) -> String {
+fn table(
+    a: &ScheduleReport,
+    b: &ScheduleReport,
+    names: &[String; 2],
+    look: &Look,
+) -> Result<String> {
     let units = look.table.units;
     let width = look.table.width;
-    let cols = columns::fixed_set(&COMPARED);
+    let (cols, with_flags) = compared_columns(&look.table.view)?;
     // Cut into panels of whole quantities, each led by the step, when wider
     // than the terminal: no header word or figure is broken.
     let natural = |g: &[usize]| super::table::widest(&pass_panel(a, b, &cols, g, units, None));
-    let t = super::table::panels(cols.len() + 2, width, natural)
+    let t = super::table::panels(cols.len() + 1 + usize::from(with_flags), width, natural)
         .iter()
         .map(|g| {
             let p = pass_panel(a, b, &cols, g, units, None);
@@ -289,7 +332,7 @@ fn table(a: &ScheduleReport, b: &ScheduleReport, names: &[String; 2], look: &Loo
         "\nPasses (change = B - A)\n{t}\n\nSummary\n{st}\n\n{}\n",
         super::table::wrap(&format!("Caution: {}", a.caution), look.table.width, "")
     ));
-    out
+    Ok(out)
 }
 
 /// Renders the comparison of `a` and `b` (named by `names`) in `format`.
@@ -311,7 +354,7 @@ pub fn render(
         caution: &a.caution,
     };
     Ok(match format {
-        Format::Table => table(a, b, names, look).into_bytes(),
+        Format::Table => table(a, b, names, look)?.into_bytes(),
         Format::Json => {
             let mut s = serde_json::to_string_pretty(&whole())?;
             s.push('\n');
