@@ -272,6 +272,11 @@ fn columns_and_wide_pick_the_compared_quantities() {
     assert!(wide.lines().all(|l| l.chars().count() <= 120), "{wide}");
     assert!(wide.contains("force") && wide.contains("Delta"), "{wide}");
 
+    // The page takes the same pick.
+    let page = stdout(&run(&["--columns", "step,force_kn", "--format", "html"]));
+    assert!(page.contains("<th>force kN A</th>") && page.contains("<th>force kN B</th>"));
+    assert!(!page.contains("draw ratio A") && !page.contains("flags A / B"));
+
     let bad = run(&["--columns", "bogus"]);
     assert_eq!(bad.status.code(), Some(1));
     assert!(stderr(&bad).contains("no column is named 'bogus'"));

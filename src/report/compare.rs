@@ -363,7 +363,7 @@ pub fn render(
         Format::Yaml => serde_yaml::to_string(&whole())?.into_bytes(),
         Format::Csv if look.csv_summary => csv_summary(a, b, names)?,
         Format::Csv => csv(a, b)?,
-        Format::Html => page(a, b, names, look.table.units).into_bytes(),
+        Format::Html => page(a, b, names, look)?.into_bytes(),
     })
 }
 
@@ -466,8 +466,14 @@ fn worse(x: Option<&StepReport>, y: Option<&StepReport>) -> html::Status {
 /// The comparison page: both files named, the pass table (the table's
 /// columns, each quantity's header with its unit and `A` or `B`), the two
 /// summaries side by side, the caution.
-fn page(a: &ScheduleReport, b: &ScheduleReport, names: &[String; 2], units: Units) -> String {
-    let cols = columns::fixed_set(&COMPARED);
+fn page(
+    a: &ScheduleReport,
+    b: &ScheduleReport,
+    names: &[String; 2],
+    look: &Look,
+) -> Result<String> {
+    let units = look.table.units;
+    let (cols, with_flags) = compared_columns(&look.table.view)?;
     let mut header = vec!["step".to_string()];
     for c in &cols {
         let h = c.header(units);
@@ -477,7 +483,9 @@ fn page(a: &ScheduleReport, b: &ScheduleReport, names: &[String; 2], units: Unit
             header.push(format!("{h} B - A"));
         }
     }
-    header.push("flags A / B".into());
+    if with_flags {
+        header.push("flags A / B".into());
+    }
     let rows = (0..a.passes.len().max(b.passes.len()))
         .map(|i| {
             let (x, y) = (a.passes.get(i), b.passes.get(i));
@@ -501,7 +509,9 @@ fn page(a: &ScheduleReport, b: &ScheduleReport, names: &[String; 2], units: Unit
             };
             let mut flags = tagged("A", x);
             flags.extend(tagged("B", y));
-            cells.push(flags.join(", "));
+            if with_flags {
+                cells.push(flags.join(", "));
+            }
             html::Row {
                 cells,
                 status: worse(x, y),
@@ -551,5 +561,5 @@ fn page(a: &ScheduleReport, b: &ScheduleReport, names: &[String; 2], units: Unit
         notes: Vec::new(),
         caution: a.caution.clone(),
     };
-    html::render(&p)
+    Ok(html::render(&p))
 }
