@@ -243,6 +243,8 @@ fn pass_panel(
     for (col, n) in spans {
         t.modify((0, col), Span::column(n));
     }
+    // The border over a spanned header is one line, not split at A | B.
+    t.with(tabled::settings::themes::BorderCorrection::span());
     if let Some(w) = wrap {
         t.with(
             Width::wrap(w)
