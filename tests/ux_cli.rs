@@ -397,3 +397,21 @@ fn a_file_of_another_kind_is_named_for_what_it_is() {
     ]);
     assert_eq!(with.status.code(), Some(0), "{}", stderr(&with));
 }
+
+/// A folder's YAML files that are not schedules are named on standard error
+/// (the report on standard output stays clean for a program to read).
+#[test]
+fn a_catalogue_of_a_folder_names_the_files_it_left_out() {
+    let out = coldpass(&["check", "schedules-demo/", "--format", "json"]);
+    let err = stderr(&out);
+    assert!(
+        err.contains("left out of the catalogue") && err.contains("design-copper-temper.yaml"),
+        "{err}"
+    );
+    let j: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    assert!(j["products"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .all(|p| !p["file"].as_str().unwrap().contains("design-")));
+}
