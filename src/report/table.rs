@@ -414,6 +414,7 @@ const WIDE_LINE: &[&str] = &[
     "step",
     "entry_diameter_mm",
     "force_kn",
+    "net_pull_kn",
     "exit_speed_m_s",
     "power_kw",
     "temperature_rise_c",
