@@ -185,11 +185,46 @@ pub fn parse(text: &str) -> Result<Machine, MachineError> {
         // A value with a bad unit reads `` `key.path` = value: allowed ... ``.
         MachineError::Syntax(match said.split_once(": = ") {
             Some((path, rest)) if !path.contains(' ') => format!("`{path}` = {rest}"),
-            _ => said,
+            _ => plain_words(&said),
         })
     })?;
     m.validate()?;
     Ok(m)
+}
+
+/// What a required machine key holds, for the message when it is missing.
+fn required_key_says(key: &str) -> &'static str {
+    match key {
+        "name" => "free text naming the machine",
+        "kind" => "one of `non-slip`, `slip`, `single-block`",
+        "blocks" => "a list of blocks in wire order, one die per block",
+        "cooling_between_dies" => {
+            "the fraction of the heat above ambient taken off between dies, in [0, 1] (0 for none)"
+        }
+        "capstan_diameter_mm" => "the capstan diameter, mm",
+        "motor_kw" => "the motor rating (shaft output), kW",
+        _ => "see README, \"Run a schedule on a machine\"",
+    }
+}
+
+/// serde's words for a missing or unknown key, said as the schedule's
+/// messages say them: the key, and what it holds or which keys are allowed.
+fn plain_words(said: &str) -> String {
+    if let Some((head, rest)) = said.split_once("missing field `") {
+        if let Some((key, tail)) = rest.split_once('`') {
+            return format!(
+                "{head}the key `{key}` is missing: {}{tail}",
+                required_key_says(key)
+            );
+        }
+    }
+    if let Some((head, rest)) = said.split_once("unknown field ") {
+        if let Some((name, list)) = rest.split_once(", expected ") {
+            let list = list.trim_start_matches("one of ");
+            return format!("{head}unknown field {name}: the keys here are {list}");
+        }
+    }
+    said.to_string()
 }
 
 fn value(key: String, r: Result<f64, ParamError>) -> Result<f64, MachineError> {

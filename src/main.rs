@@ -26,6 +26,15 @@ fn main() -> ExitCode {
     // A long computation may ask to be told instead (output::stop_on_interrupt).
     let _ = ctrlc::set_handler(|| output::on_interrupt(EXIT_INTERRUPTED));
     let cli = cli::Cli::parse();
+    if let Some(msg) = commands::usage_conflict(&cli.command) {
+        // Bad usage, told as clap tells it (exit status 2), before any work.
+        let mut root = <cli::Cli as clap::CommandFactory>::command();
+        root.build();
+        let name = cli.command.name();
+        let mut sub = root.find_subcommand_mut(name).cloned().unwrap_or(root);
+        sub.error(clap::error::ErrorKind::ArgumentConflict, msg)
+            .exit();
+    }
     match commands::run(cli.command, <cli::Cli as clap::CommandFactory>::command) {
         Ok(status) => ExitCode::from(status),
         Err(err) => {

@@ -179,3 +179,34 @@ fn a_schedule_on_a_machine_names_the_machine_under_the_title() {
     let v = json["summary"]["attainable_speed_m_s"].as_f64().unwrap();
     assert!(facts.contains(&format!("{v:.2} m/s")), "{facts}");
 }
+
+/// The catalogue page says what the `*` on a speed means (the table does),
+/// and a summary's values, words with a figure here and there, are one
+/// left-aligned column: only a column of figures alone is right-aligned.
+#[test]
+fn catalogue_page_explains_the_star_and_summaries_read_as_one_column() {
+    let html = page(&["check", "schedules-demo/", "--format", "html"]);
+    assert!(html.contains("26.00 *"), "the machine speed is marked");
+    assert!(
+        html.contains("* at the speed the machine allows"),
+        "the mark is explained"
+    );
+    assert!(html.contains("whips when it breaks"), "the whole caution");
+
+    let html = page(&[
+        "compare",
+        "schedules-demo/steel-multiblock.yaml",
+        "schedules-demo/copper-building-wire.yaml",
+        "--format",
+        "html",
+    ]);
+    // "1.577" (total strain) sits among words in the summary: left-aligned.
+    let summary = &html[html.find("<h2>Summary").expect("summary")..];
+    assert!(
+        summary.contains("<td>1.577</td>"),
+        "{}",
+        &summary[..2000.min(summary.len())]
+    );
+    // The pass table's figures stay right-aligned.
+    assert!(html.contains("<td class=\"n\">4.850</td>"));
+}

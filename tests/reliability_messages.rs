@@ -390,3 +390,66 @@ fn a_bad_unit_in_a_machine_file_names_the_key_and_the_units() {
         "{e}"
     );
 }
+
+/// A machine's temperature limit at or below the schedule's ambient would
+/// flag every die too hot; it is refused, as the schedule's own limit is,
+/// naming the key, the value and the ambient it must exceed, and no report
+/// is written.
+#[test]
+fn a_machine_temperature_limit_below_ambient_is_refused() {
+    let dir = tempfile::tempdir().unwrap();
+    let text = std::fs::read_to_string(common::root("machines/harrow-lane-dry-7.yaml")).unwrap();
+    let cold = text.replace("wire_temperature_max_c: 150", "wire_temperature_max_c: 20");
+    assert_ne!(cold, text, "the demo machine gives a limit");
+    let m = dir.path().join("cold.yaml");
+    std::fs::write(&m, cold).unwrap();
+    let out_file = dir.path().join("report.txt");
+    let out = common::coldpass(&[
+        "check",
+        "schedules-demo/steel-multiblock.yaml",
+        "--machine",
+        m.to_str().unwrap(),
+        "-o",
+        out_file.to_str().unwrap(),
+    ]);
+    assert_eq!(out.status.code(), Some(1));
+    let err = common::stderr(&out);
+    assert!(
+        err.contains("`wire_temperature_max_c` = 20") && err.contains("above the ambient 25 C"),
+        "{err}"
+    );
+    assert!(!out_file.exists(), "no report written");
+}
+
+/// A machine file's missing key says what the key holds, and a wrong key
+/// lists the keys allowed there, in the schedule messages' words.
+#[test]
+fn a_machine_file_missing_or_wrong_key_says_what_is_allowed() {
+    let dir = tempfile::tempdir().unwrap();
+    let cases = [
+        (
+            "name: x\nkind: slip\nblocks: []\n",
+            "the key `cooling_between_dies` is missing: the fraction of the heat",
+        ),
+        (
+            "name: x\nkind: non-slip\ncooling_between_dies: 0.5\nblocks:\n - {capstan_diameter_mm: 400, max_capstan_rpm: 300}\n",
+            "blocks[0]: the key `motor_kw` is missing: the motor rating",
+        ),
+        (
+            "name: x\nkind: non-slip\ncooling_between_dies: 0.5\nblocks:\n - {capstan_diameter_mm: 400, motor_kW: 3}\n",
+            "unknown field `motor_kW`: the keys here are `capstan_diameter_mm`, `motor_kw`",
+        ),
+    ];
+    for (i, (text, words)) in cases.iter().enumerate() {
+        let m = dir.path().join(format!("m{i}.yaml"));
+        std::fs::write(&m, text).unwrap();
+        let out = coldpass(&[
+            "check",
+            "schedules-demo/steel-multiblock.yaml",
+            "--machine",
+            m.to_str().unwrap(),
+        ]);
+        assert_eq!(out.status.code(), Some(1));
+        assert!(stderr(&out).contains(words), "{}", stderr(&out));
+    }
+}

@@ -179,3 +179,105 @@ fn the_page_holds_every_step_marks_flagged_rows_in_words_and_names_both_files() 
     ]));
     assert!(us.contains("<th>exit in A</th>") && us.contains("<th>power hp B</th>"));
 }
+
+/// The side-by-side summary answers the planner's question for both files:
+/// the attainable speed, the block and limit that bind and tonnes per shift
+/// at that speed (from each file's own check), and it keeps A and B beside
+/// each other at 80 columns by wrapping long values.
+#[test]
+fn the_summary_gives_the_attainable_speed_side_by_side_at_80_columns() {
+    let a = "schedules-demo/steel-multiblock.yaml";
+    let b = "schedules-demo/copper-building-wire.yaml";
+    let out = assert_cmd::Command::cargo_bin("coldpass")
+        .unwrap()
+        .current_dir(common::root(""))
+        .env("COLUMNS", "80")
+        .args(["compare", a, b])
+        .output()
+        .unwrap();
+    let text = stdout(&out);
+    assert!(text.lines().all(|l| l.chars().count() <= 80), "{text}");
+    let check = json(&["check", a, "--format", "json"]);
+    let speed = check["summary"]["attainable_speed_m_s"].as_f64().unwrap();
+    let block = check["summary"]["binding_block"].as_u64().unwrap();
+    let row = |label: &str| {
+        text.lines()
+            .find(|l| l.starts_with(&format!("│ {label} ")))
+            .unwrap_or_else(|| panic!("{label} missing:\n{text}"))
+            .to_string()
+    };
+    assert!(row("attainable speed").contains(&format!("{speed:.2} m/s")));
+    assert!(row("binding block and limit").contains(&format!("block {block}, motor-rating")));
+    // B has no machine: said, not left blank, on the same line as A.
+    assert!(row("tonnes per shift at it").contains("- (no machine)"));
+    // Side by side: one header row names both.
+    assert!(
+        text.lines()
+            .any(|l| l.contains("│ A ") && l.contains("│ B ")),
+        "{text}"
+    );
+}
+
+/// `--columns` and `--wide` shape compare's table as they shape check's (they
+/// were silently ignored): the picked quantities only, each as A and B; the
+/// wide set at 120 columns still fits, cut into panels led by the step.
+#[test]
+fn columns_and_wide_pick_the_compared_quantities() {
+    let run = |extra: &[&str]| {
+        let mut args = vec![
+            "compare",
+            "schedules-demo/steel-multiblock.yaml",
+            "schedules-demo/stainless-spring.yaml",
+        ];
+        args.extend_from_slice(extra);
+        assert_cmd::Command::cargo_bin("coldpass")
+            .unwrap()
+            .current_dir(common::root(""))
+            .env("COLUMNS", "120")
+            .args(&args)
+            .output()
+            .unwrap()
+    };
+    let picked = stdout(&run(&["--columns", "step,flow_stress_exit_mpa"]));
+    let passes = &picked[picked.find("Passes").unwrap()..picked.find("Summary").unwrap()];
+    assert!(passes.contains("MPa"), "{passes}");
+    assert!(
+        !passes.contains("ratio"),
+        "only the picked quantity:\n{passes}"
+    );
+    assert!(
+        !passes.contains("flags"),
+        "flags only when picked:\n{passes}"
+    );
+    // Step 1's exit flow stress of each file, as check reports it.
+    let fa = json(&[
+        "check",
+        "schedules-demo/steel-multiblock.yaml",
+        "--format",
+        "json",
+    ]);
+    let fb = json(&[
+        "check",
+        "schedules-demo/stainless-spring.yaml",
+        "--format",
+        "json",
+    ]);
+    let row = passes.lines().find(|l| l.starts_with("│ 1 ")).unwrap();
+    for f in [&fa, &fb] {
+        let v = f["passes"][0]["flow_stress_exit_mpa"].as_f64().unwrap();
+        assert!(row.contains(&format!(" {v:.0} ")), "{row}");
+    }
+
+    let wide = stdout(&run(&["--wide"]));
+    assert!(wide.lines().all(|l| l.chars().count() <= 120), "{wide}");
+    assert!(wide.contains("force") && wide.contains("Delta"), "{wide}");
+
+    // The page takes the same pick.
+    let page = stdout(&run(&["--columns", "step,force_kn", "--format", "html"]));
+    assert!(page.contains("<th>force kN A</th>") && page.contains("<th>force kN B</th>"));
+    assert!(!page.contains("draw ratio A") && !page.contains("flags A / B"));
+
+    let bad = run(&["--columns", "bogus"]);
+    assert_eq!(bad.status.code(), Some(1));
+    assert!(stderr(&bad).contains("no column is named 'bogus'"));
+}

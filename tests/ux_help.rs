@@ -11,16 +11,17 @@ use common::{coldpass, stderr, stdout};
 fn help_lists_the_methods_formats_units_and_exit_codes() {
     let top = stdout(&coldpass(&["--help"]));
     for code in [
-        "0  every figure",
-        "1  bad input",
-        "2  bad usage",
-        "3  a checked schedule",
+        "0    every figure",
+        "1    bad input",
+        "2    bad usage",
+        "3    a checked schedule",
+        "130  stopped",
     ] {
         assert!(top.contains(code), "{code} missing:\n{top}");
     }
     let check = stdout(&coldpass(&["check", "--help"]));
     assert!(
-        check.contains("3  a checked schedule"),
+        check.contains("3    a pass over a limit"),
         "check --help gives the exit codes"
     );
     for value in [
@@ -45,6 +46,66 @@ fn help_lists_the_methods_formats_units_and_exit_codes() {
     ]);
     assert_eq!(bad.status.code(), Some(2));
     assert!(stderr(&bad).contains("upper-bound"), "{}", stderr(&bad));
+}
+
+/// Every subcommand's `--help` ends with its own exit codes, each code the
+/// command can return (risk's 3 is a target missed, not a limit; design has
+/// no 3; init's 1 is an existing file).
+#[test]
+fn every_subcommand_help_gives_its_own_exit_codes() {
+    let cases: &[(&str, &[&str])] = &[
+        (
+            "check",
+            &[
+                "0    every pass",
+                "1    bad input",
+                "2    bad usage",
+                "3    a pass over",
+                "130  stopped",
+            ],
+        ),
+        (
+            "design",
+            &[
+                "0    a design",
+                "1    bad input, or no design",
+                "130  stopped",
+            ],
+        ),
+        (
+            "fit",
+            &[
+                "0    the record was fitted",
+                "1    bad input",
+                "130  stopped",
+            ],
+        ),
+        (
+            "compare",
+            &["0    both files", "1    bad input", "130  stopped"],
+        ),
+        (
+            "risk",
+            &[
+                "0    done",
+                "3    the schedule's break probability",
+                "130  stopped",
+            ],
+        ),
+        ("init", &["0    written", "1    the file exists already"]),
+        ("completions", &["0    printed", "2    bad usage"]),
+        ("man", &["0    printed", "2    bad usage"]),
+    ];
+    for (sub, codes) in cases {
+        let help = stdout(&coldpass(&[sub, "--help"]));
+        assert!(help.contains("Exit status:"), "{sub}:\n{help}");
+        for code in *codes {
+            assert!(help.contains(code), "{sub}: {code} missing:\n{help}");
+        }
+        if *sub == "design" {
+            assert!(!help.contains("\n  3 "), "design never exits 3:\n{help}");
+        }
+    }
 }
 
 #[test]
@@ -127,6 +188,17 @@ fn init_writes_starters_that_check_clean_and_never_overwrites() {
     assert_eq!(run(&["init", "design", "d.yaml"]).status.code(), Some(0));
     let design = run(&["design", "d.yaml", "--format", "json"]);
     assert_eq!(design.status.code(), Some(0), "{}", stderr(&design));
+    let j: serde_json::Value = serde_json::from_slice(&design.stdout).unwrap();
+    assert_eq!(
+        j["schedule"]["summary"]["verdict"], "ok",
+        "the starter design is clean too, not just within limits: {}",
+        j["schedule"]["passes"]
+    );
+
+    // A folder gets the starter under its default name.
+    std::fs::create_dir(dir.path().join("starters")).unwrap();
+    assert_eq!(run(&["init", "machine", "starters"]).status.code(), Some(0));
+    assert!(dir.path().join("starters/machine.yaml").is_file());
 
     // A second init refuses, naming the file, and leaves it as it was.
     std::fs::write(dir.path().join("schedule.yaml"), "mine").unwrap();

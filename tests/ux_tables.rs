@@ -351,3 +351,54 @@ fn fit_compare_and_the_catalogue_fit_60_80_and_120_columns() {
         "schedules-demo/copper-line-3-speed.yaml",
     ]);
 }
+
+/// `--columns` is named by the JSON keys: every key a pass carries in the JSON
+/// (nested keys joined by a dot) is a column, so a user who reads a key in
+/// the JSON can ask the table for it (a machine schedule, so that `block`
+/// and the carried temperatures are there).
+#[test]
+fn every_pass_key_of_the_json_is_a_column() {
+    let j = json("schedules-demo/steel-multiblock.yaml");
+    let pass = j["passes"][0].as_object().unwrap();
+    let mut keys = Vec::new();
+    for (k, v) in pass {
+        match v {
+            serde_json::Value::Object(inner) => {
+                keys.extend(inner.keys().map(|i| format!("{k}.{i}")));
+            }
+            // `kind` is the row's own word (draw or anneal), not a figure.
+            _ if k == "kind" => {}
+            _ => keys.push(k.clone()),
+        }
+    }
+    assert!(keys.len() > 30, "{keys:?}");
+    for key in &keys {
+        let out = at_width(
+            120,
+            &[
+                "check",
+                "schedules-demo/steel-multiblock.yaml",
+                "--columns",
+                &format!("step,{key}"),
+            ],
+        );
+        assert_eq!(out.status.code(), Some(0), "{key}: {}", stderr(&out));
+    }
+    let out = at_width(
+        120,
+        &[
+            "check",
+            "schedules-demo/steel-multiblock.yaml",
+            "--columns",
+            "step,block,net_pull_kn,tensile_strength_mpa",
+        ],
+    );
+    let text = stdout(&out);
+    assert!(text.contains("net pull"), "{text}");
+    // Block 7 carries die 7 on this machine.
+    assert!(
+        text.lines()
+            .any(|l| l.starts_with("│ 7 ") && l.contains("│ 7 ")),
+        "{text}"
+    );
+}

@@ -24,7 +24,7 @@ pub fn files(args: &CheckArgs) -> Result<Vec<PathBuf>> {
     let mut out = Vec::new();
     for p in std::iter::once(&args.file).chain(&args.more) {
         if p.is_dir() {
-            let mut found: Vec<PathBuf> = std::fs::read_dir(p)
+            let yaml: Vec<PathBuf> = std::fs::read_dir(p)
                 .with_context(|| format!("reading folder '{}'", p.display()))?
                 .filter_map(|e| e.ok().map(|e| e.path()))
                 .filter(|f| {
@@ -32,11 +32,29 @@ pub fn files(args: &CheckArgs) -> Result<Vec<PathBuf>> {
                         e.eq_ignore_ascii_case("yaml") || e.eq_ignore_ascii_case("yml")
                     })
                 })
-                .filter(|f| {
+                .collect();
+            let (mut found, mut left): (Vec<PathBuf>, Vec<PathBuf>) =
+                yaml.into_iter().partition(|f| {
                     crate::input::read_text(f)
                         .is_ok_and(|t| t.lines().any(|l| l.starts_with("passes:")))
-                })
-                .collect();
+                });
+            if !left.is_empty() {
+                // Said on standard error, so the report's formats stay clean:
+                // a planner sees which files of the folder are not in it.
+                left.sort();
+                let names: Vec<String> = left
+                    .iter()
+                    .map(|f| {
+                        f.file_name()
+                            .map(|n| n.to_string_lossy().into_owned())
+                            .unwrap_or_default()
+                    })
+                    .collect();
+                eprintln!(
+                    "note: left out of the catalogue, no `passes:` list (design, law or machine files): {}",
+                    names.join(", ")
+                );
+            }
             if found.is_empty() {
                 bail!(
                     "folder '{}' holds no schedule file (a .yaml file with a `passes:` list)",

@@ -101,30 +101,73 @@ pub fn machine_of(
             .join(rel),
         (None, None) => return Ok(None),
     };
-    let text = crate::input::read_text(&path).with_context(|| {
-        if given.is_some() {
-            "reading the --machine file".to_string()
-        } else {
-            format!(
-                "reading the machine file that '{}' names (machine: {})",
-                schedule_path.display(),
-                file.machine.as_deref().unwrap_or_default()
-            )
-        }
-    })?;
+    let text = crate::input::read_text(&path)
+        .map(strip_bom)
+        .with_context(|| {
+            if given.is_some() {
+                "reading the --machine file".to_string()
+            } else {
+                format!(
+                    "reading the machine file that '{}' names (machine: {})",
+                    schedule_path.display(),
+                    file.machine.as_deref().unwrap_or_default()
+                )
+            }
+        })?;
+    if looks_csv(&text, &path) {
+        anyhow::bail!(
+            "'{}' is not a machine file: it looks like a CSV table; a machine file is YAML with \
+             `kind:` and `blocks:` (`coldpass init machine` writes one)",
+            path.display()
+        );
+    }
+    if let Some(kind) = other_kind(&text, Expected::Machine, &path) {
+        anyhow::bail!(
+            "'{}' is not a machine file: it looks like {kind}; a machine file has `kind:` and \
+             `blocks:` (`coldpass init machine` writes one)",
+            path.display()
+        );
+    }
     let m =
         machine::parse(&text).with_context(|| format!("reading machine '{}'", path.display()))?;
+    // The wire enters die 1 at the schedule's ambient and only warms: a limit
+    // at or below it flags every die, as the schedule's own limit would be
+    // refused for.
+    let ambient = file.limits.ambient_c.unwrap_or(schedule::DEFAULT_AMBIENT_C);
+    if let Some(t) = m.wire_temperature_max_c.filter(|&t| t <= ambient) {
+        anyhow::bail!(
+            "reading machine '{}': `wire_temperature_max_c` = {t}: allowed above the ambient \
+             {ambient} C at which the wire enters die 1 (the schedule's `limits.ambient_c`), \
+             and at most {} C",
+            path.display(),
+            schedule::WIRE_TEMPERATURE_MAX_C
+        );
+    }
     Ok(Some((path, m)))
 }
 
 /// Reads a schedule (or design) file's text: a UTF-8 byte-order mark is
 /// dropped, and a CSV file is refused in one line, pointing to `fit`.
 pub fn read_schedule_text(path: &std::path::Path) -> Result<String> {
-    let text = crate::input::read_text(path)?;
-    let text = text
-        .strip_prefix('\u{feff}')
-        .map(str::to_string)
-        .unwrap_or(text);
+    let text = strip_bom(crate::input::read_text(path)?);
+    if let Some(kind) = other_kind(&text, Expected::Schedule, path) {
+        anyhow::bail!(
+            "'{}' is not a schedule or design file: it looks like {kind}",
+            path.display()
+        );
+    }
+    if looks_csv(&text, path) {
+        anyhow::bail!(
+            "'{}' looks like a CSV table, not a schedule file: check and design read YAML (title:, material:, passes: ...); a tensile record goes to `coldpass fit`",
+            path.display()
+        );
+    }
+    Ok(text)
+}
+
+/// Whether a file is a CSV table: named `.csv`, or its first line that is
+/// not a comment holds commas and no `key:`.
+fn looks_csv(text: &str, path: &std::path::Path) -> bool {
     let is_csv_name = path
         .extension()
         .and_then(|e| e.to_str())
@@ -134,12 +177,57 @@ pub fn read_schedule_text(path: &std::path::Path) -> Result<String> {
         .map(str::trim)
         .find(|l| !l.is_empty() && !l.starts_with('#'))
         .unwrap_or("");
-    let looks_csv = first.contains(',') && !first.contains(':');
-    if is_csv_name || looks_csv {
-        anyhow::bail!(
-            "'{}' looks like a CSV table, not a schedule file: check and design read YAML (title:, material:, passes: ...); a tensile record goes to `coldpass fit`",
+    is_csv_name || (first.contains(',') && !first.contains(':'))
+}
+
+/// `text` without a leading UTF-8 byte-order mark.
+fn strip_bom(text: String) -> String {
+    text.strip_prefix('\u{feff}')
+        .map(str::to_string)
+        .unwrap_or(text)
+}
+
+/// Which kind of file a command expects.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Expected {
+    Schedule,
+    Machine,
+}
+
+/// The top-level keys of a YAML file: the lines that start at column 0 with
+/// `key:` (comments and list items left out). A cheap look, taken only to
+/// name a file given in the wrong place; the parser still has the last word.
+fn top_keys(text: &str) -> Vec<&str> {
+    text.lines()
+        .filter(|l| !l.starts_with([' ', '\t', '#', '-']))
+        .filter_map(|l| l.split_once(':').map(|(k, _)| k.trim()))
+        .filter(|k| !k.is_empty() && !k.contains(' '))
+        .collect()
+}
+
+/// What `text` is when it is plainly another kind of coldpass file than the
+/// one expected, with where it goes (`None` when it may be the right one).
+fn other_kind(text: &str, expected: Expected, path: &std::path::Path) -> Option<String> {
+    let keys = top_keys(text);
+    let has = |k: &str| keys.contains(&k);
+    let schedule_like = has("passes") || has("material") || has("target") || has("start");
+    match expected {
+        Expected::Schedule if !schedule_like && has("blocks") && has("kind") => Some(format!(
+            "a machine file (it has `kind:` and `blocks:`): give it with --machine {} or as \
+             `machine: {}` in the schedule",
+            path.display(),
             path.display()
-        );
+        )),
+        Expected::Schedule if !schedule_like && has("flow") => Some(
+            "a flow law (`flow:` alone, as `coldpass fit --emit-law` writes it): paste its \
+             blocks under `material:` in a schedule"
+                .into(),
+        ),
+        Expected::Machine if schedule_like => Some(
+            "a schedule or design file (it has `material:`, `start:`, `passes:` or `target:`): \
+             give the schedule as check's FILE and its machine with --machine"
+                .into(),
+        ),
+        _ => None,
     }
-    Ok(text)
 }

@@ -26,8 +26,8 @@ pub struct InitArgs {
     /// Which starter file to write.
     #[arg(value_enum)]
     pub kind: Starter,
-    /// Where to write it (default: schedule.yaml, design.yaml or machine.yaml here); an
-    /// existing file is never overwritten.
+    /// Where to write it (default: schedule.yaml, design.yaml or machine.yaml here; a
+    /// folder gets that name inside it); an existing file is never overwritten.
     pub file: Option<PathBuf>,
 }
 
@@ -42,13 +42,17 @@ pub fn starter(kind: Starter) -> &'static str {
 
 /// Runs `coldpass init`.
 pub fn run(args: &InitArgs) -> Result<u8> {
-    let path = args.file.clone().unwrap_or_else(|| {
-        PathBuf::from(match args.kind {
-            Starter::Schedule => "schedule.yaml",
-            Starter::Design => "design.yaml",
-            Starter::Machine => "machine.yaml",
-        })
-    });
+    let default_name = match args.kind {
+        Starter::Schedule => "schedule.yaml",
+        Starter::Design => "design.yaml",
+        Starter::Machine => "machine.yaml",
+    };
+    // A folder gets the starter under its default name, as `cp` would.
+    let path = match &args.file {
+        Some(p) if p.is_dir() => p.join(default_name),
+        Some(p) => p.clone(),
+        None => PathBuf::from(default_name),
+    };
     if path.exists() {
         bail!(
             "'{}' already exists; init never overwrites a file: name another (coldpass init {} NEW.yaml)",

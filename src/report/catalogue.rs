@@ -13,8 +13,14 @@ use serde::Serialize;
 use super::units::{Quantity, Units};
 use super::{fixed, Format, Look};
 
-/// The caution on every catalogue.
-const CAUTION: &str = "Planning estimates only: confirm every figure by trial; the machine maker's limits, local codes and licensed practice govern.";
+/// What the `*` on a speed means, and at which speed the power is.
+const SPEED_NOTE: &str = "* at the speed the machine allows (attainable_speed_m_s); others at \
+     line.finish_speed_m_s. Total power is at the speed the schedule is checked at: \
+     line.finish_speed_m_s when the file gives one, else the attainable speed";
+
+/// The caution on every catalogue: the check report's own, safety words
+/// included (a catalogue is read on the shop floor as much as one check).
+const CAUTION: &str = coldpass::evaluation::CAUTION;
 
 /// One product's row.
 #[derive(Debug, Clone, Serialize)]
@@ -226,11 +232,7 @@ pub fn render(products: &[Product], format: Format, look: &Look) -> Result<Vec<u
             );
             let mut out = format!("Catalogue: {} products\n{t}\n", products.len());
             if products.iter().any(|p| p.attainable_speed_m_s.is_some()) {
-                out.push_str(&super::table::wrap(
-                    "* at the speed the machine allows (attainable_speed_m_s); others at line.finish_speed_m_s",
-                    look.table.width,
-                    "  ",
-                ));
+                out.push_str(&super::table::wrap(SPEED_NOTE, look.table.width, "  "));
                 out.push('\n');
             }
             let errors: Vec<&Product> = products.iter().filter(|p| p.error.is_some()).collect();
@@ -279,7 +281,16 @@ pub fn render(products: &[Product], format: Format, look: &Look) -> Result<Vec<u
                     page_break_before: false,
                 }],
                 charts: vec![],
-                notes: products.iter().filter_map(|p| p.error.clone()).collect(),
+                notes: products
+                    .iter()
+                    .filter_map(|p| p.error.clone())
+                    .chain(
+                        products
+                            .iter()
+                            .any(|p| p.attainable_speed_m_s.is_some())
+                            .then(|| SPEED_NOTE.to_string()),
+                    )
+                    .collect(),
                 caution: CAUTION.into(),
             };
             super::html::render(&page).into_bytes()

@@ -329,6 +329,53 @@ pub const ALL: &[Column] = &[
         0,
         false,
     ),
+    num(
+        "net_pull_kn",
+        "net pull",
+        Q::Force,
+        |r| r.net_pull_kn,
+        2,
+        false,
+    ),
+    num(
+        "wire_temperature_entry_c",
+        "wire temperature in",
+        Q::Temperature,
+        |r| r.wire_temperature_entry_c,
+        0,
+        false,
+    ),
+    num(
+        "wire_temperature_no_cooling_c",
+        "no cooling",
+        Q::Temperature,
+        |r| r.wire_temperature_no_cooling_c,
+        0,
+        false,
+    ),
+    num(
+        "entry_yield_mpa",
+        "entry yield",
+        Q::Stress,
+        |r| r.entry_yield_mpa,
+        0,
+        false,
+    ),
+    num(
+        "tensile_strength_mpa",
+        "tensile strength",
+        Q::Stress,
+        |r| r.tensile_strength_mpa,
+        0,
+        false,
+    ),
+    Column {
+        key: "block",
+        words: "block",
+        quantity: Q::Plain,
+        read: Read::Text(|r| r.block.map(|b| b.to_string()).unwrap_or_default()),
+        on_anneal: false,
+    },
     Column {
         key: "flags",
         words: "flags",
@@ -348,7 +395,15 @@ pub fn find(key: &str) -> Option<&'static Column> {
 pub fn pick(keys: &[String]) -> Result<Vec<&'static Column>, String> {
     keys.iter()
         .map(|k| {
-            find(k.trim()).ok_or_else(|| {
+            if k.trim().is_empty() {
+                return Err(format!(
+                    "--columns: an empty name (two commas together, or a comma at an end) in '{}'; \
+                     name the columns by their JSON keys, comma-separated, e.g. step,exit_diameter_mm,draw_ratio,flags",
+                    keys.join(",")
+                ));
+            }
+            // Keys are lower case; a name typed in capitals means the same key.
+            find(&k.trim().to_ascii_lowercase()).ok_or_else(|| {
                 format!(
                     "--columns: no column is named '{}'; the columns are (JSON keys): {}",
                     k.trim(),
@@ -398,5 +453,11 @@ mod tests {
         assert_eq!(fixed_set(FIRST).len(), FIRST.len());
         let e = pick(&["exit_diameter_mm".into(), "nope".into()]).unwrap_err();
         assert!(e.contains("'nope'") && e.contains("draw_ratio"), "{e}");
+        let e = pick(&["step".into(), "".into(), "flags".into()]).unwrap_err();
+        assert!(
+            e.contains("an empty name") && e.contains("'step,,flags'"),
+            "{e}"
+        );
+        assert_eq!(pick(&["Draw_Ratio".into()]).unwrap()[0].key, "draw_ratio");
     }
 }

@@ -20,6 +20,7 @@ use tabled::settings::peaker::PriorityMax;
 use tabled::settings::{Alignment, Span, Style, Width};
 
 use super::columns::{self, Column};
+use super::table::View;
 use super::units::Units;
 use super::{html, Format, Look};
 
@@ -31,6 +32,43 @@ const COMPARED: [&str; 5] = [
     "power_kw",
     "wire_temperature_c",
 ];
+
+/// The columns `--wide` compares per pass (the table only; JSON, YAML and
+/// CSV keep [`COMPARED`]).
+const COMPARED_WIDE: [&str; 13] = [
+    "exit_diameter_mm",
+    "area_reduction",
+    "cumulative_reduction",
+    "strain_after",
+    "flow_stress_exit_mpa",
+    "governing_draw_stress_mpa",
+    "draw_ratio",
+    "delta",
+    "semi_angle_deg",
+    "force_kn",
+    "exit_speed_m_s",
+    "power_kw",
+    "wire_temperature_c",
+];
+
+/// The table's pass columns for `view`, and whether the flags are shown:
+/// the default set, `--wide`'s, or `--columns`' (the step always leads, so
+/// naming it is allowed and changes nothing).
+fn compared_columns(view: &View) -> Result<(Vec<&'static Column>, bool)> {
+    Ok(match view {
+        View::First => (columns::fixed_set(&COMPARED), true),
+        View::Wide => (columns::fixed_set(&COMPARED_WIDE), true),
+        View::Pick(keys) => {
+            let picked = columns::pick(keys).map_err(|e| anyhow::anyhow!(e))?;
+            let flags = picked.iter().any(|c| c.key == "flags");
+            let cols = picked
+                .into_iter()
+                .filter(|c| c.key != "step" && c.key != "flags")
+                .collect();
+            (cols, flags)
+        }
+    })
+}
 
 #[derive(Serialize)]
 struct Side {
@@ -205,6 +243,8 @@ fn pass_panel(
     for (col, n) in spans {
         t.modify((0, col), Span::column(n));
     }
+    // The border over a spanned header is one line, not split at A | B.
+    t.with(tabled::settings::themes::BorderCorrection::span());
     if let Some(w) = wrap {
         t.with(
             Width::wrap(w)
@@ -215,14 +255,30 @@ fn pass_panel(
     t.to_string()
 }
 
-fn table(a: &ScheduleReport, b: &ScheduleReport, names: &[String; 2], look: &Look) -> String {
+/// A schedule's summary rows, then its machine's (the attainable speed, the
+/// block and limit that bind, tonnes per shift at it) when either side runs
+/// on a machine.
+fn summary_rows(rep: &ScheduleReport, units: Units, machine: bool) -> Vec<(String, String)> {
+    let mut rows = super::table::summary_rows(rep, units);
+    if machine {
+        rows.extend(super::machine::summary_rows(rep, units));
+    }
+    rows
+}
+
+fn table(
+    a: &ScheduleReport,
+    b: &ScheduleReport,
+    names: &[String; 2],
+    look: &Look,
+) -> Result<String> {
     let units = look.table.units;
     let width = look.table.width;
-    let cols = columns::fixed_set(&COMPARED);
+    let (cols, with_flags) = compared_columns(&look.table.view)?;
     // Cut into panels of whole quantities, each led by the step, when wider
     // than the terminal: no header word or figure is broken.
     let natural = |g: &[usize]| super::table::widest(&pass_panel(a, b, &cols, g, units, None));
-    let t = super::table::panels(cols.len() + 2, width, natural)
+    let t = super::table::panels(cols.len() + 1 + usize::from(with_flags), width, natural)
         .iter()
         .map(|g| {
             let p = pass_panel(a, b, &cols, g, units, None);
@@ -235,12 +291,28 @@ fn table(a: &ScheduleReport, b: &ScheduleReport, names: &[String; 2], look: &Loo
         .collect::<Vec<_>>()
         .join("\n\n");
 
-    // The two summaries side by side; A and B one under the other when
-    // side by side is wider than the terminal.
-    let rows = super::table::summary_rows(a, units)
+    // The two summaries side by side, a long value wrapped at words so that
+    // A and B stay beside each other; one under the other only when even
+    // wrapped they are wider than the terminal.
+    let machine = a.machine.is_some() || b.machine.is_some();
+    let pairs: Vec<(String, String, String)> = summary_rows(a, units, machine)
         .into_iter()
-        .zip(super::table::summary_rows(b, units))
-        .map(|((k, va), (_, vb))| vec![k, va, vb])
+        .zip(summary_rows(b, units, machine))
+        .map(|((k, va), (_, vb))| (k, va, vb))
+        .collect();
+    let key_width = pairs.iter().map(|p| p.0.chars().count()).max().unwrap_or(0);
+    // Borders and padding of three columns: 4 bars and 2 spaces a column.
+    let value_width = width.saturating_sub(key_width + 10) / 2;
+    let fit = |v: String| {
+        if value_width >= 20 && v.chars().count() > value_width {
+            super::table::wrap(&v, value_width, "")
+        } else {
+            v
+        }
+    };
+    let rows = pairs
+        .into_iter()
+        .map(|(k, va, vb)| vec![k, fit(va), fit(vb)])
         .collect();
     let st = super::table::build(
         ["", "A", "B"].map(String::from).to_vec(),
@@ -262,7 +334,7 @@ fn table(a: &ScheduleReport, b: &ScheduleReport, names: &[String; 2], look: &Loo
         "\nPasses (change = B - A)\n{t}\n\nSummary\n{st}\n\n{}\n",
         super::table::wrap(&format!("Caution: {}", a.caution), look.table.width, "")
     ));
-    out
+    Ok(out)
 }
 
 /// Renders the comparison of `a` and `b` (named by `names`) in `format`.
@@ -284,7 +356,7 @@ pub fn render(
         caution: &a.caution,
     };
     Ok(match format {
-        Format::Table => table(a, b, names, look).into_bytes(),
+        Format::Table => table(a, b, names, look)?.into_bytes(),
         Format::Json => {
             let mut s = serde_json::to_string_pretty(&whole())?;
             s.push('\n');
@@ -293,7 +365,7 @@ pub fn render(
         Format::Yaml => serde_yaml::to_string(&whole())?.into_bytes(),
         Format::Csv if look.csv_summary => csv_summary(a, b, names)?,
         Format::Csv => csv(a, b)?,
-        Format::Html => page(a, b, names, look.table.units).into_bytes(),
+        Format::Html => page(a, b, names, look)?.into_bytes(),
     })
 }
 
@@ -396,8 +468,14 @@ fn worse(x: Option<&StepReport>, y: Option<&StepReport>) -> html::Status {
 /// The comparison page: both files named, the pass table (the table's
 /// columns, each quantity's header with its unit and `A` or `B`), the two
 /// summaries side by side, the caution.
-fn page(a: &ScheduleReport, b: &ScheduleReport, names: &[String; 2], units: Units) -> String {
-    let cols = columns::fixed_set(&COMPARED);
+fn page(
+    a: &ScheduleReport,
+    b: &ScheduleReport,
+    names: &[String; 2],
+    look: &Look,
+) -> Result<String> {
+    let units = look.table.units;
+    let (cols, with_flags) = compared_columns(&look.table.view)?;
     let mut header = vec!["step".to_string()];
     for c in &cols {
         let h = c.header(units);
@@ -407,7 +485,9 @@ fn page(a: &ScheduleReport, b: &ScheduleReport, names: &[String; 2], units: Unit
             header.push(format!("{h} B - A"));
         }
     }
-    header.push("flags A / B".into());
+    if with_flags {
+        header.push("flags A / B".into());
+    }
     let rows = (0..a.passes.len().max(b.passes.len()))
         .map(|i| {
             let (x, y) = (a.passes.get(i), b.passes.get(i));
@@ -431,16 +511,19 @@ fn page(a: &ScheduleReport, b: &ScheduleReport, names: &[String; 2], units: Unit
             };
             let mut flags = tagged("A", x);
             flags.extend(tagged("B", y));
-            cells.push(flags.join(", "));
+            if with_flags {
+                cells.push(flags.join(", "));
+            }
             html::Row {
                 cells,
                 status: worse(x, y),
             }
         })
         .collect();
-    let summary_rows = super::table::summary_rows(a, units)
+    let machine = a.machine.is_some() || b.machine.is_some();
+    let summary_rows = summary_rows(a, units, machine)
         .into_iter()
-        .zip(super::table::summary_rows(b, units))
+        .zip(summary_rows(b, units, machine))
         .map(|((k, va), (_, vb))| html::Row {
             cells: vec![k, va, vb],
             status: html::Status::None,
@@ -480,5 +563,5 @@ fn page(a: &ScheduleReport, b: &ScheduleReport, names: &[String; 2], units: Unit
         notes: Vec::new(),
         caution: a.caution.clone(),
     };
-    html::render(&p)
+    Ok(html::render(&p))
 }

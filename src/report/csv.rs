@@ -71,7 +71,7 @@ pub fn num(x: Option<f64>) -> String {
 
 /// The summary CSV's columns: the JSON `summary` keys, then the method,
 /// title and caution.
-pub const SUMMARY_HEADER: [&str; 18] = [
+pub const SUMMARY_HEADER: [&str; 24] = [
     "start_diameter_mm",
     "finish_diameter_mm",
     "total_area_reduction",
@@ -86,6 +86,12 @@ pub const SUMMARY_HEADER: [&str; 18] = [
     "throughput_t_per_shift",
     "coil_time_min",
     "total_power_kw",
+    "tensile_strength_mpa",
+    "considere_strain",
+    "attainable_speed_m_s",
+    "binding_block",
+    "binding_limit",
+    "attainable_t_per_shift",
     "verdict",
     "method",
     "title",
@@ -110,6 +116,14 @@ pub fn summary_record(rep: &ScheduleReport) -> Result<Vec<String>> {
         num(s.throughput_t_per_shift),
         num(s.coil_time_min),
         num(s.total_power_kw),
+        num(s.tensile_strength_mpa),
+        num(s.considere_strain),
+        num(s.attainable_speed_m_s),
+        s.binding_block.map(|b| b.to_string()).unwrap_or_default(),
+        s.binding_limit
+            .map(|l| l.name().to_string())
+            .unwrap_or_default(),
+        num(s.attainable_t_per_shift),
         serde_json::to_value(s.verdict)?
             .as_str()
             .unwrap_or_default()

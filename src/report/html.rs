@@ -191,14 +191,35 @@ fn facts(facts: &[(String, String)]) -> Markup {
     }
 }
 
-/// Whether a cell holds a figure (right-aligned).
+/// Whether a cell holds a figure: a number, `-`, or a number marked ` *`
+/// (the catalogue's speed the machine allows).
 fn is_figure(s: &str) -> bool {
     let t = s.trim();
+    let t = t.strip_suffix(" *").unwrap_or(t);
     t == "-" || (!t.is_empty() && t.parse::<f64>().is_ok())
+}
+
+/// Per column, whether it is right-aligned: every cell that is not empty is
+/// a figure. A column of words with a figure here and there (a summary's
+/// values) stays left-aligned, so it reads as one column.
+fn figure_columns(t: &Table) -> Vec<bool> {
+    let n = t.rows.iter().map(|r| r.cells.len()).max().unwrap_or(0);
+    (0..n)
+        .map(|i| {
+            let mut cells = t
+                .rows
+                .iter()
+                .filter_map(|r| r.cells.get(i))
+                .filter(|c| !c.trim().is_empty())
+                .peekable();
+            cells.peek().is_some() && cells.all(|c| is_figure(c))
+        })
+        .collect()
 }
 
 fn table(t: &Table) -> Markup {
     let with_status = t.rows.iter().any(|r| r.status != Status::None);
+    let figures = figure_columns(t);
     html! {
         section class=[t.page_break_before.then_some("pagebreak")] {
             h2 { (t.heading) }
@@ -211,8 +232,8 @@ fn table(t: &Table) -> Markup {
                     tbody {
                         @for r in &t.rows {
                             tr class=[with_status.then_some(r.status.class())] {
-                                @for c in &r.cells {
-                                    td class=[is_figure(c).then_some("n")] { (c) }
+                                @for (i, c) in r.cells.iter().enumerate() {
+                                    td class=[figures.get(i).copied().unwrap_or(false).then_some("n")] { (c) }
                                 }
                                 @if with_status { td.status { (r.status.word()) } }
                             }

@@ -157,6 +157,31 @@ fn machine_heading(m: &MachineRun, units: Units) -> String {
     )
 }
 
+/// The machine summary's rows of `rep` for a side-by-side summary (compare):
+/// the attainable speed, the block and limit that bind, tonnes per shift at
+/// it and the motor load; `-` on every row for a schedule with no machine, so
+/// that two reports' rows line up.
+pub fn summary_rows(rep: &ScheduleReport, units: Units) -> Vec<(String, String)> {
+    match &rep.machine {
+        Some(m) => machine_summary(rep, m, units)
+            .into_iter()
+            .map(|[k, v]| (k, v))
+            .collect(),
+        None => [
+            "attainable speed",
+            "binding block and limit",
+            match units {
+                Units::Si => "tonnes per shift at it",
+                Units::Us => "short tons per shift at it",
+            },
+            "total motor load",
+        ]
+        .into_iter()
+        .map(|k| (k.to_string(), "- (no machine)".to_string()))
+        .collect(),
+    }
+}
+
 fn machine_summary(rep: &ScheduleReport, m: &MachineRun, units: Units) -> Vec<[String; 2]> {
     let s = &rep.summary;
     let attainable = match (s.attainable_speed_m_s, units) {
@@ -269,7 +294,7 @@ pub fn html_tables(rep: &ScheduleReport, units: Units) -> Vec<html::Table> {
 }
 
 /// The machine and temperature CSV columns, inserted before the caution.
-const CSV_COLUMNS: [&str; 14] = [
+const CSV_COLUMNS: [&str; 21] = [
     "wire_temperature_entry_c",
     "wire_temperature_no_cooling_c",
     "entry_yield_mpa",
@@ -281,9 +306,16 @@ const CSV_COLUMNS: [&str; 14] = [
     "machine.slip",
     "machine.net_power_kw",
     "machine.motor_load",
+    "machine.wire_speed_m_s",
+    "machine.net_pull_kn",
+    "machine.motor_load_kw",
+    "machine.motor_kw",
+    "machine.wire_temperature_in_c",
+    "machine.wire_temperature_out_c",
     "summary.attainable_speed_m_s",
     "summary.binding_block",
     "summary.binding_limit",
+    "summary.attainable_t_per_shift",
 ];
 
 /// The CSV header with the machine columns before the last (the caution).
@@ -296,9 +328,8 @@ pub fn csv_header(base: &[&str]) -> Vec<String> {
         .collect()
 }
 
-fn num(x: Option<f64>) -> String {
-    x.map(|v| v.to_string()).unwrap_or_default()
-}
+// Rounded as every CSV figure is (the JSON keeps full precision).
+use super::csv::num;
 
 /// Inserts one step's machine columns before the last field of `record`.
 pub fn csv_record(rep: &ScheduleReport, r: &StepReport, mut record: Vec<String>) -> Vec<String> {
@@ -319,11 +350,18 @@ pub fn csv_record(rep: &ScheduleReport, r: &StepReport, mut record: Vec<String>)
         num(block.map(|b| b.slip)),
         num(block.map(|b| b.net_power_kw)),
         num(block.map(|b| b.motor_load)),
+        num(block.map(|b| b.wire_speed_m_s)),
+        num(block.map(|b| b.net_pull_kn)),
+        num(block.map(|b| b.motor_load_kw)),
+        num(block.map(|b| b.motor_kw)),
+        num(block.map(|b| b.wire_temperature_in_c)),
+        num(block.map(|b| b.wire_temperature_out_c)),
         num(s.attainable_speed_m_s),
         s.binding_block.map(|b| b.to_string()).unwrap_or_default(),
         s.binding_limit
             .map(|l| l.name().to_string())
             .unwrap_or_default(),
+        num(s.attainable_t_per_shift),
     ];
     let last = record.pop().unwrap_or_default();
     record.extend(extra);

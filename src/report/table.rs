@@ -301,10 +301,17 @@ pub fn summary_rows(rep: &ScheduleReport, units: Units) -> Vec<(String, String)>
         units,
         "",
     );
+    // On a machine with no finish speed the throughput is the machine's, at
+    // the attainable speed: say where it is rather than only that it is not here.
+    let no_line = if s.attainable_t_per_shift.is_some() {
+        "- (no line.finish_speed_m_s: at the attainable speed, see the machine summary)"
+    } else {
+        "- (no line block)"
+    };
     let mass = match units {
         Units::Si => match (s.throughput_kg_h, s.throughput_t_per_shift) {
             (Some(kg), Some(t)) => format!("{kg:.0} kg/h, {t:.1} t per shift"),
-            _ => "- (no line block)".into(),
+            _ => no_line.into(),
         },
         // Pounds (avoirdupois, 0.453 592 37 kg exact) and short tons of 2000 lb.
         Units::Us => match (s.throughput_kg_h, s.throughput_t_per_shift) {
@@ -313,7 +320,7 @@ pub fn summary_rows(rep: &ScheduleReport, units: Units) -> Vec<(String, String)>
                 kg / coldpass::size::quantity::KG_PER_POUND,
                 t * 1000.0 / coldpass::size::quantity::KG_PER_POUND / 2000.0
             ),
-            _ => "- (no line block)".into(),
+            _ => no_line.into(),
         },
     };
     vec![
@@ -407,6 +414,7 @@ const WIDE_LINE: &[&str] = &[
     "step",
     "entry_diameter_mm",
     "force_kn",
+    "net_pull_kn",
     "exit_speed_m_s",
     "power_kw",
     "temperature_rise_c",

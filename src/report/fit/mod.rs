@@ -16,7 +16,7 @@ use coldpass::fit::{self, DataKind, FitLaw, FitReport, LawFit, Scatter, Yielding
 use coldpass::FlowLaw;
 
 /// The caution every report carries.
-pub const CAUTION: &str = "Caution: fitted laws describe this record only; figures are planning estimates to confirm by trial; follow the machine maker's limits, local codes and licensed practice.";
+pub const CAUTION: &str = "Caution: fitted laws describe this record only; figures are planning estimates to confirm by trial. Wire under tension whips when it breaks and running capstans trap hands; follow the machine maker's limits, local codes and licensed practice.";
 
 /// Where the record came from, for headings.
 pub struct Source {
