@@ -337,11 +337,6 @@ impl<'f> Input<'f> {
     }
 }
 
-/// Fraction below a ratio cap at which a tier is tried again when its
-/// passes, laid out at their real sizes, land just over the cap (seen: 3e-5
-/// over; 1e-3 leaves room for that and changes no design that already fits).
-const LAYOUT_BACKOFF: f64 = 1e-3;
-
 /// Designs the schedule asked for by `file.target` (see the module
 /// documentation for the method). The file's `passes` must be empty.
 pub fn design(file: &ScheduleFile, options: &DesignOptions) -> Result<Design, DesignError> {
@@ -349,20 +344,15 @@ pub fn design(file: &ScheduleFile, options: &DesignOptions) -> Result<Design, De
     let max_n = input.max_passes.max(input.target.passes.unwrap_or(0));
     let mut build_error = None;
     for (tier, &cap) in input.caps.iter().enumerate() {
-        // The tables carry each run's strain at the cap; laid out at its real
-        // sizes a run can land a few parts in 1e5 over it. Then the same tier
-        // is tried once more a hair below the cap (LAYOUT_BACKOFF).
-        for c in [cap, cap * (1.0 - LAYOUT_BACKOFF)] {
-            let chooser = input.chooser(c)?;
-            let mut tables = input.tables(&chooser, max_n);
-            let Some(split) = tables.fewest(input.pass_range(), input.target.max_anneals)? else {
-                break;
-            };
-            match assemble(&input, options, &chooser, &mut tables, &split, tier) {
-                Ok(d) => return Ok(d),
-                Err(e) => {
-                    build_error.get_or_insert(e);
-                }
+        let chooser = input.chooser(cap)?;
+        let mut tables = input.tables(&chooser, max_n);
+        let Some(split) = tables.fewest(input.pass_range(), input.target.max_anneals)? else {
+            continue;
+        };
+        match assemble(&input, options, &chooser, &mut tables, &split, tier) {
+            Ok(d) => return Ok(d),
+            Err(e) => {
+                build_error.get_or_insert(e);
             }
         }
     }
@@ -418,12 +408,17 @@ fn lay_out<'f>(
         } else {
             let s = chooser.strains(&run, counts[i])?;
             let p = chooser.passes_of(&run, &s)?;
-            if p.iter().all(|p| chooser.ctx.breaches(p).is_empty()) {
+            let even = chooser.strategy != Strategy::EqualRatio
+                || spread(p.iter().map(|p| p.ratio)) <= EQUAL_RATIO_SPREAD_MAX;
+            if even && p.iter().all(|p| chooser.ctx.breaches(p).is_empty()) {
                 p
             } else {
-                // Laid out with the real die land the equal-ratio solve moves
-                // strain between passes; the table's passes (worst land,
-                // checked) hold every limit wherever the run falls.
+                // The run's passes laid out afresh at their real sizes and
+                // land break a limit or spread (the equal-ratio solve moves
+                // strain between passes with the land, or lands on a pass
+                // whose best die changes): the table's own passes (worst
+                // land, checked with the search's guard) hold every limit
+                // wherever the run falls, so the run takes those.
                 let table = if i == 0 {
                     &mut tables.first
                 } else {
