@@ -523,10 +523,25 @@ fn assemble<'f>(
         .temper
         .filter(|n| *n > 0)
         .and_then(|_| input.window.map(|w| (counts.len() - 2, w)));
+    // Runs that took the table's passes, in words, before rounding moves them.
+    // Without a die land the table's passes are the laid-out ones: no note.
+    let land = chooser.ctx.dies.iter().any(|d| d.land_length_mm > 0.0);
+    let table_notes: Vec<String> = runs
+        .iter()
+        .filter(|(run, _)| land && by_table.contains(&run.index))
+        .map(|(run, passes)| {
+            format!(
+                "the run from {:.4} mm to {:.4} mm keeps the passes the search checked at the finish size's land-to-radius (laid out afresh at its own sizes it broke a limit or spread); its draw ratios spread {:.3} %",
+                run.from_mm,
+                run.to_mm,
+                100.0 * spread(passes.iter().map(|p| p.ratio))
+            )
+        })
+        .collect();
     if let Some(stock) = &stock {
         runs = die_room::round(&chooser.ctx, &runs, stock, temper_run)?;
     }
-    finish(
+    let mut d = finish(
         input,
         options,
         chooser,
@@ -535,7 +550,9 @@ fn assemble<'f>(
         tier,
         one_level,
         stock.as_ref(),
-    )
+    )?;
+    d.summary.notes.extend(table_notes);
+    Ok(d)
 }
 
 #[allow(clippy::too_many_arguments)]
