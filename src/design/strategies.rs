@@ -582,7 +582,15 @@ impl<'c, 'f> RunTable<'c, 'f> {
             let mut heavy = false;
             let mut light_here = Vec::new();
             let mut heavy_here = Vec::new();
-            for b in ctx.breaches_within(&p, SEARCH_GUARD) {
+            // The cold-work limit is the run's strain cap (`Class::strain_cap`,
+            // which `b(n)` is cut to): as a breach it would only move `t_b` to
+            // where the run reaches the cap, a level solve per count that
+            // changes no range.
+            for b in ctx
+                .breaches_within(&p, SEARCH_GUARD)
+                .into_iter()
+                .filter(|b| !matches!(b, Breach::ColdWork(_)))
+            {
                 let light = b.is_light()
                     || (!by_ratio && matches!(b, super::limits::Breach::Ratio(_)) && {
                         // The ratio's light side: a heavier pass has a lower ratio.
