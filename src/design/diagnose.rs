@@ -11,13 +11,13 @@ pub(super) fn diagnose(input: &Input) -> Result<DesignError, DesignError> {
     let cap = *input.caps.last().expect("one cap");
     let chooser = input.chooser(cap)?;
     let mut tables = input.tables(&chooser, PASSES_ALLOWED);
-    let asked = input.target.passes;
+    let asked = input.passes;
     let from = match asked {
         Some(_) => 1,
         None => input.max_passes + 1,
     };
     // The least count with any number of anneals (up to the file's max_anneals).
-    let anneals = Some(input.target.max_anneals.unwrap_or(PASSES_ALLOWED));
+    let anneals = Some(input.max_anneals.unwrap_or(PASSES_ALLOWED));
     let found = if from <= PASSES_ALLOWED {
         tables.fewest(from..=PASSES_ALLOWED, anneals)?
     } else {
@@ -227,12 +227,11 @@ pub(super) fn explain(
             binding.push(format!(
                 "no count of passes up to {PASSES_ALLOWED}, split into such runs{}, adds up to it",
                 input
-                    .target
                     .max_anneals
                     .map(|k| format!(" with at most {k} anneals (target.max_anneals)"))
                     .unwrap_or_default()
             ));
-            if let Some(k) = input.target.max_anneals {
+            if let Some(k) = input.max_anneals {
                 remedy.push(format!("raise target.max_anneals (now {k})"));
             }
             if let Some(r) = ctx.r_min {

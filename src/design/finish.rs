@@ -141,11 +141,12 @@ pub(super) fn finish(
     if let Some(m) = options.method {
         schedule.limits.method = Some(m);
     }
-    let report = evaluate(
+    let report = evaluate_on(
         &schedule,
         &EvaluateOptions {
             method: options.method,
         },
+        input.machine,
     )?;
     // The evaluation `check` makes is the last word: a designed pass it puts
     // over a limit is a fault of the design, reported rather than hidden.
@@ -211,6 +212,9 @@ pub(super) fn finish(
         runs: run_plans,
         anneals,
         notes,
+        machine: input.machine.map(|m| m.name.clone()),
+        attainable_speed_m_s: report.summary.attainable_speed_m_s,
+        attainable_t_per_shift: report.summary.attainable_t_per_shift,
     };
     Ok(Design {
         schedule,
@@ -232,7 +236,7 @@ pub(super) fn notes(
     let target = input.target;
     let l = &file.limits;
     let mut notes = Vec::new();
-    if target.max_passes.is_none() && target.passes.is_none() {
+    if target.max_passes.is_none() && input.passes.is_none() {
         notes.push(format!(
             "at most {DEFAULT_MAX_PASSES} passes (the default; set target.max_passes)"
         ));

@@ -20,11 +20,18 @@ pub(super) struct Input<'f> {
     /// The ratio caps in the order tried: aim, warn line, limit (each once).
     pub(super) caps: Vec<f64>,
     pub(super) window: Option<WindowStrains>,
+    /// Exactly this many draw passes: `target.passes`, else the machine's blocks.
+    pub(super) passes: Option<u32>,
+    /// Most anneals: `target.max_anneals`; 0 on a machine (it draws one run).
+    pub(super) max_anneals: Option<u32>,
+    /// The machine the design runs on, when there is one.
+    pub(super) machine: Option<&'f Machine>,
 }
 
 pub(super) fn read_input<'f>(
     file: &'f ScheduleFile,
     options: &DesignOptions,
+    machine: Option<&'f Machine>,
 ) -> Result<Input<'f>, DesignError> {
     file.validate()?;
     let target = file.target.as_ref().ok_or_else(|| DesignError::Input {
@@ -102,6 +109,7 @@ pub(super) fn read_input<'f>(
             });
         }
     }
+    let passes = on_machine(target, machine)?;
     let l = &file.limits;
     let aim = target
         .draw_ratio_aim
@@ -127,7 +135,52 @@ pub(super) fn read_input<'f>(
         max_passes,
         caps,
         window,
+        passes,
+        max_anneals: if machine.is_some() {
+            Some(0)
+        } else {
+            target.max_anneals
+        },
+        machine,
     })
+}
+
+/// The pass count a machine asks for: `target.passes` when given (at most
+/// the blocks; fewer only on a non-slip machine, which can run a block
+/// empty), else one die per block. Without a machine, `target.passes`.
+fn on_machine(target: &Target, machine: Option<&Machine>) -> Result<Option<u32>, DesignError> {
+    let Some(m) = machine else {
+        return Ok(target.passes);
+    };
+    let blocks = m.blocks.len() as u32;
+    let n = target.passes.unwrap_or(blocks);
+    let name = if m.name.is_empty() {
+        "(unnamed)"
+    } else {
+        &m.name
+    };
+    if n > blocks {
+        return Err(DesignError::Input {
+            key: "target.passes".into(),
+            why: format!("{n} passes, but machine {name} has {blocks} blocks (one die per block); give at most {blocks}"),
+        });
+    }
+    if n < blocks && m.kind != MachineKind::NonSlip {
+        return Err(DesignError::Input {
+            key: "target.passes".into(),
+            why: format!(
+                "{n} passes, but {} machine {name} has {blocks} blocks and cannot run a block empty; give {blocks}, or leave target.passes out",
+                m.kind.name()
+            ),
+        });
+    }
+    if target.max_passes.is_some_and(|mp| n > mp) {
+        return Err(DesignError::Input {
+            key: "target.max_passes".into(),
+            why: format!("{} is under the {n} passes machine {name} is designed for; raise it or leave it out", target.max_passes.unwrap_or(0)),
+        });
+    }
+    Ok(Some(n))
 }
 
 impl<'f> Input<'f> {
@@ -209,7 +262,7 @@ impl<'f> Input<'f> {
     }
 
     pub(super) fn pass_range(&self) -> std::ops::RangeInclusive<u32> {
-        match self.target.passes {
+        match self.passes {
             Some(n) => n..=n,
             None => 1..=self.max_passes,
         }

@@ -56,7 +56,8 @@ pub use model::{
     RunPlan,
 };
 
-use crate::evaluation::{evaluate, EvaluateOptions};
+use crate::evaluation::{evaluate_on, EvaluateOptions};
+use crate::machine::{Machine, MachineKind};
 use crate::pass::{self, Method, Settings};
 use crate::schedule::{
     self, DieOverrides, DrawStep, RatioAcross, ScheduleFile, Step, Strategy, Target,
@@ -138,13 +139,28 @@ fn as_written(d: &Diameter) -> String {
 /// Designs the schedule asked for by `file.target` (see the module
 /// documentation for the method). The file's `passes` must be empty.
 pub fn design(file: &ScheduleFile, options: &DesignOptions) -> Result<Design, DesignError> {
-    let input = read_input(file, options)?;
-    let max_n = input.max_passes.max(input.target.passes.unwrap_or(0));
+    design_on(file, options, None)
+}
+
+/// [`design`] on a drawing machine: exactly one die per block (or
+/// `target.passes`, at most the blocks, fewer only on a non-slip machine),
+/// no anneal between dies (a machine draws one continuous run), and the
+/// designed schedule evaluated on the machine as `check --machine` evaluates
+/// it, so that its attainable speed and tonnes per shift are reported and a
+/// block over its limits (negative slip, motor, capstan speed, temperature)
+/// refuses the design rather than pass unseen.
+pub fn design_on(
+    file: &ScheduleFile,
+    options: &DesignOptions,
+    machine: Option<&Machine>,
+) -> Result<Design, DesignError> {
+    let input = read_input(file, options, machine)?;
+    let max_n = input.max_passes.max(input.passes.unwrap_or(0));
     let mut build_error = None;
     for (tier, &cap) in input.caps.iter().enumerate() {
         let chooser = input.chooser(cap)?;
         let mut tables = input.tables(&chooser, max_n);
-        let Some(split) = tables.fewest(input.pass_range(), input.target.max_anneals)? else {
+        let Some(split) = tables.fewest(input.pass_range(), input.max_anneals)? else {
             continue;
         };
         match assemble(&input, options, &chooser, &mut tables, &split, tier) {
