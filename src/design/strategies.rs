@@ -30,7 +30,7 @@ use std::collections::HashMap;
 use crate::flow::FlowLaw;
 use crate::schedule::Strategy;
 
-use super::limits::{Breach, Ctx, PassPick, SEARCH_GUARD};
+use super::limits::{solve_increasing, Breach, Ctx, PassPick, SEARCH_GUARD};
 use super::{DesignError, PASS_STRAIN_FLOOR};
 
 /// Halvings of a level bracket.
@@ -439,8 +439,9 @@ impl<'c, 'f> RunTable<'c, 'f> {
     /// only between the levels `t_a(n)` and `t_b(n)` the range was found at,
     /// where every pass is within every limit (with the search's guard), so
     /// that the passes returned are passes the table checked; a strain just
-    /// outside the range (its last digits) takes the nearer end. Bisection on
-    /// the rising `S`, to the last bit of the level.
+    /// outside the range (its last digits) takes the nearer end. Regula falsi
+    /// (Illinois, with halvings) on the rising `S`, to 1e-13 of the level;
+    /// the last pass takes the remainder, far inside the search's guard.
     pub(super) fn pass_strains(&mut self, n: u32, s: f64) -> Result<Vec<f64>, DesignError> {
         let t = if self.shared() {
             self.interval(n)?;
@@ -450,29 +451,21 @@ impl<'c, 'f> RunTable<'c, 'f> {
                     why: format!("internal: no range of {n} passes to lay a run from"),
                 });
             };
-            let (mut lo, mut hi) = (t_a, t_b);
-            if self.strain_at(n, lo)? >= s {
-                hi = lo;
-            } else if self.strain_at(n, hi)? <= s {
-                lo = hi;
-            }
-            for _ in 0..200 {
-                let m = 0.5 * (lo + hi);
-                if !(m > lo && m < hi) {
-                    break;
-                }
-                if self.strain_at(n, m)? < s {
-                    lo = m;
-                } else {
-                    hi = m;
-                }
-            }
-            // The level whose run strain is nearer `s`.
-            let (slo, shi) = (self.strain_at(n, lo)?, self.strain_at(n, hi)?);
-            if (s - slo).abs() <= (shi - s).abs() {
-                lo
+            let (slo, shi) = (self.strain_at(n, t_a)?, self.strain_at(n, t_b)?);
+            if slo >= s {
+                t_a
+            } else if shi <= s {
+                t_b
             } else {
-                hi
+                solve_increasing(
+                    |t| Ok(self.strain_at(n, t)? - s),
+                    t_a,
+                    t_b,
+                    slo - s,
+                    shi - s,
+                    1e-13,
+                    "run level",
+                )?
             }
         } else {
             s / n as f64
