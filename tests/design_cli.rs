@@ -694,3 +694,65 @@ fn more_passes_than_the_machine_has_blocks_is_refused_naming_target_passes() {
         "{err}"
     );
 }
+
+#[test]
+fn a_slip_machine_design_keeps_a_small_positive_slip_on_every_capstan() {
+    // Slip as the trade defines it: capstan surface speed against the wire
+    // speed on it, s_j = 1 - v_j / V_j. With the last capstan at the finish
+    // speed (no slip) and V_j = V_{j+1} / q_{j+1} (the cone step ratios), and
+    // v_j = v_f (D_f / D_j)^2 (volume constancy), s_j = 1 - (D_f/D_j)^2
+    // prod_{k>j} q_k: worked here from the emitted dies and the machine
+    // file's step ratios, apart from the machine code.
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("slip.yaml");
+    let d = coldpass(&[
+        "design",
+        "schedules-demo/design-copper-slip-machine.yaml",
+        "--format",
+        "json",
+        "--emit-schedule",
+        out.to_str().unwrap(),
+    ]);
+    assert_eq!(
+        d.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&d.stderr)
+    );
+    let machine = std::fs::read_to_string(root("machines/northfield-wet-13.yaml")).unwrap();
+    let steps: Vec<f64> = machine
+        .lines()
+        .filter(|l| l.contains("capstan_diameter_mm"))
+        .map(|l| {
+            l.split("step_ratio:").nth(1).map_or(1.0, |r| {
+                r.trim().trim_end_matches('}').trim().parse().unwrap()
+            })
+        })
+        .collect();
+    assert_eq!(steps.len(), 13);
+    let checked = coldpass(&["check", out.to_str().unwrap(), "--format", "json"]);
+    assert_eq!(checked.status.code(), Some(0));
+    let c = json(&checked);
+    let exits: Vec<f64> = c["passes"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|p| p["exit_diameter_mm"].as_f64().unwrap())
+        .collect();
+    assert_eq!(exits.len(), 13);
+    let d_f = exits[12];
+    let limit = 0.15; // the machine file gives no slip_max: the documented default
+    for j in 0..12 {
+        let q: f64 = steps[j + 1..].iter().product();
+        let s = 1.0 - (d_f / exits[j]).powi(2) * q;
+        assert!(s > 0.005 && s < limit, "capstan {}: slip {s}", j + 1);
+        let reported = c["machine"]["blocks"][j]["slip"].as_f64().unwrap();
+        assert!(
+            (reported - s).abs() < 1e-9,
+            "capstan {}: {reported} vs {s}",
+            j + 1
+        );
+    }
+    let notes = json(&d)["design"]["notes"].to_string();
+    assert!(notes.contains("cone ratios set dies 2-13"), "{notes}");
+}

@@ -48,6 +48,7 @@ mod limits;
 mod model;
 mod runs;
 mod search;
+mod slip;
 mod strategies;
 
 pub use error::DesignError;
@@ -74,7 +75,7 @@ use strategies::{Chooser, Class, Interval, RunTable};
 use diagnose::diagnose;
 use finish::finish;
 use input::{read_input, Input};
-use layout::{assemble, spread, RunPasses};
+use layout::{assemble, broken, spread, RunPasses};
 
 /// Most draw passes considered when `target.max_passes` is not given.
 pub const DEFAULT_MAX_PASSES: u32 = 50;
@@ -155,6 +156,9 @@ pub fn design_on(
     machine: Option<&Machine>,
 ) -> Result<Design, DesignError> {
     let input = read_input(file, options, machine)?;
+    if let Some(m) = machine.filter(|m| m.kind == MachineKind::Slip) {
+        return slip::design_slip(&input, options, m);
+    }
     let max_n = input.max_passes.max(input.passes.unwrap_or(0));
     let mut build_error = None;
     for (tier, &cap) in input.caps.iter().enumerate() {
