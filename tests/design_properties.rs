@@ -158,6 +158,63 @@ fn base(c: &Case, ratio_max: f64) -> String {
     )
 }
 
+/// An independent witness that an equal-strain design with no anneal
+/// exists: for `n = 1..=60`, the `n` passes of strain `E/n` from the start
+/// (the last exactly at the finish), each with some angle of the stock,
+/// evaluated by `check` (`evaluate`), every pass without an over-limit flag,
+/// at or under the ratio limit, within the reduction bounds, Delta and the
+/// cold-work limit. The passes do not interact (no back tension), so a pass
+/// may take its own angle: each angle is tried for the whole schedule and
+/// each pass keeps any angle that works for it. Returns the least such `n`.
+fn straight_equal_strain_witness(c: &Case, target: &schedule::Target) -> Option<u32> {
+    let (d0, df) = (c.d0, target.diameter.mm());
+    let e = 2.0 * (d0 / df).ln();
+    let limit = c.cold_work.map(|l| l + c.start_strain);
+    for n in 1..=60u32 {
+        let exits: Vec<f64> = (1..=n)
+            .map(|i| {
+                if i == n {
+                    df
+                } else {
+                    d0 * (-0.5 * e * i as f64 / n as f64).exp()
+                }
+            })
+            .collect();
+        let mut ok = vec![false; n as usize];
+        for &a in &c.angles {
+            let passes: String = exits
+                .iter()
+                .map(|x| format!("- exit: {x}\n  semi_angle_deg: {a}\n"))
+                .collect();
+            let Ok(f) = schedule::parse(&format!("{}passes:\n{passes}", base(c, c.ratio_max)))
+            else {
+                continue;
+            };
+            let Ok(rep) = evaluate(&f, &EvaluateOptions::default()) else {
+                continue;
+            };
+            for (i, r) in rep
+                .passes
+                .iter()
+                .filter(|r| r.kind == StepKind::Draw)
+                .enumerate()
+            {
+                let red = r.area_reduction.unwrap();
+                ok[i] |= r.flags.iter().all(|f| !f.is_over())
+                    && r.draw_ratio.unwrap() <= c.ratio_max
+                    && target.reduction_max.is_none_or(|h| red <= h)
+                    && target.reduction_min.is_none_or(|l| red >= l)
+                    && c.delta_max.is_none_or(|d| r.delta.unwrap() <= d)
+                    && limit.is_none_or(|l| r.strain_after <= l);
+            }
+        }
+        if ok.iter().all(|x| *x) {
+            return Some(n);
+        }
+    }
+    None
+}
+
 fn last_exit_mm(f: &ScheduleFile) -> f64 {
     f.passes
         .iter()
@@ -178,7 +235,12 @@ proptest! {
         let file = schedule::parse(&t).unwrap();
         let target = file.target.clone().unwrap();
         let Ok(d) = design(&file, &DesignOptions::default()) else {
-            // An infeasible case must fail with a message, never a panic; nothing more to hold.
+            // A refusal must be true: for equal strain, an independent witness
+            // (every straight-through split checked by `check`) finds none.
+            if c.strategy == "equal-strain" && c.window.is_none() && c.land_mm == 0.0 {
+                let w = straight_equal_strain_witness(&c, &target);
+                prop_assert!(w.is_none(), "refused, but {:?} equal-strain passes straight through check ok", w);
+            }
             return Ok(());
         };
         // Finish exact.
@@ -213,6 +275,17 @@ proptest! {
                 prop_assert!(s <= EQUAL_RATIO_SPREAD_MAX, "run {} spread {s}", run.run);
             }
         }
+        // The witness agrees with a straight-through equal-strain design: it
+        // finds one of at most as many passes, and as many when the design
+        // was held to the ratio limit itself (the fewest with no anneal).
+        if c.strategy == "equal-strain" && c.window.is_none() && c.land_mm == 0.0 && d.summary.anneals.is_empty() {
+            let n = d.summary.draw_passes as u32;
+            let w = straight_equal_strain_witness(&c, &target);
+            prop_assert!(w.is_some_and(|w| w <= n), "designed {n} passes, witness {w:?}");
+            if d.summary.draw_ratio_aimed >= c.ratio_max {
+                prop_assert_eq!(w, Some(n));
+            }
+        }
         // Round trip through the emitted YAML.
         let yaml = schedule_yaml(&d, &["test".to_string()]).unwrap();
         let back = schedule::parse(&yaml).unwrap();
@@ -227,6 +300,38 @@ proptest! {
         let key = |d: &coldpass::design::Design| (d.summary.draw_ratio_aimed, d.summary.anneals.len(), d.summary.draw_passes);
         let (a, b) = (key(&m), key(&d));
         prop_assert!(a.0 <= b.0 && (a.0 < b.0 || (a.1, a.2) <= (b.1, b.2)), "{a:?} with more passes vs {b:?}");
+    }
+
+    #[test]
+    fn a_straight_equal_strain_witness_and_the_design_agree(
+        c in case(),
+        r_min in 0.08f64..0.35,
+        width in 0.005f64..0.06,
+    ) {
+        // Narrow reduction bounds, so that many cases have no straight-through
+        // design: whenever the witness (checked by `check`, apart from the
+        // search) finds one, the design must not refuse; when the design is
+        // held to the ratio limit itself and anneals nothing, the counts agree.
+        let c = Case {
+            strategy: "equal-strain",
+            window: None,
+            land_mm: 0.0,
+            r_min: Some(r_min),
+            r_max: Some(r_min + width),
+            ..c
+        };
+        let file = schedule::parse(&text(&c, c.ratio_max, "")).unwrap();
+        let target = file.target.clone().unwrap();
+        let w = straight_equal_strain_witness(&c, &target);
+        match design(&file, &DesignOptions::default()) {
+            Err(e) => prop_assert!(w.is_none(), "refused ({e}), but {w:?} equal-strain passes straight through check ok"),
+            Ok(d) => {
+                if d.summary.draw_ratio_aimed >= c.ratio_max && w.is_some() {
+                    prop_assert!(d.summary.anneals.is_empty());
+                    prop_assert_eq!(Some(d.summary.draw_passes as u32), w);
+                }
+            }
+        }
     }
 
     #[test]
