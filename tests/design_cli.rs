@@ -566,3 +566,193 @@ fn one_ratio_over_the_whole_schedule_when_asked() {
     assert!(spread <= 0.005, "{spread}");
     assert_eq!(s["ratio_across"], "whole-schedule");
 }
+
+/// Blocks in a machine file, counted from its text (one `capstan_diameter_mm` a block).
+fn blocks_in(machine: &str) -> usize {
+    std::fs::read_to_string(root(machine))
+        .unwrap()
+        .lines()
+        .filter(|l| l.contains("capstan_diameter_mm"))
+        .count()
+}
+
+#[test]
+fn a_design_on_a_machine_takes_one_die_per_block_and_reports_the_speed_check_finds() {
+    let blocks = blocks_in("machines/harrow-lane-dry-7.yaml");
+    assert_eq!(blocks, 7);
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("designed.yaml");
+    let d = coldpass(&[
+        "design",
+        "schedules-demo/design-steel-machine.yaml",
+        "--format",
+        "json",
+        "--emit-schedule",
+        out.to_str().unwrap(),
+    ]);
+    assert_eq!(
+        d.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&d.stderr)
+    );
+    let d = json(&d);
+    assert_eq!(d["design"]["draw_passes"], blocks);
+    assert_eq!(d["design"]["anneals"].as_array().unwrap().len(), 0);
+    // The emitted schedule names the machine by a path from its own folder,
+    // so `check` finds it from any working directory (here the temp folder).
+    let text = std::fs::read_to_string(&out).unwrap();
+    let named = text.lines().find(|l| l.starts_with("machine:")).unwrap();
+    assert!(
+        dir.path()
+            .join(named.trim_start_matches("machine:").trim())
+            .is_file(),
+        "{named}"
+    );
+    let checked = Command::cargo_bin("coldpass")
+        .unwrap()
+        .current_dir(dir.path())
+        .args(["check", "designed.yaml", "--format", "json"])
+        .output()
+        .unwrap();
+    assert_eq!(
+        checked.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&checked.stderr)
+    );
+    let c = json(&checked);
+    // The speed the design reports is the one check works out on the machine.
+    let speed = d["design"]["attainable_speed_m_s"].as_f64().unwrap();
+    assert!(speed > 0.0);
+    assert_eq!(c["summary"]["attainable_speed_m_s"].as_f64(), Some(speed));
+    assert_eq!(
+        c["summary"]["attainable_t_per_shift"].as_f64(),
+        d["design"]["attainable_t_per_shift"].as_f64()
+    );
+    // One die per block, in order, as check assigns them.
+    assert_eq!(
+        c["machine"]["blocks"].as_array().map(Vec::len),
+        Some(blocks),
+        "{}",
+        c["machine"]
+    );
+}
+
+#[test]
+fn the_machine_option_designs_as_the_machine_key_does() {
+    let dir = tempfile::tempdir().unwrap();
+    let text = std::fs::read_to_string(root("schedules-demo/design-steel-machine.yaml")).unwrap();
+    let bare: String = text
+        .lines()
+        .filter(|l| !l.starts_with("machine:"))
+        .map(|l| format!("{l}\n"))
+        .collect();
+    let f = write(dir.path(), "bare.yaml", &bare);
+    let machine = root("machines/harrow-lane-dry-7.yaml");
+    let by_option = coldpass(&[
+        "design",
+        f.to_str().unwrap(),
+        "--machine",
+        machine.to_str().unwrap(),
+        "--format",
+        "json",
+    ]);
+    let by_key = coldpass(&[
+        "design",
+        "schedules-demo/design-steel-machine.yaml",
+        "--format",
+        "json",
+    ]);
+    assert_eq!(by_option.status.code(), Some(0));
+    assert_eq!(
+        json(&by_option)["design"]["attainable_speed_m_s"],
+        json(&by_key)["design"]["attainable_speed_m_s"]
+    );
+    assert_eq!(json(&by_option)["design"]["draw_passes"], 7);
+    // Without a machine the same file is free to choose its pass count.
+    let free = coldpass(&["design", f.to_str().unwrap(), "--format", "json"]);
+    assert!(json(&free)["design"].get("attainable_speed_m_s").is_none());
+}
+
+#[test]
+fn more_passes_than_the_machine_has_blocks_is_refused_naming_target_passes() {
+    let dir = tempfile::tempdir().unwrap();
+    let text = std::fs::read_to_string(root("schedules-demo/design-steel-machine.yaml"))
+        .unwrap()
+        .replace("../machines/", &format!("{}/", root("machines").display()))
+        .replace(
+            "  strategy: equal-ratio",
+            "  strategy: equal-ratio\n  passes: 8",
+        );
+    let f = write(dir.path(), "eight.yaml", &text);
+    let o = coldpass(&["design", f.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(1));
+    let err = String::from_utf8_lossy(&o.stderr);
+    assert!(
+        err.contains("target.passes") && err.contains("8 passes") && err.contains("7 blocks"),
+        "{err}"
+    );
+}
+
+#[test]
+fn a_slip_machine_design_keeps_a_small_positive_slip_on_every_capstan() {
+    // Slip as the trade defines it: capstan surface speed against the wire
+    // speed on it, s_j = 1 - v_j / V_j. With the last capstan at the finish
+    // speed (no slip) and V_j = V_{j+1} / q_{j+1} (the cone step ratios), and
+    // v_j = v_f (D_f / D_j)^2 (volume constancy), s_j = 1 - (D_f/D_j)^2
+    // prod_{k>j} q_k: worked here from the emitted dies and the machine
+    // file's step ratios, apart from the machine code.
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("slip.yaml");
+    let d = coldpass(&[
+        "design",
+        "schedules-demo/design-copper-slip-machine.yaml",
+        "--format",
+        "json",
+        "--emit-schedule",
+        out.to_str().unwrap(),
+    ]);
+    assert_eq!(
+        d.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&d.stderr)
+    );
+    let machine = std::fs::read_to_string(root("machines/northfield-wet-13.yaml")).unwrap();
+    let steps: Vec<f64> = machine
+        .lines()
+        .filter(|l| l.contains("capstan_diameter_mm"))
+        .map(|l| {
+            l.split("step_ratio:").nth(1).map_or(1.0, |r| {
+                r.trim().trim_end_matches('}').trim().parse().unwrap()
+            })
+        })
+        .collect();
+    assert_eq!(steps.len(), 13);
+    let checked = coldpass(&["check", out.to_str().unwrap(), "--format", "json"]);
+    assert_eq!(checked.status.code(), Some(0));
+    let c = json(&checked);
+    let exits: Vec<f64> = c["passes"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|p| p["exit_diameter_mm"].as_f64().unwrap())
+        .collect();
+    assert_eq!(exits.len(), 13);
+    let d_f = exits[12];
+    let limit = 0.15; // the machine file gives no slip_max: the documented default
+    for j in 0..12 {
+        let q: f64 = steps[j + 1..].iter().product();
+        let s = 1.0 - (d_f / exits[j]).powi(2) * q;
+        assert!(s > 0.005 && s < limit, "capstan {}: slip {s}", j + 1);
+        let reported = c["machine"]["blocks"][j]["slip"].as_f64().unwrap();
+        assert!(
+            (reported - s).abs() < 1e-9,
+            "capstan {}: {reported} vs {s}",
+            j + 1
+        );
+    }
+    let notes = json(&d)["design"]["notes"].to_string();
+    assert!(notes.contains("cone ratios set dies 2-13"), "{notes}");
+}

@@ -25,6 +25,15 @@ struct Case {
     limit: f64,
     max_passes: u32,
     max_anneals: Option<u32>,
+    /// Strain the stock arrives with (drawn stock; it may then be annealed
+    /// before the first die).
+    start_strain: f64,
+    /// Die land, mm: it changes the drawing stress, never a reduction or a
+    /// strain, so with a draw-ratio limit that never binds it must change
+    /// nothing here.
+    land_mm: f64,
+    /// `target.passes`: exactly this many passes.
+    passes: Option<u32>,
 }
 
 fn text(c: &Case) -> String {
@@ -38,9 +47,11 @@ material:
   cold_work_limit: {}
 start:
   diameter: {}
+  strain: {}
 dies:
   semi_angle_deg: 6
   friction: 0.05
+  land_length_mm: {}
 limits:
   method: sachs
   draw_ratio_warn: 1
@@ -51,15 +62,20 @@ target:
   reduction_max: {}
   max_passes: {}
   strategy: equal-strain
-{}"#,
+{}{}"#,
         c.limit,
         c.d0,
+        c.start_strain,
+        c.land_mm,
         c.df,
         c.r_min,
         c.r_max,
         c.max_passes,
         c.max_anneals
             .map(|k| format!("  max_anneals: {k}\n"))
+            .unwrap_or_default(),
+        c.passes
+            .map(|n| format!("  passes: {n}\n"))
             .unwrap_or_default()
     )
 }
@@ -80,10 +96,42 @@ fn compositions(n: u32, r: u32, out: &mut Vec<Vec<u32>>, cur: &mut Vec<u32>) {
 }
 
 /// Whether a split carries the whole strain (see the module documentation).
-fn split_fits(split: &[u32], e: f64, x_lo: f64, x_hi: f64, l: f64) -> bool {
+/// The first run starts at strain `e0`, so it may carry at most `l - e0`;
+/// with `e0 > 0` it may have no passes (the stock annealed before the first
+/// die), and every other run has at least one.
+fn split_fits(split: &[u32], e: f64, x_lo: f64, x_hi: f64, l: f64, e0: f64) -> bool {
+    let cap = |i: usize| if i == 0 { l - e0 } else { l };
     let lo: f64 = split.iter().map(|&n| n as f64 * x_lo).sum();
-    let hi: f64 = split.iter().map(|&n| (n as f64 * x_hi).min(l)).sum();
-    split.iter().all(|&n| n as f64 * x_lo <= l) && lo <= e * (1.0 + 1e-9) && e <= hi * (1.0 - 1e-9)
+    let hi: f64 = split
+        .iter()
+        .enumerate()
+        .map(|(i, &n)| (n as f64 * x_hi).min(cap(i)))
+        .sum();
+    split
+        .iter()
+        .enumerate()
+        .all(|(i, &n)| n as f64 * x_lo <= cap(i) && (n > 0 || (i == 0 && e0 > 0.0)))
+        && lo <= e * (1.0 + 1e-9)
+        && e <= hi * (1.0 - 1e-9)
+}
+
+/// Every split of `n` passes into `r` runs: all parts positive, and with
+/// drawn stock also those whose first part is 0 (an anneal before the first die).
+fn splits(n: u32, r: u32, drawn: bool) -> Vec<Vec<u32>> {
+    let mut all = Vec::new();
+    if n >= r {
+        compositions(n, r, &mut all, &mut Vec::new());
+    }
+    if drawn && r >= 2 && n + 1 >= r {
+        let mut rest = Vec::new();
+        compositions(n, r - 1, &mut rest, &mut Vec::new());
+        all.extend(rest.into_iter().map(|v| {
+            let mut w = vec![0];
+            w.extend(v);
+            w
+        }));
+    }
+    all
 }
 
 /// The oracle: `(passes, anneals)` of the design the file asks for, or `None`.
@@ -93,19 +141,26 @@ fn split_fits(split: &[u32], e: f64, x_lo: f64, x_hi: f64, l: f64) -> bool {
 fn exhaustive(c: &Case) -> Option<(u32, u32)> {
     let e = 2.0 * (c.d0 / c.df).ln();
     let (x_lo, x_hi) = (-(-c.r_min).ln_1p(), -(-c.r_max).ln_1p());
+    let drawn = c.start_strain > 0.0;
     let fits = |n: u32, runs: u32| {
-        let mut all = Vec::new();
-        compositions(n, runs, &mut all, &mut Vec::new());
-        all.iter().any(|s| split_fits(s, e, x_lo, x_hi, c.limit))
+        splits(n, runs, drawn)
+            .iter()
+            .any(|s| split_fits(s, e, x_lo, x_hi, c.limit, c.start_strain))
     };
+    if let Some(n) = c.passes {
+        // Exactly n passes: the fewest anneals with that many.
+        return (1..=n + 1)
+            .find(|&runs| fits(n, runs))
+            .map(|runs| (n, runs - 1));
+    }
     match c.max_anneals {
-        None => (1..=c.max_passes).find_map(|runs| {
-            (runs..=c.max_passes)
+        None => (1..=c.max_passes + 1).find_map(|runs| {
+            (1..=c.max_passes)
                 .find(|&n| fits(n, runs))
                 .map(|n| (n, runs - 1))
         }),
         Some(k) => (1..=c.max_passes).find_map(|n| {
-            (1..=(k + 1).min(n))
+            (1..=(k + 1).min(n + 1))
                 .find(|&runs| fits(n, runs))
                 .map(|runs| (n, runs - 1))
         }),
@@ -151,6 +206,9 @@ fn the_issue_case_designs_to_six_plus_five_passes() {
             limit: 2.6,
             max_passes,
             max_anneals: None,
+            start_strain: 0.0,
+            land_mm: 0.0,
+            passes: None,
         };
         assert_eq!(exhaustive(&c), Some((11, 1)));
         assert_eq!(designed(&c).unwrap(), (11, 1), "max_passes {max_passes}");
@@ -173,6 +231,9 @@ fn a_case_the_equal_split_puts_at_twelve_designs_to_eleven_within_eleven() {
         limit: 2.7,
         max_passes: 11,
         max_anneals: None,
+        start_strain: 0.0,
+        land_mm: 0.0,
+        passes: None,
     };
     assert_eq!(exhaustive(&c), Some((11, 1)));
     assert_eq!(designed(&c).unwrap(), (11, 1));
@@ -196,6 +257,9 @@ fn every_small_case_agrees_with_the_exhaustive_search() {
                         limit,
                         max_passes: 12,
                         max_anneals,
+                        start_strain: 0.0,
+                        land_mm: 0.0,
+                        passes: None,
                     };
                     let want = exhaustive(&c);
                     let got = designed(&c);
@@ -217,7 +281,7 @@ fn every_small_case_agrees_with_the_exhaustive_search() {
 }
 
 proptest::proptest! {
-    #![proptest_config(proptest::prelude::ProptestConfig { cases: 48, ..proptest::prelude::ProptestConfig::default() })]
+    #![proptest_config(proptest::prelude::ProptestConfig { cases: 96, ..proptest::prelude::ProptestConfig::default() })]
 
     /// Random small cases: no design reported infeasible when the
     /// enumeration finds one, and the counts agree when both find one.
@@ -229,8 +293,18 @@ proptest::proptest! {
         limit in 0.8f64..3.0,
         max_passes in 4u32..11,
         max_anneals in proptest::option::of(0u32..4),
+        start_strain in proptest::sample::select(vec![0.0, 0.0, 0.3, 0.7]),
+        land_mm in proptest::sample::select(vec![0.0, 0.3, 1.0]),
+        passes in proptest::option::of(2u32..9),
     ) {
-        let c = Case { d0: 8.0, df, r_min, r_max: (r_min + width).min(0.6), limit, max_passes, max_anneals };
+        // A given pass count is tried without max_anneals (the fewest anneals with it).
+        let max_anneals = if passes.is_some() { None } else { max_anneals };
+        // (and target.passes may not exceed max_passes).
+        let max_passes = max_passes.max(passes.unwrap_or(0));
+        let c = Case {
+            d0: 8.0, df, r_min, r_max: (r_min + width).min(0.6), limit, max_passes,
+            max_anneals, start_strain, land_mm, passes,
+        };
         let want = exhaustive(&c);
         let got = designed(&c);
         match (&want, &got) {

@@ -10,6 +10,12 @@ use crate::schedule::{self, ScheduleFile};
 
 use super::{DesignError, PASS_STRAIN_CEILING, PASS_STRAIN_FLOOR};
 
+/// How far inside each limit the search's run ranges hold a pass, as a
+/// fraction of the limit (see [`Ctx::breaches_within`]): 1e-8, a hundred
+/// times the 1e-10 to which a level's pass strains are solved, and far under
+/// anything a die room or a report can show.
+pub(super) const SEARCH_GUARD: f64 = 1e-8;
+
 /// A limit a designed pass breaks.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub(super) enum Breach {
@@ -284,17 +290,29 @@ impl Ctx<'_> {
 
     /// The limits the pass breaks, with the comparisons `check` makes.
     pub(super) fn breaches(&self, p: &PassPick) -> Vec<Breach> {
+        self.breaches_within(p, 0.0)
+    }
+
+    /// The limits the pass breaks when each limit is drawn `guard` (a
+    /// fraction) inside itself: the search's run ranges use
+    /// [`SEARCH_GUARD`], so that a run laid out at a strain of its range,
+    /// whose passes differ from the range's in their last digits (a level
+    /// solved to 1e-10, a strain split into passes), still meets every limit
+    /// exactly as `check` compares it. The cold-work limit is not drawn in
+    /// here: the run strain caps keep `COLD_WORK_MARGIN` under it.
+    pub(super) fn breaches_within(&self, p: &PassPick, guard: f64) -> Vec<Breach> {
+        let inside = 1.0 - guard;
         let mut v = Vec::new();
-        if p.ratio > self.ratio_cap {
+        if p.ratio > self.ratio_cap * inside {
             v.push(Breach::Ratio(p.ratio));
         }
-        if self.r_max.is_some_and(|r| p.reduction > r) {
+        if self.r_max.is_some_and(|r| p.reduction > r * inside) {
             v.push(Breach::ReductionMax(p.reduction));
         }
-        if self.r_min.is_some_and(|r| p.reduction < r) {
+        if self.r_min.is_some_and(|r| p.reduction < r * (1.0 + guard)) {
             v.push(Breach::ReductionMin(p.reduction));
         }
-        if !p.delta_ok {
+        if !p.delta_ok || self.delta_max.is_some_and(|x| p.delta > x * inside) {
             v.push(Breach::Delta(p.delta));
         }
         if self.cold_work.is_some_and(|l| p.strain_after > l) {
@@ -310,7 +328,7 @@ impl Ctx<'_> {
                 m.heat_fraction.unwrap_or(schedule::DEFAULT_HEAT_FRACTION),
             );
             let t = l.ambient_c.unwrap_or(schedule::DEFAULT_AMBIENT_C) + rise;
-            if t > tmax {
+            if t > tmax - guard * tmax.abs().max(1.0) {
                 v.push(Breach::Hot(t));
             }
         }
@@ -318,7 +336,7 @@ impl Ctx<'_> {
             if let Some(pmax) = line.block_power_kw {
                 let speed = line.finish_speed_m_s * (self.finish_mm / p.exit_mm).powi(2);
                 let power = pass::power_kw(pass::force_kn(p.stress_mpa, p.exit_mm), speed);
-                if power > pmax {
+                if power > pmax * inside {
                     v.push(Breach::Power(power));
                 }
             }
@@ -329,20 +347,22 @@ impl Ctx<'_> {
     /// How far a pass is inside its limits, as fractions of each limit
     /// (negative: over): `(ratio, heavy, light)`, where heavy is the least of
     /// the `reduction_max`, wire-temperature and block-power margins and
-    /// light the least of the `reduction_min` and `Delta` ones. They guide the
-    /// level solves; `breaches` decides.
+    /// light the least of the `reduction_min` and `Delta` ones, each less
+    /// [`SEARCH_GUARD`] so that they cross zero where `breaches_within` with
+    /// the guard switches. They guide the level solves; the breaches decide.
     pub(super) fn margins(&self, p: &PassPick) -> (f64, f64, f64) {
-        let ratio = (self.ratio_cap - p.ratio) / self.ratio_cap;
+        let g = SEARCH_GUARD;
+        let ratio = (self.ratio_cap - p.ratio) / self.ratio_cap - g;
         let mut heavy = f64::INFINITY;
         let mut light = f64::INFINITY;
         if let Some(r) = self.r_max {
-            heavy = heavy.min((r - p.reduction) / r);
+            heavy = heavy.min((r - p.reduction) / r - g);
         }
         if let Some(r) = self.r_min {
-            light = light.min((p.reduction - r) / r);
+            light = light.min((p.reduction - r) / r - g);
         }
         if let Some(d) = self.delta_max {
-            light = light.min((d - p.delta) / d);
+            light = light.min((d - p.delta) / d - g);
         }
         let m = &self.file.material;
         let l = &self.file.limits;
@@ -354,13 +374,13 @@ impl Ctx<'_> {
                 m.heat_fraction.unwrap_or(schedule::DEFAULT_HEAT_FRACTION),
             );
             let t = l.ambient_c.unwrap_or(schedule::DEFAULT_AMBIENT_C) + rise;
-            heavy = heavy.min((tmax - t) / tmax.abs().max(1.0));
+            heavy = heavy.min((tmax - t) / tmax.abs().max(1.0) - g);
         }
         if let Some(line) = &self.file.line {
             if let Some(pmax) = line.block_power_kw {
                 let speed = line.finish_speed_m_s * (self.finish_mm / p.exit_mm).powi(2);
                 let power = pass::power_kw(pass::force_kn(p.stress_mpa, p.exit_mm), speed);
-                heavy = heavy.min((pmax - power) / pmax);
+                heavy = heavy.min((pmax - power) / pmax - g);
             }
         }
         (ratio, heavy, light)

@@ -117,6 +117,16 @@ pub struct DesignSummary {
     pub anneals: Vec<AnnealPlan>,
     /// Choices and defaults that matter.
     pub notes: Vec<String>,
+    /// The machine designed for (its `name`), when there is one.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub machine: Option<String>,
+    /// Highest finish speed the machine allows for the design, m/s (with a
+    /// machine; as `check --machine` reports it).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub attainable_speed_m_s: Option<f64>,
+    /// Tonnes per shift at the attainable speed (with a machine).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub attainable_t_per_shift: Option<f64>,
 }
 
 /// A range of diameters, mm.

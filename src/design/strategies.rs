@@ -30,7 +30,7 @@ use std::collections::HashMap;
 use crate::flow::FlowLaw;
 use crate::schedule::Strategy;
 
-use super::limits::{Breach, Ctx, PassPick};
+use super::limits::{solve_increasing, Breach, Ctx, PassPick, SEARCH_GUARD};
 use super::{DesignError, PASS_STRAIN_FLOOR};
 
 /// Halvings of a level bracket.
@@ -169,7 +169,7 @@ impl Chooser<'_> {
                     pass: format!("a pass from {d:.4} mm"),
                     problem,
                 })?;
-            for b in self.ctx.breaches(&p) {
+            for b in self.ctx.breaches_within(&p, SEARCH_GUARD) {
                 if b.is_light()
                     || (matches!(b, super::limits::Breach::Ratio(_)) && {
                         // The ratio's light side: a heavier pass has a lower ratio.
@@ -435,18 +435,41 @@ impl<'c, 'f> RunTable<'c, 'f> {
     }
 
     /// The pass strains of `n` passes carrying run strain `s`, as the table
-    /// evaluates them (worst die land): the level solved by bisection on `S(t)`.
+    /// evaluates them (worst die land): the level `t` with `S(t) = s`, sought
+    /// only between the levels `t_a(n)` and `t_b(n)` the range was found at,
+    /// where every pass is within every limit (with the search's guard), so
+    /// that the passes returned are passes the table checked; a strain just
+    /// outside the range (its last digits) takes the nearer end. Regula falsi
+    /// (Illinois, with halvings) on the rising `S`, to 1e-13 of the level;
+    /// the last pass takes the remainder, far inside the search's guard.
     pub(super) fn pass_strains(&mut self, n: u32, s: f64) -> Result<Vec<f64>, DesignError> {
-        let (mut lo, mut hi) = (0.0, self.level_top(n));
-        for _ in 0..60 {
-            let m = 0.5 * (lo + hi);
-            if self.strain_at(n, m)? < s {
-                lo = m;
+        let t = if self.shared() {
+            self.interval(n)?;
+            let Some((t_a, t_b)) = self.levels[n as usize] else {
+                return Err(DesignError::Input {
+                    key: "target".into(),
+                    why: format!("internal: no range of {n} passes to lay a run from"),
+                });
+            };
+            let (slo, shi) = (self.strain_at(n, t_a)?, self.strain_at(n, t_b)?);
+            if slo >= s {
+                t_a
+            } else if shi <= s {
+                t_b
             } else {
-                hi = m;
+                solve_increasing(
+                    |t| Ok(self.strain_at(n, t)? - s),
+                    t_a,
+                    t_b,
+                    slo - s,
+                    shi - s,
+                    1e-13,
+                    "run level",
+                )?
             }
-        }
-        let t = hi;
+        } else {
+            s / n as f64
+        };
         Ok(if self.shared() {
             let shot = self.shot(t, n as usize)?;
             let mut prev = 0.0;
@@ -552,7 +575,15 @@ impl<'c, 'f> RunTable<'c, 'f> {
             let mut heavy = false;
             let mut light_here = Vec::new();
             let mut heavy_here = Vec::new();
-            for b in ctx.breaches(&p) {
+            // The cold-work limit is the run's strain cap (`Class::strain_cap`,
+            // which `b(n)` is cut to): as a breach it would only move `t_b` to
+            // where the run reaches the cap, a level solve per count that
+            // changes no range.
+            for b in ctx
+                .breaches_within(&p, SEARCH_GUARD)
+                .into_iter()
+                .filter(|b| !matches!(b, Breach::ColdWork(_)))
+            {
                 let light = b.is_light()
                     || (!by_ratio && matches!(b, super::limits::Breach::Ratio(_)) && {
                         // The ratio's light side: a heavier pass has a lower ratio.

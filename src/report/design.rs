@@ -97,6 +97,23 @@ pub fn summary_to(d: &Design, width: Option<usize>) -> String {
         100.0 * s.draw_ratio_spread,
         fixed(Some(s.draw_ratio_aimed), 4)
     ), "");
+    if let Some(name) = &s.machine {
+        let speed = match (s.attainable_speed_m_s, s.attainable_t_per_shift) {
+            (Some(v), Some(t)) => format!(
+                "attainable finish speed {v:.2} m/s ({:.0} m/min), {t:.2} t per shift",
+                60.0 * v
+            ),
+            (Some(v), None) => {
+                format!("attainable finish speed {v:.2} m/s ({:.0} m/min)", 60.0 * v)
+            }
+            _ => "no attainable speed (see the notes)".into(),
+        };
+        line(
+            &mut out,
+            &format!("Machine {name}: one die per block; {speed}"),
+            "",
+        );
+    }
     match (s.strength_window_mpa, s.aimed_flow_stress_mpa) {
         (Some(w), aim) => line(
             &mut out,

@@ -1,0 +1,313 @@
+//! The designed schedule: steps, anneal plans with their reasons, the
+//! evaluation `check` makes, the summary and the notes in words.
+
+#[allow(unused_imports)]
+use super::*;
+
+#[allow(clippy::too_many_arguments)]
+pub(super) fn finish(
+    input: &Input,
+    options: &DesignOptions,
+    chooser: &Chooser,
+    split: &Split,
+    runs: RunPasses,
+    tier: usize,
+    one_level: bool,
+    stock: Option<&Stock>,
+) -> Result<Design, DesignError> {
+    let file = input.file;
+    let target = input.target;
+    let limit = file.material.cold_work_limit;
+    let mut steps = Vec::new();
+    let mut anneals = Vec::new();
+    let mut run_plans = Vec::new();
+    let n_runs = runs.len();
+    let last_draw = runs.iter().rposition(|r| !r.1.is_empty());
+    let counts: Vec<String> = runs
+        .iter()
+        .filter(|r| !r.1.is_empty())
+        .map(|r| r.1.len().to_string())
+        .collect();
+    let counts = counts.join(" + ");
+    let mut dies = Vec::new();
+    for (i, (run, passes)) in runs.iter().enumerate() {
+        let (from, to, e0) = (run.from_mm, run.to_mm, run.strain0);
+        if !passes.is_empty() {
+            run_plans.push(RunPlan {
+                run: run_plans.len() + 1,
+                from_diameter_mm: from,
+                to_diameter_mm: to,
+                strain: pass::true_strain(from, to),
+                strain_after: e0 + pass::true_strain(from, to),
+                passes: passes.len(),
+                draw_ratio_min: passes.iter().map(|p| p.ratio).fold(f64::INFINITY, f64::min),
+                draw_ratio_max: passes.iter().map(|p| p.ratio).fold(0.0, f64::max),
+            });
+        }
+        let np = passes.len();
+        for (j, p) in passes.iter().enumerate() {
+            let exit = if Some(i) == last_draw && j + 1 == np {
+                target.diameter.clone()
+            } else {
+                Diameter::from_mm(p.exit_mm).map_err(|e| DesignError::Input {
+                    key: "target.diameter".into(),
+                    why: e.to_string(),
+                })?
+            };
+            let die = DieOverrides {
+                semi_angle_deg: chooser.ctx.from_stock.then_some(p.semi_angle_deg),
+                ..DieOverrides::default()
+            };
+            let land = file
+                .die_for(&die, p.semi_angle_deg)
+                .map(|d| d.land_length_mm)
+                .unwrap_or(0.0);
+            dies.push((exit.mm(), p.semi_angle_deg, land));
+            steps.push(Step::Draw(DrawStep {
+                exit,
+                die,
+                back_tension_mpa: None,
+            }));
+        }
+        // An anneal between each run and the next (an empty first run: before
+        // the first die; an empty temper run: after the last).
+        if i + 1 == n_runs {
+            continue;
+        }
+        let temper = split.temper.is_some() && i + 2 == n_runs;
+        let strain_before = e0 + pass::true_strain(from, to);
+        let (reason, why, window_mm) = if temper {
+            let w = target
+                .strength_mpa
+                .unwrap_or(schedule::Window { min: 0.0, max: 0.0 });
+            let rest = pass::true_strain(to, input.finish_mm);
+            let range = input.window.map(|x| x.diameters(input.finish_mm));
+            (
+                AnnealReason::Temper,
+                format!(
+                    "temper window {}-{} MPa: the remaining strain {rest:.4} from {to:.4} mm to the finish gives {:.1} MPa; an anneal anywhere from {} mm lands in the window",
+                    w.min,
+                    w.max,
+                    file.annealed_law().stress_mpa(rest),
+                    range.map_or_else(String::new, |r| format!("{:.4} to {:.4}", r.min_mm, r.max_mm)),
+                ),
+                range,
+            )
+        } else {
+            let next = &runs[i + 1];
+            let next_strain = pass::true_strain(next.0.from_mm, next.0.to_mm);
+            let would = strain_before + next_strain;
+            let where_ = if passes.is_empty() {
+                format!("before the first die (the stock arrives at strain {e0:.4})")
+            } else {
+                format!(
+                    "after run {} (strain {strain_before:.4} at {to:.4} mm)",
+                    i + 1
+                )
+            };
+            match limit {
+                Some(l) if would > l * (1.0 - COLD_WORK_MARGIN) => (
+                    AnnealReason::ColdWork,
+                    format!(
+                        "material.cold_work_limit {l}: {where_}; drawing the next {} passes without it would reach strain {would:.4}; placed so that the runs' passes ({counts}) are the fewest that meet every limit",
+                        next.1.len()
+                    ),
+                    None,
+                ),
+                _ => (
+                    AnnealReason::FewerPasses,
+                    format!(
+                        "not forced by the cold-work limit: {where_}; the softened wire takes heavier passes, which brings the runs ({counts}) within {} passes with every pass at or under {}",
+                        input.max_passes,
+                        chooser.ctx.ratio_cap
+                    ),
+                    None,
+                ),
+            }
+        };
+        steps.push(Step::Anneal);
+        anneals.push(AnnealPlan {
+            step: steps.len(),
+            diameter_mm: to,
+            strain_before,
+            reason,
+            window_mm,
+            why,
+        });
+    }
+    let mut schedule = file.clone();
+    schedule.target = None;
+    schedule.passes = steps;
+    if let Some(m) = options.method {
+        schedule.limits.method = Some(m);
+    }
+    let report = evaluate_on(
+        &schedule,
+        &EvaluateOptions {
+            method: options.method,
+        },
+        input.machine,
+    )?;
+    // The evaluation `check` makes is the last word: a designed pass it puts
+    // over a limit is a fault of the design, reported rather than hidden.
+    if let Some(bad) = report
+        .passes
+        .iter()
+        .find(|r| r.flags.iter().any(|f| f.is_over()))
+    {
+        return Err(DesignError::CheckFlags {
+            step: bad.step,
+            from_mm: bad.entry_diameter_mm,
+            to_mm: bad.exit_diameter_mm,
+            flags: bad
+                .flags
+                .iter()
+                .filter(|f| f.is_over())
+                .map(|f| f.name())
+                .collect::<Vec<_>>()
+                .join(", "),
+        });
+    }
+    let finished = report.passes.last().map_or(0.0, |r| r.flow_stress_exit_mpa);
+    if let Some(w) = target.strength_mpa {
+        if !(w.min..=w.max).contains(&finished) {
+            return Err(DesignError::NoDesign {
+                max_passes: input.max_passes,
+                binding: format!(
+                    "the rounded dies leave the finished wire at {finished:.1} MPa, outside target.strength_mpa {}-{} MPa",
+                    w.min, w.max
+                ),
+                remedy: "use a finer target.die_step_mm or more target.die_sizes_mm".into(),
+            });
+        }
+    }
+    let notes = notes(input, chooser, tier, one_level, stock, &report);
+    let ratios: Vec<f64> = report.passes.iter().filter_map(|r| r.draw_ratio).collect();
+    let aimed = input.window.map(|w| file.annealed_law().stress_mpa(w.aim));
+    let summary = DesignSummary {
+        strategy: target.strategy,
+        taper: (target.strategy == Strategy::Tapered).then_some(chooser.taper),
+        method: chooser.ctx.method,
+        draw_passes: ratios.len(),
+        max_passes: input.max_passes,
+        start_diameter_mm: input.start_mm,
+        finish_diameter_mm: input.finish_mm,
+        die_angles_deg: input.angles.clone(),
+        strength_window_mpa: target.strength_mpa,
+        aimed_flow_stress_mpa: if split.temper.is_some() {
+            aimed
+        } else {
+            target.strength_mpa.map(|_| finished)
+        },
+        finished_flow_stress_mpa: finished,
+        run_draw_ratio_spread: run_plans
+            .iter()
+            .map(|r| (r.draw_ratio_max - r.draw_ratio_min) / r.draw_ratio_max)
+            .fold(0.0, f64::max),
+        draw_ratio_spread: spread(ratios.iter().copied()),
+        ratio_across: target.ratio_across,
+        draw_ratio_aimed: chooser.ctx.ratio_cap,
+        dies: die_room::die_list(&dies),
+        die_rounding: stock.map(Stock::words),
+        runs: run_plans,
+        anneals,
+        notes,
+        machine: input.machine.map(|m| m.name.clone()),
+        attainable_speed_m_s: report.summary.attainable_speed_m_s,
+        attainable_t_per_shift: report.summary.attainable_t_per_shift,
+    };
+    Ok(Design {
+        schedule,
+        report,
+        summary,
+    })
+}
+
+/// Choices and defaults that matter, in words.
+pub(super) fn notes(
+    input: &Input,
+    chooser: &Chooser,
+    tier: usize,
+    one_level: bool,
+    stock: Option<&Stock>,
+    report: &crate::evaluation::ScheduleReport,
+) -> Vec<String> {
+    let file = input.file;
+    let target = input.target;
+    let l = &file.limits;
+    let mut notes = Vec::new();
+    if target.max_passes.is_none() && input.passes.is_none() {
+        notes.push(format!(
+            "at most {DEFAULT_MAX_PASSES} passes (the default; set target.max_passes)"
+        ));
+    }
+    if target.strategy == Strategy::Tapered && target.taper.is_none() {
+        notes.push(format!(
+            "taper {DEFAULT_TAPER} (the default; set target.taper)"
+        ));
+    }
+    let cap = chooser.ctx.ratio_cap;
+    let aim = input.caps[0];
+    let aim_words = if target.draw_ratio_aim.is_some() {
+        format!("target.draw_ratio_aim {aim}")
+    } else {
+        format!(
+            "the default aim {aim:.4} ({DEFAULT_AIM_FRACTION} x limits.draw_ratio_warn; set target.draw_ratio_aim)"
+        )
+    };
+    match tier {
+        0 => notes.push(format!("every pass at or under {aim_words}")),
+        _ if cap < l.draw_ratio_max => notes.push(format!(
+            "no design within {} passes keeps every pass at or under {aim_words}: passes held to the warn line {cap}",
+            input.max_passes
+        )),
+        _ => notes.push(format!(
+            "no design within {} passes keeps every pass at or under the warn line {}: some passes sit in the warning zone, up to limits.draw_ratio_max {}",
+            input.max_passes, l.draw_ratio_warn, l.draw_ratio_max
+        )),
+    }
+    if target.strategy == Strategy::EqualRatio {
+        let whole = target.ratio_across == RatioAcross::WholeSchedule;
+        if !one_level {
+            notes.push(format!(
+                "{}the limits hold some runs at their own draw ratio; the spread over the schedule is in draw_ratio_spread",
+                if whole { "one ratio over the whole schedule cannot be kept: " } else { "" }
+            ));
+        } else if !whole && target.strength_mpa.is_some() {
+            notes.push("the temper run is set by the window's middle, the other runs share one draw ratio (target.ratio_across: whole-schedule puts every pass at one)".into());
+        }
+    }
+    if let Some(s) = stock {
+        notes.push(format!(
+            "every die but the finish rounded to {} and re-checked",
+            s.words()
+        ));
+    }
+    let anneals = report
+        .passes
+        .iter()
+        .any(|r| r.kind == crate::evaluation::StepKind::Anneal);
+    if anneals && file.material.annealed_flow.is_none() {
+        notes.push(
+            "after an anneal the stock follows material.flow again (no annealed_flow given)".into(),
+        );
+    }
+    if l.wire_temperature_max_c.is_some()
+        || file
+            .line
+            .as_ref()
+            .is_some_and(|x| x.block_power_kw.is_some())
+    {
+        notes.push("every pass is also held to the wire-temperature and block-power limits that check applies".into());
+    }
+    if let (Some(w), Some(ws)) = (target.strength_mpa, input.window) {
+        let mid = 0.5 * (w.min + w.max);
+        let aim = file.annealed_law().stress_mpa(ws.aim);
+        if (aim - mid).abs() > 1e-6 * mid && ws.lo <= ws.hi {
+            notes.push(format!(
+                "aimed at {aim:.1} MPa rather than the window's middle ({mid:.1} MPa): the cold-work limit or the whole reduction allows no more"
+            ));
+        }
+    }
+    notes
+}
