@@ -14,6 +14,7 @@ use serde::{Deserialize, Serialize};
 
 use crate::param::{self, Ends, ParamError};
 use crate::quad::{self, Integral, QuadratureError};
+use crate::size::quantity::{self, Kind};
 
 /// Why a flow law or a question put to it is not valid.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
@@ -56,24 +57,35 @@ pub enum Beyond {
 
 /// The description of a flow law as written in a schedule file, before
 /// validation. Keys are the serde keys of the file: `{law: hollomon, k_mpa: 530, n: 0.26}`.
+///
+/// Every stress (the `*_mpa` keys, the hardening modulus and a table's
+/// stresses) is read by [`quantity::parse`]: a plain number is MPa (the
+/// README contract), or a number with a stress unit (`"60 ksi"`, `"414 MPa"`,
+/// `"40 kgf/mm2"`), converted by NIST SP 811 (2008) Appendix B.8, e.g.
+/// 1 ksi = 6.894 757 MPa. Written back (as `fit` emits a law) every stress is
+/// a plain number of MPa.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 #[serde(tag = "law", rename_all = "kebab-case", deny_unknown_fields)]
 pub enum FlowLawSpec {
     /// `sigma = Y` (MPa).
     PerfectlyPlastic {
         /// Yield stress Y, MPa.
+        #[serde(deserialize_with = "yield_mpa")]
         yield_mpa: f64,
     },
     /// `sigma = Y + H eps` (MPa).
     Linear {
         /// Yield stress Y, MPa.
+        #[serde(deserialize_with = "yield_mpa")]
         yield_mpa: f64,
         /// Hardening modulus H, MPa per unit strain.
+        #[serde(deserialize_with = "hardening_modulus_mpa")]
         hardening_modulus_mpa: f64,
     },
     /// Hollomon: `sigma = K eps^n` (MPa).
     Hollomon {
         /// Strength coefficient K, MPa.
+        #[serde(deserialize_with = "k_mpa")]
         k_mpa: f64,
         /// Strain-hardening exponent n, 0 <= n < 1.
         n: f64,
@@ -81,8 +93,10 @@ pub enum FlowLawSpec {
     /// Ludwik: `sigma = s0 + K eps^n` (MPa).
     Ludwik {
         /// Initial yield s0, MPa.
+        #[serde(deserialize_with = "sigma0_mpa")]
         sigma0_mpa: f64,
         /// Strength coefficient K, MPa.
+        #[serde(deserialize_with = "k_mpa")]
         k_mpa: f64,
         /// Exponent n, 0 <= n < 1.
         n: f64,
@@ -90,6 +104,7 @@ pub enum FlowLawSpec {
     /// Swift: `sigma = K (e0 + eps)^n` (MPa).
     Swift {
         /// Strength coefficient K, MPa.
+        #[serde(deserialize_with = "k_mpa")]
         k_mpa: f64,
         /// Pre-strain e0 (0 or more).
         eps0: f64,
@@ -99,8 +114,10 @@ pub enum FlowLawSpec {
     /// Voce: `sigma = ss - (ss - s0) exp(-eps/ec)` (MPa).
     Voce {
         /// Initial yield s0, MPa.
+        #[serde(deserialize_with = "sigma0_mpa")]
         sigma0_mpa: f64,
         /// Saturation stress ss, MPa (at least s0).
+        #[serde(deserialize_with = "saturation_mpa")]
         saturation_mpa: f64,
         /// Characteristic strain ec (greater than 0).
         eps_c: f64,
@@ -108,10 +125,127 @@ pub enum FlowLawSpec {
     /// Piecewise linear through `[strain, stress_mpa]` points.
     Points {
         /// `[strain, stress_mpa]` pairs; strains strictly increasing, the first at 0.
+        #[serde(deserialize_with = "stress_points")]
         points: Vec<[f64; 2]>,
         /// Behaviour beyond the last point.
         beyond: Beyond,
     },
+}
+
+/// A stress as written in a law: its value in MPa, or why it cannot be
+/// read (the text as written and the rule), for an error naming its key.
+enum WrittenStress {
+    Mpa(f64),
+    Bad { value: String, why: String },
+}
+
+impl WrittenStress {
+    /// The value in MPa, or a [`ParamError`] naming `key`, the value and the
+    /// units allowed (`` `k_mpa` = "60 ksx" is not allowed: `ksx` is not a unit ...``).
+    fn named(self, key: &str) -> Result<f64, ParamError> {
+        match self {
+            WrittenStress::Mpa(x) => Ok(x),
+            WrittenStress::Bad { value, why } => Err(ParamError::new(key, value, why)),
+        }
+    }
+
+    /// A value of the wrong kind (a list, a flag, nothing), shown as `shown`.
+    fn wrong(shown: impl Into<String>) -> Self {
+        WrittenStress::Bad {
+            value: shown.into(),
+            why: format!("must be {}", Kind::Stress.allowed()),
+        }
+    }
+}
+
+impl<'de> Deserialize<'de> for WrittenStress {
+    fn deserialize<D: serde::Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
+        d.deserialize_any(WrittenStressVisitor)
+    }
+}
+
+/// Reads a number as MPa and a text by [`quantity::parse`]; anything else
+/// is kept as a bad value (a list or a mapping read through) so the caller
+/// names the key.
+struct WrittenStressVisitor;
+
+impl<'de> serde::de::Visitor<'de> for WrittenStressVisitor {
+    type Value = WrittenStress;
+
+    fn expecting(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(&Kind::Stress.allowed())
+    }
+    fn visit_f64<E>(self, v: f64) -> Result<WrittenStress, E> {
+        Ok(WrittenStress::Mpa(v))
+    }
+    fn visit_i64<E>(self, v: i64) -> Result<WrittenStress, E> {
+        Ok(WrittenStress::Mpa(v as f64))
+    }
+    fn visit_u64<E>(self, v: u64) -> Result<WrittenStress, E> {
+        Ok(WrittenStress::Mpa(v as f64))
+    }
+    fn visit_str<E>(self, v: &str) -> Result<WrittenStress, E> {
+        Ok(match quantity::parse(v, Kind::Stress) {
+            Ok(x) => WrittenStress::Mpa(x),
+            Err(e) => WrittenStress::Bad {
+                value: e.value,
+                why: format!("{}; allowed {}", e.why, e.allowed),
+            },
+        })
+    }
+    fn visit_bool<E>(self, v: bool) -> Result<WrittenStress, E> {
+        Ok(WrittenStress::wrong(v.to_string()))
+    }
+    fn visit_unit<E>(self) -> Result<WrittenStress, E> {
+        Ok(WrittenStress::wrong("nothing"))
+    }
+    fn visit_none<E>(self) -> Result<WrittenStress, E> {
+        Ok(WrittenStress::wrong("nothing"))
+    }
+    fn visit_seq<A: serde::de::SeqAccess<'de>>(self, mut a: A) -> Result<WrittenStress, A::Error> {
+        while a.next_element::<serde::de::IgnoredAny>()?.is_some() {}
+        Ok(WrittenStress::wrong("a list"))
+    }
+    fn visit_map<A: serde::de::MapAccess<'de>>(self, mut a: A) -> Result<WrittenStress, A::Error> {
+        while a
+            .next_entry::<serde::de::IgnoredAny, serde::de::IgnoredAny>()?
+            .is_some()
+        {}
+        Ok(WrittenStress::wrong("a mapping"))
+    }
+}
+
+/// `serde(deserialize_with)` readers for the laws' stress keys, one per key
+/// so that an error names it.
+macro_rules! stress_keys {
+    ($($key:ident),*) => {$(
+        #[doc = concat!("Reads `", stringify!($key), "`: a number of MPa or a number with a stress unit.")]
+        fn $key<'de, D: serde::Deserializer<'de>>(d: D) -> Result<f64, D::Error> {
+            WrittenStress::deserialize(d)?
+                .named(stringify!($key))
+                .map_err(serde::de::Error::custom)
+        }
+    )*};
+}
+
+stress_keys!(
+    yield_mpa,
+    hardening_modulus_mpa,
+    k_mpa,
+    sigma0_mpa,
+    saturation_mpa
+);
+
+/// A table's `[strain, stress]` pairs: the strain a plain number, the stress
+/// a plain number of MPa or a number with a stress unit (`[0.5, "36 ksi"]`);
+/// a bad stress is named `points[i] stress_mpa`, as validation names it.
+fn stress_points<'de, D: serde::Deserializer<'de>>(d: D) -> Result<Vec<[f64; 2]>, D::Error> {
+    Vec::<(f64, WrittenStress)>::deserialize(d)?
+        .into_iter()
+        .enumerate()
+        .map(|(i, (e, s))| Ok([e, s.named(&format!("points[{i}] stress_mpa"))?]))
+        .collect::<Result<_, ParamError>>()
+        .map_err(serde::de::Error::custom)
 }
 
 /// A validated flow law. Build one with a constructor ([`FlowLaw::hollomon`], ...)
