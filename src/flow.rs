@@ -807,6 +807,60 @@ mod tests {
     }
 
     #[test]
+    fn stresses_with_a_unit_read_in_mpa_and_write_back_plain() {
+        // NIST SP 811 (2008) B.8: 1 ksi = 6.894 757 E+06 Pa (seven digits),
+        // 1 kgf/mm2 = 9.806 65 E+06 Pa (exact); 1 GPa = 1000 MPa by definition.
+        let law: FlowLaw = serde_yaml::from_str(
+            r#"{law: ludwik, sigma0_mpa: "10 kgf/mm2", k_mpa: 60 ksi, n: 0.3}"#,
+        )
+        .unwrap();
+        let FlowLawSpec::Ludwik {
+            sigma0_mpa, k_mpa, ..
+        } = *law.spec()
+        else {
+            panic!("{law:?}")
+        };
+        assert!((sigma0_mpa - 98.0665).abs() < 1e-12, "{sigma0_mpa}");
+        assert!((k_mpa - 413.685_42).abs() <= 0.5e-6 * 60.0, "{k_mpa}");
+        let table: FlowLaw = serde_yaml::from_str(
+            r#"{law: points, points: [[0, 100], [1, "0.2 GPa"]], beyond: flat}"#,
+        )
+        .unwrap();
+        assert_eq!(
+            table,
+            FlowLaw::points(vec![[0.0, 100.0], [1.0, 200.0]], Beyond::Flat).unwrap()
+        );
+        // Written back (as `fit` emits a law), every stress is a plain number of MPa.
+        let out = serde_yaml::to_string(&law).unwrap();
+        assert!(!out.contains("ksi") && !out.contains('"'), "{out}");
+        assert_eq!(serde_yaml::from_str::<FlowLaw>(&out).unwrap(), law);
+    }
+
+    #[test]
+    fn a_bad_stress_names_its_key() {
+        let e = serde_yaml::from_str::<FlowLaw>(r#"{law: swift, k_mpa: "9 ksq", eps0: 0, n: 0.2}"#)
+            .unwrap_err()
+            .to_string();
+        assert!(e.starts_with("`k_mpa` = \"9 ksq\" is not allowed: `ksq` is not a unit of a stress; allowed a number of MPa"), "{e}");
+        let e = serde_yaml::from_str::<FlowLaw>(
+            "{law: points, points: [[0, 1], [1, [2]]], beyond: flat}",
+        )
+        .unwrap_err()
+        .to_string();
+        assert!(
+            e.starts_with(
+                "`points[1] stress_mpa` = a list is not allowed: must be a number of MPa"
+            ),
+            "{e}"
+        );
+        // Validation still applies to a value read with a unit.
+        let e = serde_yaml::from_str::<FlowLaw>(r#"{law: hollomon, k_mpa: "-5 ksi", n: 0.2}"#)
+            .unwrap_err()
+            .to_string();
+        assert!(e.contains("`k_mpa` = -34.47"), "{e}");
+    }
+
+    #[test]
     fn tables_are_validated() {
         assert!(FlowLaw::points(vec![[0.1, 100.0], [1.0, 200.0]], Beyond::Flat).is_err());
         assert!(FlowLaw::points(vec![[0.0, 100.0], [0.0, 200.0]], Beyond::Flat).is_err());
