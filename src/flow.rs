@@ -459,11 +459,7 @@ impl FlowLaw {
                 sigma0_mpa,
                 saturation_mpa,
                 eps_c,
-            } => {
-                // exp(-e1/ec) - exp(-e2/ec) = exp(-e1/ec) * (-expm1(-(e2-e1)/ec)), no cancellation
-                let drop = (-e1 / eps_c).exp() * -(-d / eps_c).exp_m1();
-                saturation_mpa * d - (saturation_mpa - sigma0_mpa) * eps_c * drop
-            }
+            } => voce_integral(*saturation_mpa, *sigma0_mpa, *eps_c, (-e1 / eps_c).exp(), d),
             FlowLawSpec::Points { points, beyond } => table_integral(points, *beyond, e1, e2),
         };
         finite_or_overflow("flow-stress integral", integral)
@@ -608,15 +604,30 @@ fn check_interval(e1: f64, e2: f64) -> Result<(), ParamError> {
     Ok(())
 }
 
-/// `integral of x^n dx from a to b = (b^(n+1) - a^(n+1)) / (n+1)`, written as
-/// `a^(n+1) expm1((n+1) ln1p((b-a)/a)) / (n+1)` so that thin intervals lose no digits.
-fn power_integral(a: f64, b: f64, n: f64) -> f64 {
+/// `b^(n+1) - a^(n+1)` for `0 <= a <= b`, written as
+/// `a^(n+1) expm1((n+1) ln1p((b-a)/a))` so that thin intervals lose no digits.
+pub(crate) fn power_difference(a: f64, b: f64, n: f64) -> f64 {
     let p = n + 1.0;
     if a > 0.0 {
-        a.powf(p) * (p * ((b - a) / a).ln_1p()).exp_m1() / p
+        a.powf(p) * (p * ((b - a) / a).ln_1p()).exp_m1()
     } else {
-        b.powf(p) / p
+        b.powf(p)
     }
+}
+
+/// `integral of x^n dx from a to b = (b^(n+1) - a^(n+1)) / (n+1)`, by
+/// [`power_difference`].
+fn power_integral(a: f64, b: f64, n: f64) -> f64 {
+    power_difference(a, b, n) / (n + 1.0)
+}
+
+/// The Voce integral over `[e1, e1 + d]` (MPa):
+/// `ss d - (ss - s0) ec (exp(-e1/ec) - exp(-(e1+d)/ec))`, with
+/// `entry_decay = exp(-e1/ec)` given, and the difference of exponentials
+/// written `exp(-e1/ec) (-expm1(-d/ec))` so that it does not cancel.
+pub(crate) fn voce_integral(ss: f64, s0: f64, ec: f64, entry_decay: f64, d: f64) -> f64 {
+    let drop = entry_decay * -(-d / ec).exp_m1();
+    ss * d - (ss - s0) * ec * drop
 }
 
 fn validate_points(points: &[[f64; 2]], beyond: Beyond) -> Result<(), ParamError> {
