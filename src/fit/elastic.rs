@@ -121,16 +121,17 @@ fn line_over(
     Some((a, b, se))
 }
 
-/// The contiguous range of points, before `limit`, whose stress first lies
-/// in `[lo, hi]` (a preliminary choice by stress).
-fn range_by_stress(stress: &[f64], lo: f64, hi: f64, limit: usize) -> std::ops::Range<usize> {
-    let start = stress[..limit]
+/// The contiguous range of points, before `limit`, whose values first lie
+/// in `[lo, hi]`: from the first at or above `lo` to the first after it above
+/// `hi` (a preliminary choice by stress, or by strain).
+fn first_run_within(values: &[f64], lo: f64, hi: f64, limit: usize) -> std::ops::Range<usize> {
+    let start = values[..limit]
         .iter()
-        .position(|&s| s >= lo)
+        .position(|&v| v >= lo)
         .unwrap_or(limit);
-    let end = stress[start..limit]
+    let end = values[start..limit]
         .iter()
-        .position(|&s| s > hi)
+        .position(|&v| v > hi)
         .map_or(limit, |k| start + k);
     start..end
 }
@@ -145,16 +146,7 @@ fn range_by_strain(
     hi: f64,
     limit: usize,
 ) -> std::ops::Range<usize> {
-    let (e_lo, e_hi) = ((lo - a) / b, (hi - a) / b);
-    let start = strain[..limit]
-        .iter()
-        .position(|&e| e >= e_lo)
-        .unwrap_or(limit);
-    let end = strain[start..limit]
-        .iter()
-        .position(|&e| e > e_hi)
-        .map_or(limit, |k| start + k);
-    start..end
+    first_run_within(strain, (lo - a) / b, (hi - a) / b, limit)
 }
 
 /// The modulus over the band `[BAND_LOW, BAND_HIGH] x reference`, points
@@ -169,7 +161,7 @@ fn modulus_in_band(
     let (lo, hi) = (BAND_LOW * reference_mpa, BAND_HIGH * reference_mpa);
     let range = match line {
         Some((a, b)) => range_by_strain(strain, a, b, lo, hi, limit),
-        None => range_by_stress(stress, lo, hi, limit),
+        None => first_run_within(stress, lo, hi, limit),
     };
     if range.len() < MIN_ELASTIC_POINTS {
         return Err(FitError::TooFewElasticPoints {
