@@ -51,6 +51,16 @@ pub fn considere_strain(law: &FlowLaw) -> Option<f64> {
         }
         lo = hi;
     }
+    Some(at_kink(law, bisect(law, lo, hi)))
+}
+
+/// Bisection of `d sigma/d eps - sigma` (central-difference slope) on a
+/// bracket `[lo, hi]` whose excess is positive at `lo` and not at `hi`, to
+/// `1e-13` relative: the midpoint of the last bracket, a strain. The one
+/// bisection of [`considere_strain`]; a caller with its own bracket gets
+/// the same bits from it.
+pub fn bisect(law: &FlowLaw, lo: f64, hi: f64) -> f64 {
+    let (mut lo, mut hi) = (lo, hi);
     for _ in 0..200 {
         let mid = 0.5 * (lo + hi);
         if excess(law, mid) > 0.0 {
@@ -62,7 +72,7 @@ pub fn considere_strain(law: &FlowLaw) -> Option<f64> {
             break;
         }
     }
-    Some(at_kink(law, 0.5 * (lo + hi)))
+    0.5 * (lo + hi)
 }
 
 /// A tabulated law whose slope jumps across `sigma` at a point (a kink)
