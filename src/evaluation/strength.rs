@@ -22,13 +22,19 @@ pub const YIELD_OFFSET_STRAIN: f64 = 0.002;
 /// Largest strain searched for the Considere condition.
 const SEARCH_MAX_STRAIN: f64 = 20.0;
 
+/// `d sigma/d eps` of `law` at strain `e` (MPa), by a central difference of
+/// step `h = 1e-5 max(e, 1e-3)` (one-sided at 0).
 fn slope(law: &FlowLaw, e: f64) -> f64 {
     let h = 1e-5 * e.max(1e-3);
     let lo = (e - h).max(0.0);
     (law.stress_mpa(e + h) - law.stress_mpa(lo)) / (e + h - lo)
 }
 
-fn excess(law: &FlowLaw, e: f64) -> f64 {
+/// The Considere excess `d sigma/d eps - sigma` at strain `e` (MPa): positive
+/// while the wire still hardens faster than its section shrinks, so a test
+/// piece at `e` stretches uniformly (Considere 1885; Dieter, ch. 8). The
+/// slope is [`considere_strain`]'s central difference.
+pub fn excess(law: &FlowLaw, e: f64) -> f64 {
     slope(law, e) - law.stress_mpa(e)
 }
 
