@@ -26,7 +26,8 @@
 //! with mu 0.5 reaches z = 29 per unit strain); beyond it, or for anything
 //! not finite, the adaptive double-exponential rule of [`crate::quad`] is
 //! used, as it is by [`integral_by_quadrature`], the independent check the
-//! tests compare the fast path with (agreement within 1e-9 relative, on every law).
+//! tests compare the fast path with (agreement within 1e-12 relative, on every law;
+//! tests/core_fast_path.rs).
 
 use crate::flow::{
     finite_or_overflow, power_difference, voce_integral, FlowError, FlowLaw, FlowLawSpec,
