@@ -231,3 +231,38 @@ fn a_bad_stress_names_its_key_the_value_and_the_units_allowed() {
         "{err}"
     );
 }
+
+#[test]
+fn fit_emits_its_law_in_plain_mpa_whatever_the_units_shown() {
+    // The README contract: fit's emitted law is plain MPa, so `--units us`
+    // (ksi on the screen) writes the same file as SI.
+    let dir = tempfile::tempdir().unwrap();
+    let emit = |units: &str| -> String {
+        let p = dir.path().join(format!("law-{units}.yaml"));
+        let o = coldpass(&[
+            "fit",
+            "schedules-demo/tensile-copper-rod.csv",
+            "--units",
+            units,
+            "--emit-law",
+            p.to_str().unwrap(),
+        ]);
+        assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+        std::fs::read_to_string(p).unwrap()
+    };
+    let (si, us) = (emit("si"), emit("us"));
+    assert_eq!(si, us);
+    let v: serde_yaml::Value = serde_yaml::from_str(&si).unwrap();
+    let flow = v["flow"].as_mapping().expect("a flow block");
+    assert!(
+        flow.keys()
+            .any(|k| k.as_str().is_some_and(|k| k.ends_with("_mpa"))),
+        "{si}"
+    );
+    for (key, value) in flow {
+        let key = key.as_str().unwrap();
+        if key.ends_with("_mpa") {
+            assert!(value.is_f64() || value.is_i64(), "{key}: {value:?}");
+        }
+    }
+}
