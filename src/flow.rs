@@ -236,14 +236,54 @@ stress_keys!(
     saturation_mpa
 );
 
+/// One `[strain, stress]` point of a table, read as a two-element array: a
+/// short or long one is refused as serde refuses `[f64; 2]` ("invalid
+/// length 1, expected an array of length 2").
+struct TablePoint(f64, WrittenStress);
+
+impl<'de> Deserialize<'de> for TablePoint {
+    fn deserialize<D: serde::Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
+        d.deserialize_tuple(2, TablePointVisitor)
+    }
+}
+
+/// Reads a [`TablePoint`] from a sequence of exactly two values.
+struct TablePointVisitor;
+
+impl<'de> serde::de::Visitor<'de> for TablePointVisitor {
+    type Value = TablePoint;
+
+    fn expecting(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str("an array of length 2")
+    }
+
+    fn visit_seq<A: serde::de::SeqAccess<'de>>(self, mut a: A) -> Result<TablePoint, A::Error> {
+        use serde::de::Error;
+        let strain = a
+            .next_element::<f64>()?
+            .ok_or_else(|| A::Error::invalid_length(0, &self))?;
+        let stress = a
+            .next_element::<WrittenStress>()?
+            .ok_or_else(|| A::Error::invalid_length(1, &self))?;
+        let mut extra = 0;
+        while a.next_element::<serde::de::IgnoredAny>()?.is_some() {
+            extra += 1;
+        }
+        if extra > 0 {
+            return Err(A::Error::invalid_length(2 + extra, &self));
+        }
+        Ok(TablePoint(strain, stress))
+    }
+}
+
 /// A table's `[strain, stress]` pairs: the strain a plain number, the stress
 /// a plain number of MPa or a number with a stress unit (`[0.5, "36 ksi"]`);
 /// a bad stress is named `points[i] stress_mpa`, as validation names it.
 fn stress_points<'de, D: serde::Deserializer<'de>>(d: D) -> Result<Vec<[f64; 2]>, D::Error> {
-    Vec::<(f64, WrittenStress)>::deserialize(d)?
+    Vec::<TablePoint>::deserialize(d)?
         .into_iter()
         .enumerate()
-        .map(|(i, (e, s))| Ok([e, s.named(&format!("points[{i}] stress_mpa"))?]))
+        .map(|(i, TablePoint(e, s))| Ok([e, s.named(&format!("points[{i}] stress_mpa"))?]))
         .collect::<Result<_, ParamError>>()
         .map_err(serde::de::Error::custom)
 }

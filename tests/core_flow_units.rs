@@ -220,6 +220,17 @@ fn a_bad_stress_names_its_key_the_value_and_the_units_allowed() {
         );
         assert_eq!(err.trim_end().lines().count(), 1, "one line: {err}");
     }
+    // A table's point is still a pair, as before units were read in it.
+    for points in ["[[0, 80, 3], [1, 200]]", "[[0], [1, 200]]"] {
+        let law = format!("flow: {{law: points, points: {points}, beyond: flat}}");
+        let (code, err) = check_error(&edited(&text, COPPER_FLOW, &law));
+        assert_eq!(code, Some(1), "{law}");
+        assert!(
+            err.contains("material.flow")
+                && err.contains("where a pair [strain, stress_mpa] is needed"),
+            "{law}: {err}"
+        );
+    }
     // The annealed law's errors name its own key.
     let (_, err) = check_error(&edited(
         &text,
