@@ -1,7 +1,8 @@
 //! The die land (bearing) against hand-computed values: the slab balance on a
-//! parallel land, sigma_exit = Y - (Y - sigma_cone) e^(-4 mu L / d) (derived in
-//! src/pass/mod.rs, `land_exit_stress`; the standard slab treatment of the land
-//! as in Hosford & Caddell, *Metal Forming*, from memory), in Sachs, Siebel and
+//! parallel land, sigma_exit = Y - (Y - sigma_cone) e^(-4 mu L / d) (the
+//! standard slab treatment of the land, d sigma_x/dx = (2 mu / r_f)(Y - sigma_x),
+//! as in Hosford & Caddell, *Metal Forming*, from memory; docs/physics.md, "More
+//! single-pass physics"; integrated by hand here, not read from the code), in Sachs, Siebel and
 //! redundant; Avitzur's land term (2m/sqrt 3)(L/Rf) sigma_bar in the upper
 //! bound; and the common-practice "long land" test (docs/physics.md).
 
