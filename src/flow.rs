@@ -14,6 +14,7 @@ use serde::{Deserialize, Serialize};
 
 use crate::param::{self, Ends, ParamError};
 use crate::quad::{self, Integral, QuadratureError};
+use crate::size::quantity::{self, Kind};
 
 /// Why a flow law or a question put to it is not valid.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
@@ -56,24 +57,35 @@ pub enum Beyond {
 
 /// The description of a flow law as written in a schedule file, before
 /// validation. Keys are the serde keys of the file: `{law: hollomon, k_mpa: 530, n: 0.26}`.
+///
+/// Every stress (the `*_mpa` keys, the hardening modulus and a table's
+/// stresses) is read by [`quantity::parse`]: a plain number is MPa (the
+/// README contract), or a number with a stress unit (`"60 ksi"`, `"414 MPa"`,
+/// `"40 kgf/mm2"`), converted by NIST SP 811 (2008) Appendix B.8, e.g.
+/// 1 ksi = 6.894 757 MPa. Written back (as `fit` emits a law) every stress is
+/// a plain number of MPa.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 #[serde(tag = "law", rename_all = "kebab-case", deny_unknown_fields)]
 pub enum FlowLawSpec {
     /// `sigma = Y` (MPa).
     PerfectlyPlastic {
         /// Yield stress Y, MPa.
+        #[serde(deserialize_with = "yield_mpa")]
         yield_mpa: f64,
     },
     /// `sigma = Y + H eps` (MPa).
     Linear {
         /// Yield stress Y, MPa.
+        #[serde(deserialize_with = "yield_mpa")]
         yield_mpa: f64,
         /// Hardening modulus H, MPa per unit strain.
+        #[serde(deserialize_with = "hardening_modulus_mpa")]
         hardening_modulus_mpa: f64,
     },
     /// Hollomon: `sigma = K eps^n` (MPa).
     Hollomon {
         /// Strength coefficient K, MPa.
+        #[serde(deserialize_with = "k_mpa")]
         k_mpa: f64,
         /// Strain-hardening exponent n, 0 <= n < 1.
         n: f64,
@@ -81,8 +93,10 @@ pub enum FlowLawSpec {
     /// Ludwik: `sigma = s0 + K eps^n` (MPa).
     Ludwik {
         /// Initial yield s0, MPa.
+        #[serde(deserialize_with = "sigma0_mpa")]
         sigma0_mpa: f64,
         /// Strength coefficient K, MPa.
+        #[serde(deserialize_with = "k_mpa")]
         k_mpa: f64,
         /// Exponent n, 0 <= n < 1.
         n: f64,
@@ -90,6 +104,7 @@ pub enum FlowLawSpec {
     /// Swift: `sigma = K (e0 + eps)^n` (MPa).
     Swift {
         /// Strength coefficient K, MPa.
+        #[serde(deserialize_with = "k_mpa")]
         k_mpa: f64,
         /// Pre-strain e0 (0 or more).
         eps0: f64,
@@ -99,8 +114,10 @@ pub enum FlowLawSpec {
     /// Voce: `sigma = ss - (ss - s0) exp(-eps/ec)` (MPa).
     Voce {
         /// Initial yield s0, MPa.
+        #[serde(deserialize_with = "sigma0_mpa")]
         sigma0_mpa: f64,
         /// Saturation stress ss, MPa (at least s0).
+        #[serde(deserialize_with = "saturation_mpa")]
         saturation_mpa: f64,
         /// Characteristic strain ec (greater than 0).
         eps_c: f64,
@@ -108,10 +125,167 @@ pub enum FlowLawSpec {
     /// Piecewise linear through `[strain, stress_mpa]` points.
     Points {
         /// `[strain, stress_mpa]` pairs; strains strictly increasing, the first at 0.
+        #[serde(deserialize_with = "stress_points")]
         points: Vec<[f64; 2]>,
         /// Behaviour beyond the last point.
         beyond: Beyond,
     },
+}
+
+/// A stress as written in a law: its value in MPa, or why it cannot be
+/// read (the text as written and the rule), for an error naming its key.
+enum WrittenStress {
+    Mpa(f64),
+    Bad { value: String, why: String },
+}
+
+impl WrittenStress {
+    /// The value in MPa, or a [`ParamError`] naming `key`, the value and the
+    /// units allowed (`` `k_mpa` = "60 ksx" is not allowed: `ksx` is not a unit ...``).
+    fn named(self, key: &str) -> Result<f64, ParamError> {
+        match self {
+            WrittenStress::Mpa(x) => Ok(x),
+            WrittenStress::Bad { value, why } => Err(ParamError::new(key, value, why)),
+        }
+    }
+
+    /// A value of the wrong kind (a list, a flag, nothing), shown as `shown`.
+    fn wrong(shown: impl Into<String>) -> Self {
+        WrittenStress::Bad {
+            value: shown.into(),
+            why: format!("must be {}", Kind::Stress.allowed()),
+        }
+    }
+}
+
+impl<'de> Deserialize<'de> for WrittenStress {
+    fn deserialize<D: serde::Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
+        d.deserialize_any(WrittenStressVisitor)
+    }
+}
+
+/// Reads a number as MPa and a text by [`quantity::parse`]; anything else
+/// is kept as a bad value (a list or a mapping read through) so the caller
+/// names the key.
+struct WrittenStressVisitor;
+
+impl<'de> serde::de::Visitor<'de> for WrittenStressVisitor {
+    type Value = WrittenStress;
+
+    fn expecting(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(&Kind::Stress.allowed())
+    }
+    fn visit_f64<E>(self, v: f64) -> Result<WrittenStress, E> {
+        Ok(WrittenStress::Mpa(v))
+    }
+    fn visit_i64<E>(self, v: i64) -> Result<WrittenStress, E> {
+        Ok(WrittenStress::Mpa(v as f64))
+    }
+    fn visit_u64<E>(self, v: u64) -> Result<WrittenStress, E> {
+        Ok(WrittenStress::Mpa(v as f64))
+    }
+    fn visit_str<E>(self, v: &str) -> Result<WrittenStress, E> {
+        Ok(match quantity::parse(v, Kind::Stress) {
+            Ok(x) => WrittenStress::Mpa(x),
+            Err(e) => WrittenStress::Bad {
+                value: e.value,
+                why: format!("{}; allowed {}", e.why, e.allowed),
+            },
+        })
+    }
+    fn visit_bool<E>(self, v: bool) -> Result<WrittenStress, E> {
+        Ok(WrittenStress::wrong(v.to_string()))
+    }
+    fn visit_unit<E>(self) -> Result<WrittenStress, E> {
+        Ok(WrittenStress::wrong("nothing"))
+    }
+    fn visit_none<E>(self) -> Result<WrittenStress, E> {
+        Ok(WrittenStress::wrong("nothing"))
+    }
+    fn visit_seq<A: serde::de::SeqAccess<'de>>(self, mut a: A) -> Result<WrittenStress, A::Error> {
+        while a.next_element::<serde::de::IgnoredAny>()?.is_some() {}
+        Ok(WrittenStress::wrong("a list"))
+    }
+    fn visit_map<A: serde::de::MapAccess<'de>>(self, mut a: A) -> Result<WrittenStress, A::Error> {
+        while a
+            .next_entry::<serde::de::IgnoredAny, serde::de::IgnoredAny>()?
+            .is_some()
+        {}
+        Ok(WrittenStress::wrong("a mapping"))
+    }
+}
+
+/// `serde(deserialize_with)` readers for the laws' stress keys, one per key
+/// so that an error names it.
+macro_rules! stress_keys {
+    ($($key:ident),*) => {$(
+        #[doc = concat!("Reads `", stringify!($key), "`: a number of MPa or a number with a stress unit.")]
+        fn $key<'de, D: serde::Deserializer<'de>>(d: D) -> Result<f64, D::Error> {
+            WrittenStress::deserialize(d)?
+                .named(stringify!($key))
+                .map_err(serde::de::Error::custom)
+        }
+    )*};
+}
+
+stress_keys!(
+    yield_mpa,
+    hardening_modulus_mpa,
+    k_mpa,
+    sigma0_mpa,
+    saturation_mpa
+);
+
+/// One `[strain, stress]` point of a table, read as a two-element array: a
+/// short or long one is refused as serde refuses `[f64; 2]` ("invalid
+/// length 1, expected an array of length 2").
+struct TablePoint(f64, WrittenStress);
+
+impl<'de> Deserialize<'de> for TablePoint {
+    fn deserialize<D: serde::Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
+        d.deserialize_tuple(2, TablePointVisitor)
+    }
+}
+
+/// Reads a [`TablePoint`] from a sequence of exactly two values.
+struct TablePointVisitor;
+
+impl<'de> serde::de::Visitor<'de> for TablePointVisitor {
+    type Value = TablePoint;
+
+    fn expecting(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str("an array of length 2")
+    }
+
+    fn visit_seq<A: serde::de::SeqAccess<'de>>(self, mut a: A) -> Result<TablePoint, A::Error> {
+        use serde::de::Error;
+        let strain = a
+            .next_element::<f64>()?
+            .ok_or_else(|| A::Error::invalid_length(0, &self))?;
+        let stress = a
+            .next_element::<WrittenStress>()?
+            .ok_or_else(|| A::Error::invalid_length(1, &self))?;
+        let mut extra = 0;
+        while a.next_element::<serde::de::IgnoredAny>()?.is_some() {
+            extra += 1;
+        }
+        if extra > 0 {
+            return Err(A::Error::invalid_length(2 + extra, &self));
+        }
+        Ok(TablePoint(strain, stress))
+    }
+}
+
+/// A table's `[strain, stress]` pairs: the strain a plain number, the stress
+/// a plain number of MPa or a number with a stress unit (`[0.5, "36 ksi"]`);
+/// a bad stress is named `points[i] stress_mpa`, as validation names it.
+fn stress_points<'de, D: serde::Deserializer<'de>>(d: D) -> Result<Vec<[f64; 2]>, D::Error> {
+    Vec::<TablePoint>::deserialize(d)?
+        .into_iter()
+        .enumerate()
+        .map(|(i, TablePoint(e, s))| Ok([e, s.named(&format!("points[{i}] stress_mpa"))?]))
+        .collect::<Result<_, ParamError>>()
+        .map_err(serde::de::Error::custom)
 }
 
 /// A validated flow law. Build one with a constructor ([`FlowLaw::hollomon`], ...)
@@ -325,11 +499,7 @@ impl FlowLaw {
                 sigma0_mpa,
                 saturation_mpa,
                 eps_c,
-            } => {
-                // exp(-e1/ec) - exp(-e2/ec) = exp(-e1/ec) * (-expm1(-(e2-e1)/ec)), no cancellation
-                let drop = (-e1 / eps_c).exp() * -(-d / eps_c).exp_m1();
-                saturation_mpa * d - (saturation_mpa - sigma0_mpa) * eps_c * drop
-            }
+            } => voce_integral(*saturation_mpa, *sigma0_mpa, *eps_c, (-e1 / eps_c).exp(), d),
             FlowLawSpec::Points { points, beyond } => table_integral(points, *beyond, e1, e2),
         };
         finite_or_overflow("flow-stress integral", integral)
@@ -474,15 +644,30 @@ fn check_interval(e1: f64, e2: f64) -> Result<(), ParamError> {
     Ok(())
 }
 
-/// `integral of x^n dx from a to b = (b^(n+1) - a^(n+1)) / (n+1)`, written as
-/// `a^(n+1) expm1((n+1) ln1p((b-a)/a)) / (n+1)` so that thin intervals lose no digits.
-fn power_integral(a: f64, b: f64, n: f64) -> f64 {
+/// `b^(n+1) - a^(n+1)` for `0 <= a <= b`, written as
+/// `a^(n+1) expm1((n+1) ln1p((b-a)/a))` so that thin intervals lose no digits.
+pub(crate) fn power_difference(a: f64, b: f64, n: f64) -> f64 {
     let p = n + 1.0;
     if a > 0.0 {
-        a.powf(p) * (p * ((b - a) / a).ln_1p()).exp_m1() / p
+        a.powf(p) * (p * ((b - a) / a).ln_1p()).exp_m1()
     } else {
-        b.powf(p) / p
+        b.powf(p)
     }
+}
+
+/// `integral of x^n dx from a to b = (b^(n+1) - a^(n+1)) / (n+1)`, by
+/// [`power_difference`].
+fn power_integral(a: f64, b: f64, n: f64) -> f64 {
+    power_difference(a, b, n) / (n + 1.0)
+}
+
+/// The Voce integral over `[e1, e1 + d]` (MPa):
+/// `ss d - (ss - s0) ec (exp(-e1/ec) - exp(-(e1+d)/ec))`, with
+/// `entry_decay = exp(-e1/ec)` given, and the difference of exponentials
+/// written `exp(-e1/ec) (-expm1(-d/ec))` so that it does not cancel.
+pub(crate) fn voce_integral(ss: f64, s0: f64, ec: f64, entry_decay: f64, d: f64) -> f64 {
+    let drop = entry_decay * -(-d / ec).exp_m1();
+    ss * d - (ss - s0) * ec * drop
 }
 
 fn validate_points(points: &[[f64; 2]], beyond: Beyond) -> Result<(), ParamError> {
@@ -670,6 +855,60 @@ mod tests {
         assert!(unknown.to_string().contains("unknown field"), "{unknown}");
         let out = serde_yaml::to_string(&law).unwrap();
         assert!(out.contains("law: hollomon"), "{out}");
+    }
+
+    #[test]
+    fn stresses_with_a_unit_read_in_mpa_and_write_back_plain() {
+        // NIST SP 811 (2008) B.8: 1 ksi = 6.894 757 E+06 Pa (seven digits),
+        // 1 kgf/mm2 = 9.806 65 E+06 Pa (exact); 1 GPa = 1000 MPa by definition.
+        let law: FlowLaw = serde_yaml::from_str(
+            r#"{law: ludwik, sigma0_mpa: "10 kgf/mm2", k_mpa: 60 ksi, n: 0.3}"#,
+        )
+        .unwrap();
+        let FlowLawSpec::Ludwik {
+            sigma0_mpa, k_mpa, ..
+        } = *law.spec()
+        else {
+            panic!("{law:?}")
+        };
+        assert!((sigma0_mpa - 98.0665).abs() < 1e-12, "{sigma0_mpa}");
+        assert!((k_mpa - 413.685_42).abs() <= 0.5e-6 * 60.0, "{k_mpa}");
+        let table: FlowLaw = serde_yaml::from_str(
+            r#"{law: points, points: [[0, 100], [1, "0.2 GPa"]], beyond: flat}"#,
+        )
+        .unwrap();
+        assert_eq!(
+            table,
+            FlowLaw::points(vec![[0.0, 100.0], [1.0, 200.0]], Beyond::Flat).unwrap()
+        );
+        // Written back (as `fit` emits a law), every stress is a plain number of MPa.
+        let out = serde_yaml::to_string(&law).unwrap();
+        assert!(!out.contains("ksi") && !out.contains('"'), "{out}");
+        assert_eq!(serde_yaml::from_str::<FlowLaw>(&out).unwrap(), law);
+    }
+
+    #[test]
+    fn a_bad_stress_names_its_key() {
+        let e = serde_yaml::from_str::<FlowLaw>(r#"{law: swift, k_mpa: "9 ksq", eps0: 0, n: 0.2}"#)
+            .unwrap_err()
+            .to_string();
+        assert!(e.starts_with("`k_mpa` = \"9 ksq\" is not allowed: `ksq` is not a unit of a stress; allowed a number of MPa"), "{e}");
+        let e = serde_yaml::from_str::<FlowLaw>(
+            "{law: points, points: [[0, 1], [1, [2]]], beyond: flat}",
+        )
+        .unwrap_err()
+        .to_string();
+        assert!(
+            e.starts_with(
+                "`points[1] stress_mpa` = a list is not allowed: must be a number of MPa"
+            ),
+            "{e}"
+        );
+        // Validation still applies to a value read with a unit.
+        let e = serde_yaml::from_str::<FlowLaw>(r#"{law: hollomon, k_mpa: "-5 ksi", n: 0.2}"#)
+            .unwrap_err()
+            .to_string();
+        assert!(e.contains("`k_mpa` = -34.47"), "{e}");
     }
 
     #[test]

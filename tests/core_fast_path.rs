@@ -2,8 +2,11 @@
 //! the power series of Hollomon, Ludwik and Swift; src/pass/sachs.rs) against
 //! adaptive double-exponential quadrature of the same integral (Dieter,
 //! *Mechanical Metallurgy*, ch. 19: sigma_d = sigma_b e^(-B eps) + (1+B)
-//! int_0^eps sigma_f(eps_a+t) e^(-B(eps-t)) dt), on every law, within 1e-9
-//! relative; and the optimum-angle search against a fine scan.
+//! int_0^eps sigma_f(eps_a+t) e^(-B(eps-t)) dt), on every law, within 1e-12
+//! relative (achieved: 1.5e-13 for the Sachs stress, against a quadrature
+//! asked for 1e-11 of sigma_f eps, which the double-exponential rule beats
+//! by far once converged; 2.3e-14 for the mean flow stress, quadrature at
+//! 1e-13); and the optimum-angle search against a fine scan.
 
 use coldpass::pass::PreparedPass;
 use coldpass::{optimum_semi_angle, Beyond, Die, DrawPass, FlowLaw, Method, Settings};
@@ -34,7 +37,7 @@ fn every_law() -> Vec<FlowLaw> {
 }
 
 #[test]
-fn fast_sachs_agrees_with_adaptive_quadrature_within_1e_9_on_every_law() {
+fn fast_sachs_agrees_with_adaptive_quadrature_within_1e_12_on_every_law() {
     let settings = Settings::default();
     let mut worst = 0.0f64;
     let mut cases = 0;
@@ -57,7 +60,7 @@ fn fast_sachs_agrees_with_adaptive_quadrature_within_1e_9_on_every_law() {
                             let slow = p.sachs_cone_by_quadrature_mpa(&pass.die).unwrap();
                             let rel = (fast / slow - 1.0).abs();
                             assert!(
-                                rel < 1e-9,
+                                rel < 1e-12,
                                 "{} from {strain_before}, {d0}->{d1}, {deg} deg, mu {mu}: {fast} vs {slow}",
                                 law.name()
                             );
@@ -155,7 +158,7 @@ fn optimum_angle_matches_a_fine_scan_to_1e_3_degree() {
 }
 
 #[test]
-fn prepared_flow_stresses_agree_with_quadrature_within_1e_9_on_every_law() {
+fn prepared_flow_stresses_agree_with_quadrature_within_1e_12_on_every_law() {
     // The prepared pass takes its mean flow stress from the law's closed
     // form (for Voce with e^(-eps_a/ec) shared with the entry stress and the
     // Sachs form); the reference is the mean by adaptive double-exponential
@@ -178,7 +181,7 @@ fn prepared_flow_stresses_agree_with_quadrature_within_1e_9_on_every_law() {
                 let slow = law.integral_by_quadrature(e1, e2, 1e-13).unwrap().value / (e2 - e1);
                 let rel = (m.mean_flow_stress_mpa / slow - 1.0).abs();
                 assert!(
-                    rel < 1e-9,
+                    rel < 1e-12,
                     "{} from {strain_before}, {d0}->{d1}: mean {} vs {slow}",
                     law.name(),
                     m.mean_flow_stress_mpa

@@ -271,8 +271,9 @@ proptest! {
                 continue;
             }
             let (a, b) = (stress(&low, m), stress(&high, m));
-            // 1e-9: the Sachs integral by quadrature is good to about 1e-11.
-            prop_assert!(b >= a * (1.0 - 1e-9), "{m} at mu {mu1} -> {mu2}: {a} -> {b}");
+            // 1e-12: the fast Sachs form is good to about 1e-13 against
+            // quadrature (tests/core_fast_path.rs).
+            prop_assert!(b >= a * (1.0 - 1e-12), "{m} at mu {mu1} -> {mu2}: {a} -> {b}");
         }
         prop_assert!(stress(&high, Method::Siebel) > stress(&low, Method::Siebel));
         prop_assert!(stress(&high, Method::UpperBound) > stress(&low, Method::UpperBound));
@@ -301,7 +302,7 @@ proptest! {
         for m in METHODS {
             prop_assert!(stress(&high, m) >= stress(&low, m), "{m}");
         }
-        let tol = |s: f64| 1e-9 * s.abs().max(1.0);
+        let tol = |s: f64| 1e-11 * s.abs().max(1.0);
         let (l, h) = (low.draw_stress_mpa, high.draw_stress_mpa);
         // On a land the balance is linear only while the section stays under its
         // flow stress (beyond it the die pressure would be negative: no land friction).
@@ -339,7 +340,7 @@ proptest! {
             let land = r.flow_stress_exit_mpa * 4.0 * mu * pass.die.land_length_mm / pass.exit_diameter_mm;
             let bound = b * (pass.back_tension_mpa * eps + (1.0 + eps * (1.0 + b)) * r.mean_flow_stress_mpa * eps) + land;
             let gap = (s.sachs - s.ideal).abs();
-            prop_assert!(gap <= bound + 1e-9 * s.ideal, "mu {mu}: sachs {} ideal {} bound {bound}", s.sachs, s.ideal);
+            prop_assert!(gap <= bound + 1e-12 * s.ideal, "mu {mu}: sachs {} ideal {} bound {bound}", s.sachs, s.ideal);
         }
     }
 

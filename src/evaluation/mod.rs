@@ -154,13 +154,14 @@ pub struct StepReport {
     pub entry_diameter_mm: f64,
     /// Exit diameter, mm.
     pub exit_diameter_mm: f64,
-    /// Fractional area reduction of the pass.
+    /// Fractional area reduction of the pass, `1 - (D1/D0)^2`.
     pub area_reduction: Option<f64>,
     /// Elongation `A0/A1`.
     pub elongation: Option<f64>,
-    /// Fractional area reduction since the last anneal (or the start).
+    /// Fractional area reduction since the last anneal (or the start),
+    /// `1 - (D1/D_anneal)^2`.
     pub cumulative_reduction: f64,
-    /// Pass true strain.
+    /// Pass true strain, `2 ln(D0/D1)`.
     pub pass_strain: Option<f64>,
     /// Accumulated strain since the last anneal, before the step.
     pub strain_before: f64,
@@ -186,11 +187,12 @@ pub struct StepReport {
     pub draw_stress_mpa: Option<DrawStresses>,
     /// Drawing stress by the governing method, MPa.
     pub governing_draw_stress_mpa: Option<f64>,
-    /// Governing drawing stress over exit flow stress.
+    /// Governing drawing stress over exit flow stress, `sigma_d / sigma_f(eps_b)`
+    /// (the draw limit is 1; docs/physics.md, "Draw limit").
     pub draw_ratio: Option<f64>,
     /// Semi-angle that minimises the governing drawing stress, degrees.
     pub optimum_semi_angle_deg: Option<f64>,
-    /// Drawing force, kN.
+    /// Drawing force `F = sigma_d A1`, kN.
     pub force_kn: Option<f64>,
     /// Exit speed, m/s (with a `line`).
     pub exit_speed_m_s: Option<f64>,
@@ -244,7 +246,7 @@ pub struct Summary {
     pub worst_step: Option<usize>,
     /// Flow stress of the finished wire, MPa (for heavily drawn wire, close to its tensile strength).
     pub final_flow_stress_mpa: f64,
-    /// Mass throughput, kg/h (with a `line`).
+    /// Mass throughput `rho A_finish v_finish`, kg/h (with a `line`).
     pub throughput_kg_h: Option<f64>,
     /// Tonnes per shift at the utilisation (with a `line`).
     pub throughput_t_per_shift: Option<f64>,
@@ -279,9 +281,9 @@ pub struct ScheduleReport {
     pub method: Method,
     /// Where the method came from: `file`, `default` or `command line`.
     pub method_source: String,
-    /// The limits applied.
+    /// Draw ratio above which a pass is flagged `near-draw-limit`.
     pub draw_ratio_warn: f64,
-    /// The limits applied.
+    /// Draw ratio above which a pass is flagged `over-draw-limit`.
     pub draw_ratio_max: f64,
     /// Assumptions and defaults that matter to the figures.
     pub notes: Vec<String>,

@@ -32,22 +32,29 @@
 use super::laws::LineSums;
 use super::FitError;
 
-/// Lower end of the modulus band, fraction of the yield strength.
+/// Lower end of the modulus band, fraction of the yield strength: below
+/// it the grips seat and the load cell's zero shows (ISO 6892-1's modulus
+/// annex suggests a band of this kind, from memory; docs/physics.md).
 pub const BAND_LOW: f64 = 0.10;
-/// Upper end of the modulus band, fraction of the yield strength.
+/// Upper end of the modulus band, fraction of the yield strength: above it
+/// annealed copper and aluminium already bend away (same source).
 pub const BAND_HIGH: f64 = 0.40;
 /// The offset of the proof strength: 0.2 % strain (ISO 6892-1 Rp0.2, ASTM E8 offset method).
 pub const YIELD_OFFSET_STRAIN: f64 = 0.002;
-/// Fewest points in the modulus band.
+/// Fewest points in the modulus band (a choice of this tool: the line's
+/// two parameters leave three degrees of freedom for its standard error).
 pub const MIN_ELASTIC_POINTS: usize = 5;
-/// A fall of this fraction of the peak stress counts as a yield drop.
+/// A fall of this fraction of the peak stress (or 8 noise deviations, if
+/// more) counts as a yield drop (a choice of this tool; docs/physics.md).
 pub const DROP_FRACTION: f64 = 0.01;
-/// Fraction of the record's points a drop must stay down for (5 at least).
+/// Fraction of the record's points a drop must stay down for (5 at least;
+/// a choice of this tool, docs/physics.md "Yield").
 pub const DROP_PERSISTENCE: f64 = 0.002;
 /// A yield drop happens at the end of the elastic line: a peak at a larger
 /// plastic strain is not an upper yield point.
 pub const YIELD_DROP_MAX_PLASTIC_STRAIN: f64 = 0.01;
-/// Width of the plateau band, fraction of the plateau's median stress.
+/// Width of the plateau band, fraction of the plateau's median stress (a
+/// choice of this tool).
 pub const PLATEAU_BAND: f64 = 0.015;
 /// How far (percent of the highest stress) the stress must fall after its
 /// highest value for that to count as the maximum load rather than noise at
@@ -121,16 +128,17 @@ fn line_over(
     Some((a, b, se))
 }
 
-/// The contiguous range of points, before `limit`, whose stress first lies
-/// in `[lo, hi]` (a preliminary choice by stress).
-fn range_by_stress(stress: &[f64], lo: f64, hi: f64, limit: usize) -> std::ops::Range<usize> {
-    let start = stress[..limit]
+/// The contiguous range of points, before `limit`, whose values first lie
+/// in `[lo, hi]`: from the first at or above `lo` to the first after it above
+/// `hi` (a preliminary choice by stress, or by strain).
+fn first_run_within(values: &[f64], lo: f64, hi: f64, limit: usize) -> std::ops::Range<usize> {
+    let start = values[..limit]
         .iter()
-        .position(|&s| s >= lo)
+        .position(|&v| v >= lo)
         .unwrap_or(limit);
-    let end = stress[start..limit]
+    let end = values[start..limit]
         .iter()
-        .position(|&s| s > hi)
+        .position(|&v| v > hi)
         .map_or(limit, |k| start + k);
     start..end
 }
@@ -145,16 +153,7 @@ fn range_by_strain(
     hi: f64,
     limit: usize,
 ) -> std::ops::Range<usize> {
-    let (e_lo, e_hi) = ((lo - a) / b, (hi - a) / b);
-    let start = strain[..limit]
-        .iter()
-        .position(|&e| e >= e_lo)
-        .unwrap_or(limit);
-    let end = strain[start..limit]
-        .iter()
-        .position(|&e| e > e_hi)
-        .map_or(limit, |k| start + k);
-    start..end
+    first_run_within(strain, (lo - a) / b, (hi - a) / b, limit)
 }
 
 /// The modulus over the band `[BAND_LOW, BAND_HIGH] x reference`, points
@@ -169,7 +168,7 @@ fn modulus_in_band(
     let (lo, hi) = (BAND_LOW * reference_mpa, BAND_HIGH * reference_mpa);
     let range = match line {
         Some((a, b)) => range_by_strain(strain, a, b, lo, hi, limit),
-        None => range_by_stress(stress, lo, hi, limit),
+        None => first_run_within(stress, lo, hi, limit),
     };
     if range.len() < MIN_ELASTIC_POINTS {
         return Err(FitError::TooFewElasticPoints {

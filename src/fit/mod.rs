@@ -326,13 +326,7 @@ impl DrawnPoint {
         drawn_mm: f64,
         tensile_strength_mpa: f64,
     ) -> Result<DrawnPoint, ParamError> {
-        let d0 = param::within(
-            "start_diameter_mm",
-            start_mm,
-            0.0,
-            1000.0,
-            param::Ends::OpenClosed,
-        )?;
+        let d0 = record::diameter("start_diameter_mm", start_mm)?;
         let d = param::within("drawn_diameter_mm", drawn_mm, 0.0, d0, param::Ends::Open)?;
         DrawnPoint::new(2.0 * (d0 / d).ln(), tensile_strength_mpa)
     }
@@ -464,6 +458,42 @@ pub struct FitReport {
 }
 
 impl FitReport {
+    /// A report of the points only, before any law is fitted: true plastic
+    /// strain and true stress (MPa), nothing measured from an engineering
+    /// curve, no fits, no warnings.
+    fn points_only(
+        data: DataKind,
+        points_read: usize,
+        noise_mpa: f64,
+        plastic_strain: Vec<f64>,
+        true_stress_mpa: Vec<f64>,
+    ) -> FitReport {
+        FitReport {
+            data,
+            points_read,
+            cleaning: Cleaning::default(),
+            noise_mpa,
+            modulus: None,
+            youngs_modulus_gpa: None,
+            toe_strain: None,
+            yielding: None,
+            yield_mpa: None,
+            uts_mpa: None,
+            uniform_strain: None,
+            plastic_strain,
+            true_stress_mpa,
+            total_strain: Vec::new(),
+            total_stress_mpa: Vec::new(),
+            fits: Vec::new(),
+            best: None,
+            drawn: Vec::new(),
+            drawn_fits: Vec::new(),
+            best_with_drawn: None,
+            reach_strain: None,
+            warnings: Vec::new(),
+        }
+    }
+
     /// Lowest fitted plastic strain.
     pub fn strain_from(&self) -> f64 {
         self.plastic_strain
@@ -703,10 +733,7 @@ fn engineering_points(mut strain: Vec<f64>, mut stress: Vec<f64>) -> Result<FitR
         });
     }
     Ok(FitReport {
-        data: DataKind::Engineering,
-        points_read,
         cleaning,
-        noise_mpa: noise,
         youngs_modulus_gpa: Some(e_mpa / 1000.0),
         toe_strain: Some(toe),
         modulus: Some(a.modulus),
@@ -714,17 +741,15 @@ fn engineering_points(mut strain: Vec<f64>, mut stress: Vec<f64>) -> Result<FitR
         yield_mpa: Some(yield_mpa),
         uts_mpa: Some(uts),
         uniform_strain: Some(uniform_strain),
-        plastic_strain,
-        true_stress_mpa: true_stress,
         total_strain: strain,
         total_stress_mpa: stress,
-        fits: Vec::new(),
-        best: None,
-        drawn: Vec::new(),
-        drawn_fits: Vec::new(),
-        best_with_drawn: None,
-        reach_strain: None,
-        warnings: Vec::new(),
+        ..FitReport::points_only(
+            DataKind::Engineering,
+            points_read,
+            noise,
+            plastic_strain,
+            true_stress,
+        )
     })
 }
 
@@ -742,30 +767,13 @@ fn true_points(
         });
     }
     let noise = record::noise_mpa(&y);
-    Ok(FitReport {
-        data: DataKind::True,
+    Ok(FitReport::points_only(
+        DataKind::True,
         points_read,
-        cleaning: Cleaning::default(),
-        noise_mpa: noise,
-        modulus: None,
-        youngs_modulus_gpa: None,
-        toe_strain: None,
-        yielding: None,
-        yield_mpa: None,
-        uts_mpa: None,
-        uniform_strain: None,
-        plastic_strain: x,
-        true_stress_mpa: y,
-        total_strain: Vec::new(),
-        total_stress_mpa: Vec::new(),
-        fits: Vec::new(),
-        best: None,
-        drawn: Vec::new(),
-        drawn_fits: Vec::new(),
-        best_with_drawn: None,
-        reach_strain: None,
-        warnings: Vec::new(),
-    })
+        noise,
+        x,
+        y,
+    ))
 }
 
 /// Residual checks of one fit on the record points: `(rms MPa, lag-1

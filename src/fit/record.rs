@@ -46,15 +46,17 @@ pub const MAX_NEGATIVE_STRAIN: f64 = 0.001;
 /// Highest engineering strain a record may hold (2000 %).
 pub const MAX_STRAIN: f64 = 20.0;
 
+/// Largest specimen or wire diameter a record may name, mm.
+pub(crate) const MAX_DIAMETER_MM: f64 = 1000.0;
+
+/// `value` as a diameter named `name`: in (0, [`MAX_DIAMETER_MM`]] mm.
+pub(crate) fn diameter(name: &str, value: f64) -> Result<f64, ParamError> {
+    param::within(name, value, 0.0, MAX_DIAMETER_MM, param::Ends::OpenClosed)
+}
+
 /// Cross-section of a round specimen, `A = pi d^2 / 4` (mm^2).
 pub fn round_area_mm2(diameter_mm: f64) -> Result<f64, ParamError> {
-    let d = param::within(
-        "diameter_mm",
-        diameter_mm,
-        0.0,
-        1000.0,
-        param::Ends::OpenClosed,
-    )?;
+    let d = diameter("diameter_mm", diameter_mm)?;
     Ok(std::f64::consts::PI * d * d / 4.0)
 }
 

@@ -7,7 +7,8 @@
 //! most [`STRIDE_POINTS`] points), then finishes on every point from there,
 //! so that a 100,000-point record costs a handful of passes, not hundreds.
 
-/// Most Levenberg-Marquardt iterations before a fit is reported as not converged.
+/// Most Levenberg-Marquardt iterations before a fit is reported as not
+/// converged (a choice of this tool).
 pub const MAX_ITERATIONS: usize = 200;
 
 /// Converged when the Gauss-Newton step predicts an SSR drop below this
@@ -17,7 +18,8 @@ pub const MAX_ITERATIONS: usize = 200;
 /// of SciPy's curve_fit (tests/fit_scipy.rs).
 pub const PREDICTED_DROP: f64 = 1e-12;
 
-/// Points of the stride a fit iterates on before it finishes on the whole record.
+/// Points of the stride a fit iterates on before it finishes on the whole
+/// record (a choice of this tool, issue 14; see the module documentation).
 pub const STRIDE_POINTS: usize = 2000;
 
 /// The points of one fit: the record's points (weight 1) and extra weighted
@@ -155,8 +157,8 @@ fn normal<const N: usize, M: Model<N>>(
     ok.then_some(Normal { a, g, ssr })
 }
 
-/// Solves `a z = b` by Gaussian elimination with partial pivoting; `None`
-/// when singular.
+/// Solves `a z = b` by Gaussian elimination with partial pivoting (Golub &
+/// Van Loan, *Matrix Computations*, ch. 3; from memory); `None` when singular.
 #[allow(clippy::needless_range_loop)] // matrix algebra reads best with indices
 pub fn solve<const N: usize>(mut a: [[f64; N]; N], mut b: [f64; N]) -> Option<[f64; N]> {
     for c in 0..N {
@@ -182,7 +184,8 @@ pub fn solve<const N: usize>(mut a: [[f64; N]; N], mut b: [f64; N]) -> Option<[f
     z.iter().all(|v| v.is_finite()).then_some(z)
 }
 
-/// The inverse of a symmetric positive matrix, `None` when singular.
+/// The inverse of a symmetric positive matrix, column by column: column `c`
+/// solves `a x = e_c` by [`solve`]; `None` when singular.
 pub fn inverse<const N: usize>(a: [[f64; N]; N]) -> Option<[[f64; N]; N]> {
     let mut inv = [[0.0; N]; N];
     for c in 0..N {
@@ -275,7 +278,8 @@ fn iterate<const N: usize, M: Model<N>>(
     Some((cur, t, false, max_iterations))
 }
 
-/// Fits `model` from `start`: iterates on the stride of `p` to its
+/// Fits `model` from `start` by Levenberg-Marquardt (Marquardt 1963, see
+/// the module documentation): iterates on the stride of `p` to its
 /// tolerance, then finishes on every point of `p`.
 pub fn levenberg_marquardt<const N: usize, M: Model<N>>(
     model: &M,

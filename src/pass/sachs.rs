@@ -26,9 +26,12 @@
 //! with mu 0.5 reaches z = 29 per unit strain); beyond it, or for anything
 //! not finite, the adaptive double-exponential rule of [`crate::quad`] is
 //! used, as it is by [`integral_by_quadrature`], the independent check the
-//! tests compare the fast path with (agreement within 1e-9 relative, on every law).
+//! tests compare the fast path with (agreement within 1e-12 relative, on every law;
+//! tests/core_fast_path.rs).
 
-use crate::flow::{finite_or_overflow, FlowError, FlowLaw, FlowLawSpec};
+use crate::flow::{
+    finite_or_overflow, power_difference, voce_integral, FlowError, FlowLaw, FlowLawSpec,
+};
 use crate::quad;
 
 use super::PassError;
@@ -136,8 +139,7 @@ impl FlowParts {
                 let e = eps_a.max(0.0);
                 let entry_decay = (-e / eps_c).exp();
                 let d = e2 - eps_a;
-                let drop = entry_decay * -(-d / eps_c).exp_m1();
-                let integral = saturation_mpa * d - (saturation_mpa - sigma0_mpa) * eps_c * drop;
+                let integral = voce_integral(saturation_mpa, sigma0_mpa, eps_c, entry_decay, d);
                 let integral = finite_or_overflow("flow-stress integral", integral)?;
                 let mean = finite_or_overflow("mean flow stress", integral / d)?;
                 return Ok(FlowParts {
@@ -159,16 +161,6 @@ impl FlowParts {
             exit_mpa: law.stress_mpa(e2),
             form: SachsForm::new(law, eps_a, eps),
         })
-    }
-}
-
-/// `b^(n+1) - c^(n+1)` without cancellation for thin intervals.
-fn power_difference(c: f64, b: f64, n: f64) -> f64 {
-    let p = n + 1.0;
-    if c > 0.0 {
-        c.powf(p) * (p * ((b - c) / c).ln_1p()).exp_m1()
-    } else {
-        b.powf(p)
     }
 }
 
