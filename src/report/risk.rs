@@ -476,20 +476,20 @@ fn fan(rep: &RiskReport, area: &Area<'_>) -> Result<()> {
         .map(|p| cap(p.draw_ratio_p95).max(p.draw_ratio))
         .fold(rep.draw_ratio_max.max(1.0), f64::max)
         * 1.1;
-    let room = 0.12 * n.max(8.0);
+    // One slot per pass: the level lines are labelled over the last one.
     let mut chart = framed(
         area,
         "Draw ratio per pass: median and 5-95 % band under scatter",
         15,
         WIDE,
-        0.5f64..n + 0.5 + room,
+        0.5f64..n + 0.5,
         0f64..top,
     )?;
     count_mesh(
         &mut chart,
         "step",
         "draw ratio",
-        (n + room).ceil() as usize + 1,
+        rep.passes.len() + 1,
         &|x| step_labels(rep, *x),
     )?;
     let xs = |i: usize| (i + 1) as f64;
@@ -539,9 +539,9 @@ fn fan(rep: &RiskReport, area: &Area<'_>) -> Result<()> {
             lines.push((1.0, DARK_GREY, "break 1".to_string()));
             lines
         },
-        n + 0.5 + room,
-        n + 0.55,
-        top * 0.035,
+        n + 0.5,
+        n + 0.48,
+        top * 0.01,
     )?;
     legend(&mut chart, SeriesLabelPosition::UpperLeft)
 }
@@ -555,20 +555,19 @@ fn bars(rep: &RiskReport, area: &Area<'_>) -> Result<()> {
         .fold(0.0, f64::max)
         .max(0.1)
         * 1.15;
-    let room = 0.12 * n.max(8.0);
     let mut chart = framed(
         area,
         "Break probability per pass (%, bar; whisker: +- 2 standard errors)",
         15,
         WIDE,
-        0.5f64..n + 0.5 + room,
+        0.5f64..n + 0.5,
         0f64..top_pct,
     )?;
     count_mesh(
         &mut chart,
         "step",
         "break probability, %",
-        (n + room).ceil() as usize + 1,
+        rep.passes.len() + 1,
         &|x| step_labels(rep, *x),
     )?;
     chart
