@@ -441,6 +441,43 @@ impl Law {
         }
     }
 
+    /// The same law with every figure in the input's unit (`sd`, `below`,
+    /// `above`) multiplied by `factor` (> 0), for showing it in another
+    /// unit: `factor` = 1/25.4 turns mm into inches. `cv` is relative and
+    /// stays; the shape is unchanged because a change of unit is linear.
+    /// (Unlike [`Law::scaled`], which widens the spread, truncation included.)
+    pub fn in_unit(&self, factor: f64) -> Law {
+        let f = |x: Option<f64>| x.map(|v| v * factor);
+        match *self {
+            Law::Normal { sd, cv } => Law::Normal { sd: f(sd), cv },
+            Law::Lognormal { sd, cv } => Law::Lognormal { sd: f(sd), cv },
+            Law::Uniform { below, above } => Law::Uniform {
+                below: below * factor,
+                above: above * factor,
+            },
+            Law::Truncated {
+                sd,
+                cv,
+                below,
+                above,
+            } => Law::Truncated {
+                sd: f(sd),
+                cv,
+                below: below * factor,
+                above: above * factor,
+            },
+        }
+    }
+
+    /// Whether [`Law::describe`] shows a figure in the input's unit (an
+    /// `sd` or a limit), not only the relative `cv`.
+    pub fn has_figure_in_unit(&self) -> bool {
+        match *self {
+            Law::Normal { sd, .. } | Law::Lognormal { sd, .. } => sd.is_some(),
+            Law::Uniform { .. } | Law::Truncated { .. } => true,
+        }
+    }
+
     /// A short description for the report (`normal, sd 0.01`).
     pub fn describe(&self) -> String {
         let size = |sd: Option<f64>, cv: Option<f64>| match (sd, cv) {
