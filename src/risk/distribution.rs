@@ -518,6 +518,48 @@ mod tests {
     use super::*;
 
     #[test]
+    fn a_law_in_another_unit_samples_the_same_values_in_that_unit() {
+        // A change of unit is x' = x / c: a sample m + sd z becomes
+        // m/c + (sd/c) z, so the law in the new unit drawn at m/c with the
+        // same normal score gives the old value over c (definition of a
+        // linear change of variable). c = 25.4 (mm per inch, exact).
+        let c = 25.4;
+        for law in [
+            Law::Normal {
+                sd: Some(0.05),
+                cv: None,
+            },
+            Law::Uniform {
+                below: 0.01,
+                above: 0.03,
+            },
+            Law::Truncated {
+                sd: Some(0.006),
+                cv: None,
+                below: 0.0,
+                above: 0.02,
+            },
+            Law::Truncated {
+                sd: None,
+                cv: Some(0.002),
+                below: 0.004,
+                above: 0.02,
+            },
+        ] {
+            let inch = law.in_unit(1.0 / c);
+            for z in [-2.5, -1.0, 0.0, 0.3, 1.7, 3.0] {
+                let mm = law.value(4.0, z);
+                let got = inch.value(4.0 / c, z);
+                assert!(
+                    (got - mm / c).abs() < 1e-12,
+                    "{law:?} z {z}: {got} vs {}",
+                    mm / c
+                );
+            }
+        }
+    }
+
+    #[test]
     fn quantile_inverts_the_cdf() {
         // Phi^-1(Phi(z)) = z: the definition of an inverse. (Far in the upper
         // tail p = Phi(z) itself rounds: 1 - p keeps only about 16 - |log10(1 - p)|
