@@ -242,8 +242,8 @@ fn the_pages_chart_follows_us_units() {
         .as_array()
         .unwrap()
         .iter()
-        .filter_map(|p| p["flow_stress_exit_mpa"].as_f64())
-        .last()
+        .rev()
+        .find_map(|p| p["flow_stress_exit_mpa"].as_f64())
         .unwrap();
     let (on_si, on_us) = (last_exit_on_axis(&si), last_exit_on_axis(&us));
     assert!(
