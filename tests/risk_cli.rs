@@ -160,9 +160,15 @@ fn a_break_probability_over_the_target_exits_3() {
     let dir = tempfile::tempdir().unwrap();
     let text = std::fs::read_to_string(root(DEMO)).unwrap();
     let file = dir.path().join("s.yaml");
+    // The copy lives elsewhere: its machine is named by its full path.
+    let machine = root("machines/harrow-lane-dry-7.yaml");
     std::fs::write(
         &file,
-        text.replace("  friction: 0.09\n", "  friction: 0.12\n"),
+        text.replace("  friction: 0.09\n", "  friction: 0.12\n")
+            .replace(
+                "machine: ../machines/harrow-lane-dry-7.yaml",
+                &format!("machine: '{}'", machine.display()),
+            ),
     )
     .unwrap();
     let o = coldpass(&[

@@ -16,6 +16,7 @@ use coldpass::Method;
 use super::check::method_parser;
 use super::{EXIT_OK, EXIT_OVER};
 use crate::commands::options::ReportArgs;
+use crate::report::units::Units;
 use crate::{output, report};
 
 /// Exit status when stopped by Ctrl-C (128 + SIGINT, the shell's convention).
@@ -59,6 +60,10 @@ pub struct RiskArgs {
     /// one row a sample) to this CSV file; without it no sample is stored.
     #[arg(long, value_name = "FILE.csv")]
     pub keep_samples: Option<PathBuf>,
+    /// Units of the table and the HTML page: si (mm, MPa, m/s, kW) or us
+    /// (in, ksi, ft/min, hp). JSON, YAML and CSV stay SI, as their keys say.
+    #[arg(long, value_enum, default_value_t = Units::Si)]
+    pub units: Units,
     #[command(flatten)]
     pub report: ReportArgs,
 }
@@ -145,7 +150,7 @@ pub fn run(args: &RiskArgs) -> Result<u8> {
         r => r.with_context(|| format!("assessing the break risk of '{name}'"))?,
     };
     // Render everything before writing anything, so a failure leaves no partial output.
-    let body = report::risk::render(&rep, args.report.format)?;
+    let body = report::risk::render(&rep, args.report.format, args.units)?;
     let chart = match &args.report.plot {
         Some(_) => Some(report::risk::svg(&rep)?),
         None => None,

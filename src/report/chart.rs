@@ -1,6 +1,6 @@
 //! The pieces every chart shares (plotters, SVG backend): the colours, the
 //! error every drawing call maps to, the page title, the axis of whole step
-//! or block numbers, the dashed level lines labelled past the last bar, the
+//! or block numbers, the dashed level lines labelled over the last bar, the
 //! legend box and a bar. `svg.rs` (the schedule) and `risk.rs` (the fan
 //! chart) draw with them, so the two charts look alike.
 
@@ -8,6 +8,7 @@ use anyhow::{anyhow, Result};
 use plotters::coord::types::RangedCoordf64;
 use plotters::coord::Shift;
 use plotters::prelude::*;
+use plotters::style::text_anchor::{HPos, Pos, VPos};
 
 /// Within the limits (bars), the median and band (risk).
 pub const OK: RGBColor = RGBColor(31, 119, 180);
@@ -73,7 +74,10 @@ pub fn count_mesh(
 }
 
 /// Dashed horizontal lines at each `(level, colour, label)` from x = 0.5 to
-/// `x_end`, each labelled at `(label_x, level + label_dy)`.
+/// `x_end`, each labelled with its right end at `(label_x, level + label_dy)`
+/// (so a label sits inside the plot, over the last slot, and needs no empty
+/// slot of its own past the last step). Draw them after the bars so that a
+/// tall bar cannot hide a label.
 pub fn level_lines(
     chart: &mut Chart<'_, '_>,
     levels: Vec<(f64, RGBColor, String)>,
@@ -94,7 +98,10 @@ pub fn level_lines(
             .draw_series(std::iter::once(Text::new(
                 label,
                 (label_x, level + label_dy),
-                ("sans-serif", 13).into_font().color(&colour),
+                ("sans-serif", 13)
+                    .into_font()
+                    .color(&colour)
+                    .pos(Pos::new(HPos::Right, VPos::Bottom)),
             )))
             .map_err(err)?;
     }

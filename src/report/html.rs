@@ -444,7 +444,7 @@ pub fn schedule_sections(rep: &ScheduleReport, file: &ScheduleFile, units: Units
         false,
     );
     methods.page_break_before = false;
-    let svg = String::from_utf8(super::svg::schedule(rep, file)?)?;
+    let svg = String::from_utf8(super::svg::schedule_in(rep, file, units)?)?;
     Ok(Page {
         title: if rep.title.is_empty() {
             "Schedule".to_string()

@@ -1,19 +1,24 @@
 //! The break-risk report: table, JSON, YAML, CSV (the same names in each),
 //! and an SVG with a fan chart of the draw ratio per pass (median and the
 //! 5-95 % band against the warn and max lines) above a bar of each pass's
-//! break probability.
+//! break probability. The table and the page show lengths, stresses,
+//! speeds and powers in `--units` (the unit in every header, or beside the
+//! figure where a column mixes inputs); JSON, YAML and CSV stay SI, as their
+//! keys say.
 
 use anyhow::{anyhow, Result};
-use coldpass::risk::{PassRisk, RiskReport};
+use coldpass::risk::{InputScatter, Law, PassRisk, RiskReport};
 use plotters::prelude::*;
 
 use super::fixed;
+use super::units::{Quantity, Units};
 use crate::report::Format;
 
-/// Renders a risk report in `format` (JSON and YAML straight from serde).
-pub fn render(rep: &RiskReport, format: Format) -> Result<Vec<u8>> {
+/// Renders a risk report in `format` (JSON and YAML straight from serde, in
+/// SI; the table and the page in `units`).
+pub fn render(rep: &RiskReport, format: Format, units: Units) -> Result<Vec<u8>> {
     Ok(match format {
-        Format::Table => table(rep).into_bytes(),
+        Format::Table => table(rep, units).into_bytes(),
         Format::Json => {
             let mut s = serde_json::to_string_pretty(rep)?;
             s.push('\n');
@@ -21,7 +26,7 @@ pub fn render(rep: &RiskReport, format: Format) -> Result<Vec<u8>> {
         }
         Format::Yaml => serde_yaml::to_string(rep)?.into_bytes(),
         Format::Csv => csv(rep)?,
-        Format::Html => page(rep)?.into_bytes(),
+        Format::Html => page(rep, units)?.into_bytes(),
     })
 }
 
@@ -64,16 +69,132 @@ fn driver(p: &PassRisk) -> String {
     }
 }
 
-/// The human-readable report.
-pub fn table(rep: &RiskReport) -> String {
+/// What an input that scatters measures, by the unit its file key names
+/// (`die_diameter_mm`, `back_tension_mpa`, `flow.k_mpa`): its `sd` and
+/// limits are in that unit.
+fn input_quantity(input: &str) -> Quantity {
+    if input.ends_with("_mm") {
+        Quantity::Length
+    } else if input.ends_with("_mpa") {
+        Quantity::Stress
+    } else {
+        Quantity::Plain
+    }
+}
+
+/// Rounds `x` to `digits` significant digits, so a converted figure reads
+/// as short as the one written in the file.
+fn significant(x: f64, digits: i32) -> f64 {
+    if x == 0.0 || !x.is_finite() {
+        return x;
+    }
+    let scale = 10f64.powi(digits - 1 - x.abs().log10().floor() as i32);
+    (x * scale).round() / scale
+}
+
+/// An input's distribution in words, in `units`: in SI as the file gives
+/// it; in US its `sd` and limits converted (4 significant digits) with the
+/// unit after them, `normal, sd 0.001969 in`. A relative `cv` and a pure
+/// number (friction, degrees) are never converted.
+fn distribution_in(i: &InputScatter, units: Units) -> String {
+    let q = input_quantity(&i.input);
+    if units == Units::Si || q == Quantity::Plain || !i.law.has_figure_in_unit() {
+        return i.distribution.clone();
+    }
+    let factor = q.convert(1.0, units);
+    let round = |x: f64| significant(x, 4);
+    let law = match i.law.in_unit(factor) {
+        Law::Normal { sd, cv } => Law::Normal {
+            sd: sd.map(round),
+            cv,
+        },
+        Law::Lognormal { sd, cv } => Law::Lognormal {
+            sd: sd.map(round),
+            cv,
+        },
+        Law::Uniform { below, above } => Law::Uniform {
+            below: round(below),
+            above: round(above),
+        },
+        Law::Truncated {
+            sd,
+            cv,
+            below,
+            above,
+        } => Law::Truncated {
+            sd: sd.map(round),
+            cv,
+            below: round(below),
+            above: round(above),
+        },
+    };
+    format!("{} {}", law.describe(), q.label(units))
+}
+
+/// A note in `units`: the figures with a unit it quotes converted (the
+/// machine's running speed; the line's `block_power_kw`, which keeps the
+/// kW its key names with the converted figure beside it); in SI as it is.
+fn note_in(rep: &RiskReport, note: &str, units: Units) -> String {
+    if units == Units::Si {
+        return note.to_string();
+    }
+    let mut out = note.to_string();
+    if let Some(v) = rep.quoted.running_speed_m_s {
+        out = out.replace(
+            &format!("{v:.3} m/s"),
+            &format!(
+                "{:.1} {}",
+                Quantity::Speed.convert(v, units),
+                Quantity::Speed.label(units)
+            ),
+        );
+    }
+    if let Some(kw) = rep.quoted.block_power_kw {
+        out = out.replace(
+            &format!("{kw} kW"),
+            &format!(
+                "{kw} kW ({:.2} {})",
+                Quantity::Power.convert(kw, units),
+                Quantity::Power.label(units)
+            ),
+        );
+    }
+    out
+}
+
+/// The rows of the inputs that scatter, in `units`.
+fn scatter_rows(rep: &RiskReport, units: Units) -> Vec<Vec<String>> {
+    rep.scatter
+        .iter()
+        .map(|i| {
+            vec![
+                i.input.clone(),
+                distribution_in(i, units),
+                fixed(i.between_dies, 2),
+                i.source.clone(),
+            ]
+        })
+        .collect()
+}
+
+/// The human-readable report, fitted to the terminal's width: every line
+/// of text wrapped to it, every table cut into panels that fit.
+pub fn table(rep: &RiskReport, units: Units) -> String {
     let width = super::table::terminal_width();
+    table_at(rep, units, width)
+}
+
+/// [`table`] at `width` columns.
+pub fn table_at(rep: &RiskReport, units: Units, width: usize) -> String {
     let wrap = |text: &str, indent: &str| super::table::wrap(text, width, indent);
     let mut out = String::new();
     if !rep.title.is_empty() {
-        out.push_str(&format!("{}\n", rep.title));
+        out.push_str(&wrap(&rep.title, ""));
+        out.push('\n');
     }
     if !rep.material.is_empty() {
-        out.push_str(&format!("Material: {}\n", rep.material));
+        out.push_str(&wrap(&format!("Material: {}", rep.material), "  "));
+        out.push('\n');
     }
     let s = &rep.summary;
     out.push_str(&wrap(&format!(
@@ -88,18 +209,7 @@ pub fn table(rep: &RiskReport) -> String {
     ), ""));
     out.push_str("\n\n");
     if !rep.scatter.is_empty() {
-        let rows = rep
-            .scatter
-            .iter()
-            .map(|i| {
-                vec![
-                    i.input.clone(),
-                    i.distribution.clone(),
-                    fixed(i.between_dies, 2),
-                    i.source.clone(),
-                ]
-            })
-            .collect();
+        let rows = scatter_rows(rep, units);
         out.push_str("Inputs that scatter\n");
         out.push_str(&build(
             &["input", "distribution", "between dies", "from"],
@@ -109,14 +219,18 @@ pub fn table(rep: &RiskReport) -> String {
         ));
         out.push_str("\n\n");
     }
-    let (header, rows) = pass_rows(rep);
+    let (header, rows) = pass_rows(rep, units);
     let header: Vec<&str> = header.iter().map(String::as_str).collect();
     // The standard error under its figure keeps a probability column narrow.
     let rows = rows
         .into_iter()
         .map(|r| r.into_iter().map(|c| c.replace(" +- ", "\n+- ")).collect())
         .collect();
-    out.push_str("Passes (probabilities in % +- one standard error)\n");
+    out.push_str(&wrap(
+        "Passes (probabilities in % +- one standard error)",
+        "",
+    ));
+    out.push('\n');
     out.push_str(&build(&header, rows, width, true));
     out.push_str("\n\nSummary\n");
     let lines = summary_lines(rep);
@@ -133,7 +247,7 @@ pub fn table(rep: &RiskReport) -> String {
     }
     out.push_str("\nNotes\n");
     for n in &rep.notes {
-        out.push_str(&wrap(&format!("  - {n}"), "    "));
+        out.push_str(&wrap(&format!("  - {}", note_in(rep, n, units)), "    "));
         out.push('\n');
     }
     out.push('\n');
@@ -145,14 +259,15 @@ pub fn table(rep: &RiskReport) -> String {
 }
 
 /// The per-pass table: header and rows, shared by the table and the page.
-fn pass_rows(rep: &RiskReport) -> (Vec<String>, Vec<Vec<String>>) {
+fn pass_rows(rep: &RiskReport, units: Units) -> (Vec<String>, Vec<Vec<String>>) {
+    let exit = format!("exit {}", Quantity::Length.label(units));
     let power = rep
         .passes
         .iter()
         .any(|p| p.over_block_power_probability.is_some());
     let mut header = vec![
         "step",
-        "exit mm",
+        exit.as_str(),
         "draw ratio",
         "p5",
         "p50",
@@ -172,7 +287,10 @@ fn pass_rows(rep: &RiskReport) -> (Vec<String>, Vec<Vec<String>>) {
         .map(|p| {
             let mut r = vec![
                 p.step.to_string(),
-                fixed(Some(p.exit_diameter_mm), 3),
+                fixed(
+                    Some(Quantity::Length.convert(p.exit_diameter_mm, units)),
+                    Quantity::Length.decimals(3, units),
+                ),
                 fixed(Some(p.draw_ratio), 3),
                 ratio(p.draw_ratio_p5),
                 ratio(p.draw_ratio_p50),
@@ -243,10 +361,10 @@ fn summary_lines(rep: &RiskReport) -> Vec<String> {
 /// scatter, the per-pass table with the passes whose break probability is
 /// over the target marked in words, the charts inline, notes, the scope and
 /// the caution.
-pub fn page(rep: &RiskReport) -> Result<String> {
+pub fn page(rep: &RiskReport, units: Units) -> Result<String> {
     use super::html::{Chart, Page, Row, Status, Table};
     let target = rep.summary.target_probability;
-    let (header, rows) = pass_rows(rep);
+    let (header, rows) = pass_rows(rep, units);
     let rows = rows
         .into_iter()
         .zip(&rep.passes)
@@ -266,16 +384,10 @@ pub fn page(rep: &RiskReport) -> Result<String> {
             header: ["input", "distribution", "between dies", "from"]
                 .map(String::from)
                 .to_vec(),
-            rows: rep
-                .scatter
-                .iter()
-                .map(|i| Row {
-                    cells: vec![
-                        i.input.clone(),
-                        i.distribution.clone(),
-                        fixed(i.between_dies, 2),
-                        i.source.clone(),
-                    ],
+            rows: scatter_rows(rep, units)
+                .into_iter()
+                .map(|cells| Row {
+                    cells,
                     status: Status::None,
                 })
                 .collect(),
@@ -298,7 +410,7 @@ pub fn page(rep: &RiskReport) -> Result<String> {
         .iter()
         .map(|w| format!("Warning: {w}"))
         .collect();
-    notes.extend(rep.notes.iter().cloned());
+    notes.extend(rep.notes.iter().map(|n| note_in(rep, n, units)));
     notes.push(rep.scope.clone());
     let page = Page {
         title: if rep.title.is_empty() {
@@ -476,20 +588,20 @@ fn fan(rep: &RiskReport, area: &Area<'_>) -> Result<()> {
         .map(|p| cap(p.draw_ratio_p95).max(p.draw_ratio))
         .fold(rep.draw_ratio_max.max(1.0), f64::max)
         * 1.1;
-    let room = 0.12 * n.max(8.0);
+    // One slot per pass: the level lines are labelled over the last one.
     let mut chart = framed(
         area,
         "Draw ratio per pass: median and 5-95 % band under scatter",
         15,
         WIDE,
-        0.5f64..n + 0.5 + room,
+        0.5f64..n + 0.5,
         0f64..top,
     )?;
     count_mesh(
         &mut chart,
         "step",
         "draw ratio",
-        (n + room).ceil() as usize + 1,
+        rep.passes.len() + 1,
         &|x| step_labels(rep, *x),
     )?;
     let xs = |i: usize| (i + 1) as f64;
@@ -539,9 +651,9 @@ fn fan(rep: &RiskReport, area: &Area<'_>) -> Result<()> {
             lines.push((1.0, DARK_GREY, "break 1".to_string()));
             lines
         },
-        n + 0.5 + room,
-        n + 0.55,
-        top * 0.035,
+        n + 0.5,
+        n + 0.48,
+        top * 0.01,
     )?;
     legend(&mut chart, SeriesLabelPosition::UpperLeft)
 }
@@ -555,20 +667,19 @@ fn bars(rep: &RiskReport, area: &Area<'_>) -> Result<()> {
         .fold(0.0, f64::max)
         .max(0.1)
         * 1.15;
-    let room = 0.12 * n.max(8.0);
     let mut chart = framed(
         area,
         "Break probability per pass (%, bar; whisker: +- 2 standard errors)",
         15,
         WIDE,
-        0.5f64..n + 0.5 + room,
+        0.5f64..n + 0.5,
         0f64..top_pct,
     )?;
     count_mesh(
         &mut chart,
         "step",
         "break probability, %",
-        (n + room).ceil() as usize + 1,
+        rep.passes.len() + 1,
         &|x| step_labels(rep, *x),
     )?;
     chart

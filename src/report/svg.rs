@@ -2,7 +2,9 @@
 //! the warn and max lines, and flow stress against the total strain drawn,
 //! with each pass's exit and each anneal marked; on a machine, the motor
 //! load per block against 100 % and the wire temperature in and out of each
-//! die against the limit. The caution runs along the foot.
+//! die against the limit. The caution runs along the foot. Stress, speed
+//! and temperature are drawn in the report's units (`--units`), each axis
+//! and title naming its unit.
 
 use anyhow::Result;
 use coldpass::evaluation::{ScheduleReport, StepKind};
@@ -14,9 +16,18 @@ use super::chart::{
     anneal_line, bar, count_mesh, err, framed, legend, level_lines, limit_lines, page_title,
     whole_number, Area, Frame, GREY, HALF, OK, OVER, WARN, WIDE,
 };
+use super::units::{Quantity, Units};
 
-/// Draws the chart of a checked schedule; `file` gives the laws for the curves.
+/// Draws the chart of a checked schedule in SI; `file` gives the laws for the curves.
 pub fn schedule(rep: &ScheduleReport, file: &ScheduleFile) -> Result<Vec<u8>> {
+    schedule_in(rep, file, Units::Si)
+}
+
+/// Draws the chart of a checked schedule with its stresses, speeds and
+/// temperatures in `units` (MPa or ksi, m/s or ft/min, C or F; the factors
+/// of [`Quantity::convert`], NIST SP 811); draw ratios and loads in % are
+/// pure numbers and stay as they are.
+pub fn schedule_in(rep: &ScheduleReport, file: &ScheduleFile, units: Units) -> Result<Vec<u8>> {
     let mut buf = String::new();
     {
         let height = if rep.machine.is_some() { 1120 } else { 780 };
@@ -35,12 +46,12 @@ pub fn schedule(rep: &ScheduleReport, file: &ScheduleFile) -> Result<Vec<u8>> {
         match &rep.machine {
             Some(m) => {
                 let (flow, machine) = lower.split_vertically(386);
-                draw_flow(rep, file, &flow)?;
+                draw_flow(rep, file, &flow, units)?;
                 let (load, heat) = machine.split_horizontally(480);
-                draw_load(m, &load)?;
-                draw_heat(m, &heat)?;
+                draw_load(m, &load, units)?;
+                draw_heat(m, &heat, units)?;
             }
-            None => draw_flow(rep, file, &lower)?,
+            None => draw_flow(rep, file, &lower, units)?,
         }
         // The caution in two lines (it is wider than the chart in one).
         let (first, rest) = match rep.caution.split_once(". ") {
@@ -68,37 +79,28 @@ fn draw_ratios(rep: &ScheduleReport, area: &Area<'_>) -> Result<()> {
         .filter_map(|r| r.draw_ratio)
         .fold(rep.draw_ratio_max, f64::max)
         * 1.4;
-    // Room right of the last bar for the labels of the warn and max lines.
-    let label_room = 0.12 * n.max(8.0);
+    // One slot per pass and no more: the warn and max lines are labelled
+    // over the last slot, so no empty, unlabelled slot follows the last step.
     let mut chart = framed(
         area,
         "Draw ratio per pass (drawing stress / exit flow stress)",
         16,
         WIDE,
-        0.5f64..n + 0.5 + label_room,
+        0.5f64..n + 0.5,
         0f64..top,
     )?;
-    // Only the step numbers: no tick in the label room, none between steps.
+    // Only the step numbers: no tick between steps.
     count_mesh(
         &mut chart,
         "step",
         "draw ratio",
-        (n + label_room).ceil() as usize + 1,
+        rep.passes.len() + 1,
         &|x| whole_number(*x, n),
     )?;
     for r in rep.passes.iter().filter(|r| r.kind == StepKind::Anneal) {
         let x = r.step as f64;
         anneal_line(&mut chart, x, top, (x + 0.08, top * 0.95))?;
     }
-    // The warn and max lines are labelled past the last bar, so the legend only
-    // has to explain the bar colours.
-    level_lines(
-        &mut chart,
-        limit_lines(rep.draw_ratio_warn, rep.draw_ratio_max),
-        n + 0.5 + label_room,
-        n + 0.55,
-        top * 0.045,
-    )?;
     let status = |d: f64| {
         if d > rep.draw_ratio_max {
             OVER
@@ -120,6 +122,15 @@ fn draw_ratios(rep: &ScheduleReport, area: &Area<'_>) -> Result<()> {
                 .map(|&(x, y, c)| bar(x, y, c.mix(0.85).filled())),
         )
         .map_err(err)?;
+    // The warn and max lines are labelled at the right end, over the bars, so
+    // the legend only has to explain the bar colours.
+    level_lines(
+        &mut chart,
+        limit_lines(rep.draw_ratio_warn, rep.draw_ratio_max),
+        n + 0.5,
+        n + 0.48,
+        top * 0.01,
+    )?;
     // Legend entries for the three bar colours (empty series carry the labels).
     for (colour, label) in [
         (OK, "within limits"),
@@ -135,8 +146,14 @@ fn draw_ratios(rep: &ScheduleReport, area: &Area<'_>) -> Result<()> {
     legend(&mut chart, SeriesLabelPosition::UpperLeft)
 }
 
-fn draw_flow(rep: &ScheduleReport, file: &ScheduleFile, area: &Area<'_>) -> Result<()> {
-    // x: total strain drawn since the start (never reset); y: flow stress.
+fn draw_flow(
+    rep: &ScheduleReport,
+    file: &ScheduleFile,
+    area: &Area<'_>,
+    units: Units,
+) -> Result<()> {
+    // x: total strain drawn since the start (never reset); y: flow stress in `units`.
+    let stress = |mpa: f64| Quantity::Stress.convert(mpa, units);
     let mut segments: Vec<Vec<(f64, f64)>> = Vec::new();
     let mut exits: Vec<(f64, f64, usize)> = Vec::new();
     let mut anneals: Vec<f64> = Vec::new();
@@ -153,12 +170,12 @@ fn draw_flow(rep: &ScheduleReport, file: &ScheduleFile, area: &Area<'_>) -> Resu
                 let seg: Vec<(f64, f64)> = (0..=24)
                     .map(|k| {
                         let t = e * k as f64 / 24.0;
-                        (x + t, law.stress_mpa(r.strain_before + t))
+                        (x + t, stress(law.stress_mpa(r.strain_before + t)))
                     })
                     .collect();
                 segments.push(seg);
                 x += e;
-                exits.push((x, r.flow_stress_exit_mpa, r.step));
+                exits.push((x, stress(r.flow_stress_exit_mpa), r.step));
             }
         }
     }
@@ -178,7 +195,7 @@ fn draw_flow(rep: &ScheduleReport, file: &ScheduleFile, area: &Area<'_>) -> Resu
     chart
         .configure_mesh()
         .x_desc("total true strain drawn from the start")
-        .y_desc("flow stress, MPa")
+        .y_desc(format!("flow stress, {}", Quantity::Stress.label(units)))
         .y_label_formatter(&|y| format!("{:.0}", y))
         .light_line_style(WHITE.mix(0.0))
         .draw()
@@ -224,7 +241,7 @@ fn draw_flow(rep: &ScheduleReport, file: &ScheduleFile, area: &Area<'_>) -> Resu
 }
 
 /// Motor load per block (bars, coloured against 100 %).
-fn draw_load(m: &MachineRun, area: &Area<'_>) -> Result<()> {
+fn draw_load(m: &MachineRun, area: &Area<'_>, units: Units) -> Result<()> {
     let n = m.blocks.len() as f64;
     let top = m
         .blocks
@@ -239,7 +256,12 @@ fn draw_load(m: &MachineRun, area: &Area<'_>) -> Result<()> {
         .fold(0.0, f64::min);
     let mut chart = framed(
         area,
-        &format!("Motor load per block at {:.2} m/s", m.running_speed_m_s),
+        &format!(
+            "Motor load per block at {:.*} {}",
+            Quantity::Speed.decimals(2, units),
+            Quantity::Speed.convert(m.running_speed_m_s, units),
+            Quantity::Speed.label(units)
+        ),
         15,
         HALF,
         0.5f64..n + 0.5,
@@ -274,19 +296,22 @@ fn draw_load(m: &MachineRun, area: &Area<'_>) -> Result<()> {
 }
 
 /// Wire temperature into and out of each block's die, against the limit.
-fn draw_heat(m: &MachineRun, area: &Area<'_>) -> Result<()> {
+fn draw_heat(m: &MachineRun, area: &Area<'_>, units: Units) -> Result<()> {
     let n = m.blocks.len() as f64;
+    let temp = |c: f64| Quantity::Temperature.convert(c, units);
+    let unit = Quantity::Temperature.label(units);
+    let limit = m.wire_temperature_max_c.map(temp);
     let hottest = m
         .blocks
         .iter()
-        .map(|b| b.wire_temperature_out_c)
-        .fold(m.wire_temperature_max_c.unwrap_or(0.0), f64::max);
+        .map(|b| temp(b.wire_temperature_out_c))
+        .fold(limit.unwrap_or(temp(0.0)), f64::max);
     let coolest = m
         .blocks
         .iter()
-        .map(|b| b.wire_temperature_in_c)
+        .map(|b| temp(b.wire_temperature_in_c))
         .fold(f64::INFINITY, f64::min)
-        .min(0.0);
+        .min(temp(0.0));
     let mut chart = framed(
         area,
         &format!(
@@ -301,11 +326,11 @@ fn draw_heat(m: &MachineRun, area: &Area<'_>) -> Result<()> {
     count_mesh(
         &mut chart,
         "block",
-        "wire temperature, C",
+        &format!("wire temperature, {unit}"),
         m.blocks.len() + 1,
         &|x| whole_number(*x, n),
     )?;
-    if let Some(t) = m.wire_temperature_max_c {
+    if let Some(t) = limit {
         chart
             .draw_series(DashedLineSeries::new(
                 vec![(0.5, t), (n + 0.5, t)],
@@ -314,7 +339,10 @@ fn draw_heat(m: &MachineRun, area: &Area<'_>) -> Result<()> {
                 OVER.stroke_width(2),
             ))
             .map_err(err)?
-            .label(format!("limit {t} C"))
+            .label(match units {
+                Units::Si => format!("limit {t} {unit}"),
+                Units::Us => format!("limit {} {unit}", super::fixed(Some(t), 0)),
+            })
             .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 18, y)], OVER.stroke_width(2)));
     }
     // A sawtooth: up through each die, down through the cooling to the next.
@@ -324,8 +352,8 @@ fn draw_heat(m: &MachineRun, area: &Area<'_>) -> Result<()> {
         .flat_map(|b| {
             let x = b.block as f64;
             [
-                (x - 0.3, b.wire_temperature_in_c),
-                (x + 0.3, b.wire_temperature_out_c),
+                (x - 0.3, temp(b.wire_temperature_in_c)),
+                (x + 0.3, temp(b.wire_temperature_out_c)),
             ]
         })
         .collect();
@@ -337,7 +365,7 @@ fn draw_heat(m: &MachineRun, area: &Area<'_>) -> Result<()> {
     chart
         .draw_series(m.blocks.iter().map(|b| {
             Circle::new(
-                (b.block as f64 + 0.3, b.wire_temperature_out_c),
+                (b.block as f64 + 0.3, temp(b.wire_temperature_out_c)),
                 3,
                 BLACK.filled(),
             )

@@ -441,6 +441,43 @@ impl Law {
         }
     }
 
+    /// The same law with every figure in the input's unit (`sd`, `below`,
+    /// `above`) multiplied by `factor` (> 0), for showing it in another
+    /// unit: `factor` = 1/25.4 turns mm into inches. `cv` is relative and
+    /// stays; the shape is unchanged because a change of unit is linear.
+    /// (Unlike [`Law::scaled`], which widens the spread, truncation included.)
+    pub fn in_unit(&self, factor: f64) -> Law {
+        let f = |x: Option<f64>| x.map(|v| v * factor);
+        match *self {
+            Law::Normal { sd, cv } => Law::Normal { sd: f(sd), cv },
+            Law::Lognormal { sd, cv } => Law::Lognormal { sd: f(sd), cv },
+            Law::Uniform { below, above } => Law::Uniform {
+                below: below * factor,
+                above: above * factor,
+            },
+            Law::Truncated {
+                sd,
+                cv,
+                below,
+                above,
+            } => Law::Truncated {
+                sd: f(sd),
+                cv,
+                below: below * factor,
+                above: above * factor,
+            },
+        }
+    }
+
+    /// Whether [`Law::describe`] shows a figure in the input's unit (an
+    /// `sd` or a limit), not only the relative `cv`.
+    pub fn has_figure_in_unit(&self) -> bool {
+        match *self {
+            Law::Normal { sd, .. } | Law::Lognormal { sd, .. } => sd.is_some(),
+            Law::Uniform { .. } | Law::Truncated { .. } => true,
+        }
+    }
+
     /// A short description for the report (`normal, sd 0.01`).
     pub fn describe(&self) -> String {
         let size = |sd: Option<f64>, cv: Option<f64>| match (sd, cv) {
@@ -479,6 +516,48 @@ impl Law {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn a_law_in_another_unit_samples_the_same_values_in_that_unit() {
+        // A change of unit is x' = x / c: a sample m + sd z becomes
+        // m/c + (sd/c) z, so the law in the new unit drawn at m/c with the
+        // same normal score gives the old value over c (definition of a
+        // linear change of variable). c = 25.4 (mm per inch, exact).
+        let c = 25.4;
+        for law in [
+            Law::Normal {
+                sd: Some(0.05),
+                cv: None,
+            },
+            Law::Uniform {
+                below: 0.01,
+                above: 0.03,
+            },
+            Law::Truncated {
+                sd: Some(0.006),
+                cv: None,
+                below: 0.0,
+                above: 0.02,
+            },
+            Law::Truncated {
+                sd: None,
+                cv: Some(0.002),
+                below: 0.004,
+                above: 0.02,
+            },
+        ] {
+            let inch = law.in_unit(1.0 / c);
+            for z in [-2.5, -1.0, 0.0, 0.3, 1.7, 3.0] {
+                let mm = law.value(4.0, z);
+                let got = inch.value(4.0 / c, z);
+                assert!(
+                    (got - mm / c).abs() < 1e-12,
+                    "{law:?} z {z}: {got} vs {}",
+                    mm / c
+                );
+            }
+        }
+    }
 
     #[test]
     fn quantile_inverts_the_cdf() {

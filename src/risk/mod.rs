@@ -119,6 +119,10 @@ pub struct InputScatter {
     pub between_dies: Option<f64>,
     /// Where it came from: `scatter` or `material.flow_scatter`.
     pub source: String,
+    /// The law behind `distribution`, in the input's own unit (the unit its
+    /// key names: `_mm`, `_mpa`), for a report shown in other units.
+    #[serde(skip)]
+    pub law: Law,
 }
 
 /// An input's correlation with a pass's draw ratio.
@@ -253,6 +257,22 @@ pub struct RiskReport {
     pub scope: String,
     /// The caution footer.
     pub caution: String,
+    /// The figures with a unit the notes quote, for a report shown in other
+    /// units: the machine's running speed, m/s, and the line's block power
+    /// limit, kW (each `None` when no note quotes it).
+    #[serde(skip)]
+    pub quoted: QuotedFigures,
+}
+
+/// Figures with a unit that a risk note quotes (SI), so that a report in
+/// other units can show them converted.
+#[derive(Debug, Clone, Copy, Default, PartialEq)]
+pub struct QuotedFigures {
+    /// The machine's running speed in the over-block-power note, m/s
+    /// (quoted as `{:.3} m/s`).
+    pub running_speed_m_s: Option<f64>,
+    /// `line.block_power_kw` in the over-block-power note, kW (quoted as `{} kW`).
+    pub block_power_kw: Option<f64>,
 }
 
 impl RiskReport {
@@ -274,6 +294,7 @@ pub fn spreads(file: &ScheduleFile) -> Result<(Spreads, Vec<InputScatter>), Risk
             input: key.to_string(),
             distribution: d.law.describe(),
             between_dies: Some(d.between_dies),
+            law: d.law,
             source: "scatter".into(),
         });
         Ok(Some(d))
@@ -289,6 +310,7 @@ pub fn spreads(file: &ScheduleFile) -> Result<(Spreads, Vec<InputScatter>), Risk
                 input: "rod_diameter_mm".into(),
                 distribution: l.describe(),
                 between_dies: None,
+                law: l,
                 source: "scatter".into(),
             });
             Some(l)
@@ -308,6 +330,10 @@ pub fn spreads(file: &ScheduleFile) -> Result<(Spreads, Vec<InputScatter>), Risk
                     input: format!("flow.{k}"),
                     distribution: format!("normal, sd {sd}"),
                     between_dies: None,
+                    law: Law::Normal {
+                        sd: Some(*sd),
+                        cv: None,
+                    },
                     source: source.to_string(),
                 });
             }

@@ -9,8 +9,8 @@ use crate::schedule::ScheduleFile;
 
 use super::model::BlockLimit;
 use super::{
-    driver_name, stats, DriverShare, InputScatter, Model, PassRisk, RiskOptions, RiskReport,
-    RiskSummary, Tally, RELATIVE_PRECISION, SCOPE,
+    driver_name, stats, DriverShare, InputScatter, Model, PassRisk, QuotedFigures, RiskOptions,
+    RiskReport, RiskSummary, Tally, RELATIVE_PRECISION, SCOPE,
 };
 
 /// The report of a run over `t`, with `check`'s nominal rows.
@@ -102,6 +102,16 @@ pub(super) fn build_report(
         notes,
         scope: SCOPE.into(),
         caution: evaluation::CAUTION.into(),
+        quoted: QuotedFigures {
+            running_speed_m_s: match (model.block_limit(), &check.machine) {
+                (Some(BlockLimit::Machine { .. }), Some(run)) => Some(run.running_speed_m_s),
+                _ => None,
+            },
+            block_power_kw: match model.block_limit() {
+                Some(BlockLimit::Line { limit_kw }) => Some(*limit_kw),
+                _ => None,
+            },
+        },
     }
 }
 
