@@ -256,3 +256,27 @@ fn the_pages_chart_follows_us_units() {
         "US axis {on_us}, check {ksi} ksi"
     );
 }
+
+/// `--plot` writes the same chart the page draws, in the units asked for:
+/// check and design both (a chart left in MPa under `--units us` would
+/// carry an SI axis beside a US table).
+#[test]
+fn the_plot_file_follows_us_units() {
+    let labels = |svg: &str| -> Vec<String> { texts(svg).into_iter().map(|t| t.1).collect() };
+    for args in [
+        &["check", STEEL][..],
+        &["design", "schedules-demo/design-steel-machine.yaml"][..],
+    ] {
+        let si = labels(&plot(&[args, &["--units", "si"]].concat()));
+        let us = labels(&plot(&[args, &["--units", "us"]].concat()));
+        assert!(
+            si.iter().any(|t| t == "flow stress, MPa"),
+            "{args:?}: {si:?}"
+        );
+        assert!(
+            us.iter().any(|t| t == "flow stress, ksi"),
+            "{args:?}: {us:?}"
+        );
+        assert!(!us.iter().any(|t| t.contains("MPa")), "{args:?}: {us:?}");
+    }
+}

@@ -62,7 +62,7 @@ pub fn run(args: &CheckArgs) -> Result<u8> {
     let body = report::render_schedule(&rep, &file, args.report.format, &args.view.look())?;
     // Render everything before writing anything, so a failure leaves no partial output.
     let chart = match &args.report.plot {
-        Some(_) => Some(report::svg::schedule(&rep, &file)?),
+        Some(_) => Some(report::svg::schedule_in(&rep, &file, args.view.units)?),
         None => None,
     };
     // Neither the schedule nor its machine file may be overwritten by an output.

@@ -59,7 +59,11 @@ pub fn run(args: &DesignArgs) -> Result<u8> {
     output::ensure_finite("design's report", &d.report)?;
     let body = report::design::render(&d, args.report.format, &args.view.look())?;
     let chart = match &args.report.plot {
-        Some(_) => Some(report::svg::schedule(&d.report, &d.schedule)?),
+        Some(_) => Some(report::svg::schedule_in(
+            &d.report,
+            &d.schedule,
+            args.view.units,
+        )?),
         None => None,
     };
     let emitted = match &args.emit_schedule {

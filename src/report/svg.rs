@@ -18,11 +18,6 @@ use super::chart::{
 };
 use super::units::{Quantity, Units};
 
-/// Draws the chart of a checked schedule in SI; `file` gives the laws for the curves.
-pub fn schedule(rep: &ScheduleReport, file: &ScheduleFile) -> Result<Vec<u8>> {
-    schedule_in(rep, file, Units::Si)
-}
-
 /// Draws the chart of a checked schedule with its stresses, speeds and
 /// temperatures in `units` (MPa or ksi, m/s or ft/min, C or F; the factors
 /// of [`Quantity::convert`], NIST SP 811); draw ratios and loads in % are
