@@ -24,7 +24,6 @@ const SEARCH_MAX_STRAIN: f64 = 20.0;
 
 /// `d sigma/d eps` of `law` at strain `e` (MPa), by a central difference of
 /// step `h = 1e-5 max(e, 1e-3)` (one-sided at 0).
-#[inline]
 fn slope(law: &FlowLaw, e: f64) -> f64 {
     let h = 1e-5 * e.max(1e-3);
     let lo = (e - h).max(0.0);
@@ -35,7 +34,6 @@ fn slope(law: &FlowLaw, e: f64) -> f64 {
 /// while the wire still hardens faster than its section shrinks, so a test
 /// piece at `e` stretches uniformly (Considere 1885; Dieter, ch. 8). The
 /// slope is [`considere_strain`]'s central difference.
-#[inline]
 pub fn excess(law: &FlowLaw, e: f64) -> f64 {
     slope(law, e) - law.stress_mpa(e)
 }

@@ -23,7 +23,7 @@
 //! full scan. `tests::fast_equals_the_full_scan_to_the_bit` holds the two
 //! equal over laws drawn across each family's range.
 
-use crate::evaluation::strength::{self, excess};
+use crate::evaluation::strength;
 use crate::flow::{FlowLaw, FlowLawSpec};
 
 /// First point of the scan, as in [`strength::considere_strain`].
@@ -41,6 +41,16 @@ pub struct ConsidereSolver {
     scan: Vec<f64>,
     /// Index of the first non-positive scan point of the nominal law.
     start: usize,
+}
+
+fn slope(law: &FlowLaw, e: f64) -> f64 {
+    let h = 1e-5 * e.max(1e-3);
+    let lo = (e - h).max(0.0);
+    (law.stress_mpa(e + h) - law.stress_mpa(lo)) / (e + h - lo)
+}
+
+fn excess(law: &FlowLaw, e: f64) -> f64 {
+    slope(law, e) - law.stress_mpa(e)
 }
 
 /// Whether the law's excess `sigma' - sigma` falls through zero once.
@@ -130,9 +140,22 @@ pub enum Scan {
 }
 
 /// The bisection of [`strength::considere_strain`] from the bracket
-/// `[lo, hi]` of [`ConsidereSolver::scan`]: check's own bisection
-/// ([`strength::bisect`]), so the same steps give the same bits.
-pub use strength::bisect;
+/// `[lo, hi]` of [`ConsidereSolver::scan`]: the same steps, the same bits.
+pub fn bisect(law: &FlowLaw, lo: f64, hi: f64) -> f64 {
+    let (mut lo, mut hi) = (lo, hi);
+    for _ in 0..200 {
+        let mid = 0.5 * (lo + hi);
+        if excess(law, mid) > 0.0 {
+            lo = mid;
+        } else {
+            hi = mid;
+        }
+        if hi - lo < 1e-13 * hi {
+            break;
+        }
+    }
+    0.5 * (lo + hi)
+}
 
 #[cfg(test)]
 mod tests {
