@@ -256,6 +256,7 @@ pub(super) fn notes(
         )
     };
     match tier {
+        _ if heavy_tier(input, chooser) => {}
         0 => notes.push(format!("every pass at or under {aim_words}")),
         _ if cap < l.draw_ratio_max => notes.push(format!(
             "no design within {} passes keeps every pass at or under {aim_words}: passes held to the warn line {cap}",
@@ -266,6 +267,7 @@ pub(super) fn notes(
             input.max_passes, l.draw_ratio_warn, l.draw_ratio_max
         )),
     }
+    reduction_note(input, chooser, report, &mut notes);
     if target.strategy == Strategy::EqualRatio {
         let whole = target.ratio_across == RatioAcross::WholeSchedule;
         if !one_level {
@@ -310,4 +312,54 @@ pub(super) fn notes(
         }
     }
     notes
+}
+
+/// The heavy-reduction tier in words: when the reduction was held to the
+/// heavy-reduction line and some pass sits near it (within 1 %), or when no
+/// design within the passes could be held there (the last tier).
+fn reduction_note(
+    input: &Input,
+    chooser: &Chooser,
+    report: &crate::evaluation::ScheduleReport,
+    notes: &mut Vec<String>,
+) {
+    let rw = input.reduction_warn;
+    let key = if input.file.limits.reduction_warn.is_some() {
+        format!("limits.reduction_warn {rw}")
+    } else {
+        format!("limits.reduction_warn {rw} (the default; set limits.reduction_warn)")
+    };
+    let heaviest = report
+        .passes
+        .iter()
+        .filter_map(|r| r.area_reduction)
+        .fold(0.0, f64::max);
+    if chooser.ctx.r_max_is_warn {
+        if heaviest > 0.99 * rw {
+            notes.push(format!(
+                "every pass's area reduction at or under {key}, the line over which check flags heavy-reduction"
+            ));
+        }
+    } else if heavy_tier(input, chooser) {
+        notes.push(format!(
+            "no design within {} passes keeps every pass's area reduction at or under {key}: some passes are heavier (check flags them heavy-reduction), up to {}, with draw ratios up to limits.draw_ratio_max {}",
+            input.max_passes,
+            input
+                .target
+                .reduction_max
+                .map_or_else(|| "no reduction limit (target.reduction_max not set)".to_string(), |r| format!("target.reduction_max {r}")),
+            input.file.limits.draw_ratio_max
+        ));
+    }
+}
+
+/// Whether the design was made in the last tier, the reduction held to
+/// `target.reduction_max` alone (never on a slip machine, whose cones set the dies).
+fn heavy_tier(input: &Input, chooser: &Chooser) -> bool {
+    !chooser.ctx.r_max_is_warn
+        && input
+            .target
+            .reduction_max
+            .is_none_or(|r| r > input.reduction_warn)
+        && input.machine.is_none_or(|m| m.kind != MachineKind::Slip)
 }

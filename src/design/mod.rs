@@ -161,8 +161,9 @@ pub fn design_on(
     }
     let max_n = input.max_passes.max(input.passes.unwrap_or(0));
     let mut build_error = None;
-    for (tier, &cap) in input.caps.iter().enumerate() {
-        let chooser = input.chooser(cap)?;
+    for t in input.tiers() {
+        let tier = t.ratio;
+        let chooser = input.tier_chooser(t)?;
         let mut tables = input.tables(&chooser, max_n);
         let Some(split) = tables.fewest(input.pass_range(), input.max_anneals)? else {
             continue;
