@@ -341,13 +341,16 @@ fn reduction_note(
             ));
         }
     } else if heavy_tier(input, chooser) {
+        let within = match input.passes {
+            Some(n) => format!("with {n} passes"),
+            None => format!("within {} passes", input.max_passes),
+        };
         notes.push(format!(
-            "no design within {} passes keeps every pass's area reduction at or under {key}: some passes are heavier (check flags them heavy-reduction), up to {}, with draw ratios up to limits.draw_ratio_max {}",
-            input.max_passes,
+            "no design {within} keeps every pass's area reduction at or under {key}: some passes are heavier (check flags them heavy-reduction){}, with draw ratios held to limits.draw_ratio_max {}",
             input
                 .target
                 .reduction_max
-                .map_or_else(|| "no reduction limit (target.reduction_max not set)".to_string(), |r| format!("target.reduction_max {r}")),
+                .map_or_else(String::new, |r| format!(", up to target.reduction_max {r}")),
             input.file.limits.draw_ratio_max
         ));
     }

@@ -215,7 +215,11 @@ impl<'f> Input<'f> {
         let mut v: Vec<Tier> = (0..self.caps.len())
             .map(|ratio| Tier { ratio, light: true })
             .collect();
-        if self.target.reduction_max.is_none_or(|r| r > self.reduction_warn) {
+        if self
+            .target
+            .reduction_max
+            .is_none_or(|r| r > self.reduction_warn)
+        {
             v.push(Tier {
                 ratio: self.caps.len() - 1,
                 light: false,
@@ -227,7 +231,12 @@ impl<'f> Input<'f> {
     /// The pass chooser of a tier.
     pub(super) fn tier_chooser(&self, tier: Tier) -> Result<Chooser<'f>, DesignError> {
         let mut c = self.chooser(self.caps[tier.ratio])?;
-        if tier.light && self.target.reduction_max.is_none_or(|r| r > self.reduction_warn) {
+        if tier.light
+            && self
+                .target
+                .reduction_max
+                .is_none_or(|r| r > self.reduction_warn)
+        {
             c.ctx.r_max = Some(self.reduction_warn);
             c.ctx.r_max_is_warn = true;
         }

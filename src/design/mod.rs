@@ -31,7 +31,11 @@
 //! default [`DEFAULT_AIM_FRACTION`] of the warn line), then to the warn line,
 //! then to the limit: the first of these a design within `max_passes` meets is
 //! used, so no pass is planted in the warning zone when a design outside it
-//! exists. Within a cap the design has the fewest passes, then the fewest anneals.
+//! exists. At each of these caps every pass's area reduction is also held at
+//! or under the heavy-reduction line `check` flags (`limits.reduction_warn`,
+//! or its wire / single-block default); only a last tier at the limit lets
+//! passes take up to `target.reduction_max`. Within a cap the design has the
+//! fewest passes, then the fewest anneals.
 //!
 //! The die angle of a pass is the one from the stock that minimises the
 //! governing drawing stress among those with `Delta <= delta_max`. Every loop
