@@ -209,6 +209,7 @@ pub(super) fn finish(
         draw_ratio_aimed: chooser.ctx.ratio_cap,
         dies: die_room::die_list(&dies),
         die_rounding: stock.map(Stock::words),
+        die_decimals: stock.map_or(3, Stock::decimals),
         runs: run_plans,
         anneals,
         notes,

@@ -111,6 +111,11 @@ pub struct DesignSummary {
     pub dies: Vec<DieOrder>,
     /// Die-room step or sizes the dies were rounded to, in words (`None`: full precision).
     pub die_rounding: Option<String>,
+    /// Decimals (mm) the die room works to, for showing die sizes: those of
+    /// `target.die_step_mm`, or the most of `target.die_sizes_mm`, at most 6;
+    /// 3 without rounding (a micrometre). Not in JSON, which keeps full precision.
+    #[serde(skip)]
+    pub die_decimals: usize,
     /// The runs between anneals.
     pub runs: Vec<RunPlan>,
     /// The anneals, in order.
