@@ -58,7 +58,7 @@ mod strategies;
 pub use error::DesignError;
 pub use model::{
     AnnealPlan, AnnealReason, Design, DesignOptions, DesignSummary, DiameterRange, DieOrder,
-    RunPlan,
+    Prefer, RunPlan,
 };
 
 use crate::evaluation::{evaluate_on, EvaluateOptions};
@@ -159,6 +159,13 @@ pub fn design_on(
     options: &DesignOptions,
     machine: Option<&Machine>,
 ) -> Result<Design, DesignError> {
+    if file
+        .target
+        .as_ref()
+        .is_some_and(|t| t.prefer == Prefer::Speed)
+    {
+        return fastest(file, options, machine);
+    }
     let input = read_input(file, options, machine)?;
     if let Some(m) = machine.filter(|m| m.kind == MachineKind::Slip) {
         return slip::design_slip(&input, options, m);
@@ -183,6 +190,94 @@ pub fn design_on(
         return Err(e);
     }
     Err(diagnose(&input)?)
+}
+
+/// `target.prefer: speed`: the design of each strategy on the machine (the
+/// file's first), the one of highest attainable speed kept (the first on a
+/// tie), with a note giving every strategy's speed. A slip machine's cones
+/// set its dies whatever the strategy: its one design is kept. Without a
+/// machine there is no speed to compare: an error naming the key.
+fn fastest(
+    file: &ScheduleFile,
+    options: &DesignOptions,
+    machine: Option<&Machine>,
+) -> Result<Design, DesignError> {
+    let Some(m) = machine else {
+        return Err(DesignError::Input {
+            key: "target.prefer".into(),
+            why: "speed needs a machine to have an attainable speed (machine: in the file, or --machine); leave it out, or give prefer: strategy".into(),
+        });
+    };
+    let mut plain = file.clone();
+    let own = match plain.target.as_mut() {
+        Some(t) => {
+            t.prefer = Prefer::Strategy;
+            t.strategy
+        }
+        None => return design_on(&plain, options, machine),
+    };
+    if m.kind == MachineKind::Slip {
+        return design_on(&plain, options, machine);
+    }
+    let mut order = vec![own];
+    order.extend(
+        [
+            Strategy::EqualRatio,
+            Strategy::EqualStrain,
+            Strategy::Tapered,
+        ]
+        .into_iter()
+        .filter(|s| *s != own),
+    );
+    let mut best: Option<Design> = None;
+    let mut first_error = None;
+    let mut tried = Vec::new();
+    for s in order {
+        let mut f = plain.clone();
+        if let Some(t) = f.target.as_mut() {
+            t.strategy = s;
+        }
+        let name = strategy_name(s);
+        match design_on(&f, options, machine) {
+            Ok(d) => {
+                let v = d.summary.attainable_speed_m_s;
+                tried.push(match v {
+                    Some(v) => format!("{name} {v:.3} m/s"),
+                    None => format!("{name} no attainable speed"),
+                });
+                let faster = match (&best, v) {
+                    (None, _) => true,
+                    (Some(b), Some(v)) => b.summary.attainable_speed_m_s.is_none_or(|w| v > w),
+                    (Some(_), None) => false,
+                };
+                if faster {
+                    best = Some(d);
+                }
+            }
+            Err(e) => {
+                tried.push(format!("{name} no design"));
+                first_error.get_or_insert(e);
+            }
+        }
+    }
+    let Some(mut d) = best else {
+        return Err(first_error.expect("a strategy was tried"));
+    };
+    d.summary.notes.push(format!(
+        "target.prefer speed: {} kept, the highest attainable speed of the strategies ({})",
+        strategy_name(d.summary.strategy),
+        tried.join(", ")
+    ));
+    Ok(d)
+}
+
+/// A strategy as the file names it.
+fn strategy_name(s: Strategy) -> &'static str {
+    match s {
+        Strategy::EqualRatio => "equal-ratio",
+        Strategy::EqualStrain => "equal-strain",
+        Strategy::Tapered => "tapered",
+    }
 }
 
 /// The designed schedule as YAML that `coldpass check` reads back to the

@@ -175,3 +175,25 @@ pub struct DesignOptions {
     /// designed schedule so that `check` uses it too).
     pub method: Option<Method>,
 }
+
+/// Which feasible design `target.prefer` keeps.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, serde::Serialize, serde::Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum Prefer {
+    /// The design `target.strategy` lays out (the default).
+    #[default]
+    Strategy,
+    /// On a machine: of the designs each strategy (`equal-ratio`,
+    /// `equal-strain`, `tapered`) lays out at the machine's pass count and
+    /// no anneal, the one with the highest attainable finish speed (m/s, as
+    /// `check --machine` reports it; the tonnes per shift follow it), the
+    /// file's strategy kept on a tie.
+    Speed,
+}
+
+impl Prefer {
+    /// Whether this is the default (`strategy`): the key is then not written.
+    pub fn is_default(&self) -> bool {
+        *self == Prefer::Strategy
+    }
+}

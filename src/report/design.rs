@@ -212,7 +212,7 @@ pub fn summary_to(d: &Design, width: Option<usize>) -> String {
         &format!(
             "Die list ({})",
             s.die_rounding.as_deref().unwrap_or(
-                "not rounded to a die room, shown to 3 decimals (JSON has full precision): set target.die_step_mm or target.die_sizes_mm to round"
+                "sizes to 3 decimals, in full in JSON: set target.die_step_mm or target.die_sizes_mm to round"
             )
         ),
         "  ",
