@@ -207,3 +207,78 @@ fn a_reduction_max_under_the_line_still_holds_every_pass() {
     }
     assert!(!d["design"]["notes"].to_string().contains("reduction_warn"));
 }
+
+/// Hollomon steel-like stock (demo values), 8.0 to 3.0 mm in exactly four
+/// passes, warn line 0.5, limit 0.8, the heavy-reduction line raised out of
+/// the way: held to the warn line the four passes need anneals, at the
+/// limit they need none.
+const AIM_ANNEALS: &str = "\
+title: the aim's anneals (test, demo values)
+material:
+  density_kg_m3: 7850
+  specific_heat_j_kg_k: 470
+  flow: {law: hollomon, k_mpa: 530, n: 0.26}
+start:
+  diameter: 8.0
+dies:
+  semi_angle_deg: 8
+  friction: 0.05
+limits:
+  method: sachs
+  draw_ratio_warn: 0.5
+  draw_ratio_max: 0.8
+  reduction_warn: 0.7
+target:
+  diameter: 3.0
+  passes: 4
+";
+
+fn anneals(report: &serde_json::Value) -> usize {
+    report["passes"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter(|p| p["kind"] == "anneal")
+        .count()
+}
+
+#[test]
+fn a_tighter_tier_does_not_add_anneals_the_limit_does_without() {
+    let dir = tempfile::tempdir().unwrap();
+    let f = dir.path().join("aim.yaml");
+    // The same four passes held to the warn line (the limit set at it): the
+    // design needs anneals there.
+    std::fs::write(
+        &f,
+        AIM_ANNEALS.replace("draw_ratio_max: 0.8", "draw_ratio_max: 0.5"),
+    )
+    .unwrap();
+    let held = design(f.to_str().unwrap());
+    let k_held = anneals(&held["schedule"]);
+    assert!(k_held > 0, "{}", held["schedule"]);
+
+    // With the limit at 0.8 a design with no anneal exists: it is taken,
+    // every pass within the limit as check reports it, and the notes say
+    // what the tighter tier would have cost.
+    std::fs::write(&f, AIM_ANNEALS).unwrap();
+    let d = design(f.to_str().unwrap());
+    let report = &d["schedule"];
+    assert_eq!(anneals(report), 0, "{report}");
+    assert_ne!(report["summary"]["verdict"], "over", "{report}");
+    let draws: Vec<f64> = report["passes"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter(|p| p["kind"] == "draw")
+        .map(|p| p["draw_ratio"].as_f64().unwrap())
+        .collect();
+    assert_eq!(draws.len(), 4);
+    assert!(draws.iter().all(|r| *r <= 0.8), "{draws:?}");
+    let notes = d["design"]["notes"].to_string();
+    assert!(
+        notes.contains(&format!(
+            "rather than the warn line 0.5, which would take {k_held} anneal"
+        )),
+        "{notes}"
+    );
+}

@@ -258,6 +258,28 @@ pub(super) fn notes(
     };
     match tier {
         _ if heavy_tier(input, chooser) => {}
+        _ if chooser.ctx.fewer_anneals_than.get().is_some() => {
+            let (at, k) = chooser.ctx.fewer_anneals_than.get().unwrap_or_default();
+            let n = report
+                .passes
+                .iter()
+                .filter(|r| r.kind == crate::evaluation::StepKind::Anneal)
+                .count();
+            let held = if cap < l.draw_ratio_max {
+                format!("the warn line {cap}")
+            } else {
+                format!("limits.draw_ratio_max {cap} (passes may sit in the warning zone)")
+            };
+            let tighter = if at == aim {
+                aim_words.clone()
+            } else {
+                format!("the warn line {at}")
+            };
+            notes.push(format!(
+                "passes held to {held} rather than {tighter}, which would take {k} anneal{} where this design takes {n}",
+                if k == 1 { "" } else { "s" }
+            ));
+        }
         0 => notes.push(format!("every pass at or under {aim_words}")),
         _ if cap < l.draw_ratio_max => notes.push(format!(
             "no design within {} passes keeps every pass at or under {aim_words}: passes held to the warn line {cap}",

@@ -277,6 +277,7 @@ impl<'f> Input<'f> {
                 r_min: self.target.reduction_min,
                 r_max: self.target.reduction_max,
                 r_max_is_warn: false,
+                fewer_anneals_than: std::cell::Cell::new(None),
                 delta_max: file.limits.delta_max,
                 cold_work: file.material.cold_work_limit,
                 finish_mm: self.finish_mm,

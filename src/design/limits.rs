@@ -127,6 +127,9 @@ pub(super) struct Ctx<'a> {
     /// `r_max` is the heavy-reduction line `limits.reduction_warn` (as `check`
     /// takes it), not `target.reduction_max`.
     pub(super) r_max_is_warn: bool,
+    /// The design was made at this cap although a tighter one had a design:
+    /// that cap and its anneals, more than this one needs.
+    pub(super) fewer_anneals_than: Cell<Option<(f64, usize)>>,
     pub(super) delta_max: Option<f64>,
     pub(super) cold_work: Option<f64>,
     pub(super) finish_mm: f64,

@@ -172,13 +172,41 @@ pub fn design_on(
     }
     let max_n = input.max_passes.max(input.passes.unwrap_or(0));
     let mut build_error = None;
-    for t in input.tiers() {
+    let tiers = input.tiers();
+    // The anneals the last tier holding the reduction line needs, worked out
+    // only when an earlier tier's design has an anneal: a tier that needs more
+    // is passed over for a later one that needs no more than these.
+    let last_light = tiers.iter().rposition(|t| t.light);
+    let mut fewest_anneals: Option<Option<usize>> = None;
+    let mut passed_over: Option<(f64, usize)> = None;
+    for (i, &t) in tiers.iter().enumerate() {
         let tier = t.ratio;
         let chooser = input.tier_chooser(t)?;
         let mut tables = input.tables(&chooser, max_n);
         let Some(split) = tables.fewest(input.pass_range(), input.max_anneals)? else {
             continue;
         };
+        let k = anneals_of(&split);
+        if k > 0 && last_light.is_some_and(|l| i < l) {
+            let least = match fewest_anneals {
+                Some(x) => x,
+                None => {
+                    let l = tiers[last_light.expect("checked")];
+                    let c = input.tier_chooser(l)?;
+                    let mut tb = input.tables(&c, max_n);
+                    let x = tb
+                        .fewest(input.pass_range(), input.max_anneals)?
+                        .map(|s| anneals_of(&s));
+                    fewest_anneals = Some(x);
+                    x
+                }
+            };
+            if least.is_some_and(|m| m < k) {
+                passed_over.get_or_insert((input.caps[tier], k));
+                continue;
+            }
+        }
+        chooser.ctx.fewer_anneals_than.set(passed_over);
         match assemble(&input, options, &chooser, &mut tables, &split, tier) {
             Ok(d) => return Ok(d),
             Err(e) => {
@@ -190,6 +218,12 @@ pub fn design_on(
         return Err(e);
     }
     Err(diagnose(&input)?)
+}
+
+/// The anneals of a split: one between each run and the next (an empty first
+/// run is an anneal before the first die, an empty temper run one after the last).
+fn anneals_of(split: &Split) -> usize {
+    split.middle.len() + usize::from(split.temper.is_some())
 }
 
 /// `target.prefer: speed`: the design of each strategy on the machine (the
