@@ -282,3 +282,50 @@ fn a_tighter_tier_does_not_add_anneals_the_limit_does_without() {
         "{notes}"
     );
 }
+
+#[test]
+fn on_a_single_block_machine_the_line_is_the_single_draft_one() {
+    // One draft on a single-block machine: check flags it heavy-reduction
+    // only over 45 % (REDUCTION_WARN_SINGLE_DRAFT), so 8.0 -> 6.2 mm
+    // (1 - (6.2/8)^2 = 39.9 %) is held by a light tier, and 8.0 -> 5.8 mm
+    // (47.4 %) only by the last, which names 0.45.
+    let dir = tempfile::tempdir().unwrap();
+    let machine = dir.path().join("one-block.yaml");
+    std::fs::write(
+        &machine,
+        "name: one block (test)\nkind: single-block\ncooling_between_dies: 0\nblocks:\n  - {capstan_diameter_mm: 900, motor_kw: 40, max_capstan_rpm: 60}\n",
+    )
+    .unwrap();
+    let f = dir.path().join("draft.yaml");
+    for (finish, heavy) in [(6.2, false), (5.8, true)] {
+        let text = HEAVY_ONLY
+            .replace(
+                "title: two passes only (test, demo values)\n",
+                &format!(
+                    "title: one draft (test, demo values)\nmachine: {}\nline:\n  finish_speed_m_s: 1\n",
+                    machine.to_str().unwrap()
+                ),
+            )
+            .replace("  diameter: 5.5\n  passes: 2\n", &format!("  diameter: {finish}\n"));
+        std::fs::write(&f, text).unwrap();
+        let d = design(f.to_str().unwrap());
+        let report = &d["schedule"];
+        let r = reductions(report, 8.0);
+        assert_eq!(r.len(), 1);
+        assert!(
+            (r[0] - (1.0 - (finish / 8.0f64).powi(2))).abs() < 1e-12,
+            "{r:?}"
+        );
+        assert_eq!(
+            flags(report).iter().any(|f| f == "heavy-reduction"),
+            heavy,
+            "{report}"
+        );
+        let notes = d["design"]["notes"].to_string();
+        assert_eq!(
+            notes.contains("no design with 1 pass keeps every pass's area reduction at or under limits.reduction_warn 0.45"),
+            heavy,
+            "{notes}"
+        );
+    }
+}

@@ -365,7 +365,7 @@ fn reduction_note(
         }
     } else if heavy_tier(input, chooser) {
         let within = match input.passes {
-            Some(n) => format!("with {n} passes"),
+            Some(n) => format!("with {}", passes_in_words(&Some(n))),
             None => format!("within {} passes", input.max_passes),
         };
         notes.push(format!(
