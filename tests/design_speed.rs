@@ -107,6 +107,8 @@ fn prefer_speed_keeps_the_fastest_strategy_as_check_reports_it() {
         for (s, w) in &each {
             assert!(v >= *w, "prefer speed from {own}: {v} m/s under {s}'s {w}");
         }
+        // Each strategy's design is ok on the demo, so the speed alone decides.
+        assert_eq!(d["schedule"]["summary"]["verdict"], "ok");
         // The speed is reported, the same as check's, and the note names
         // every strategy's speed.
         let reported = d["design"]["attainable_speed_m_s"].as_f64().unwrap();

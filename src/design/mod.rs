@@ -227,8 +227,8 @@ fn anneals_of(split: &Split) -> usize {
 }
 
 /// `target.prefer: speed`: the design of each strategy on the machine (the
-/// file's first), the one of highest attainable speed kept (the first on a
-/// tie), with a note giving every strategy's speed. A slip machine's cones
+/// file's first), the one of highest attainable speed among those of the
+/// cleanest verdict (ok before warn) kept (the first on a tie), with a note giving every strategy's speed. A slip machine's cones
 /// set its dies whatever the strategy: its one design is kept. Without a
 /// machine there is no speed to compare: an error naming the key.
 fn fastest(
@@ -279,10 +279,17 @@ fn fastest(
                     Some(v) => format!("{name} {v:.3} m/s"),
                     None => format!("{name} no attainable speed"),
                 });
-                let faster = match (&best, v) {
-                    (None, _) => true,
-                    (Some(b), Some(v)) => b.summary.attainable_speed_m_s.is_none_or(|w| v > w),
-                    (Some(_), None) => false,
+                // A cleaner verdict first (no pass into a warning for speed),
+                // then the higher speed.
+                let faster = match &best {
+                    None => true,
+                    Some(b) => match rank(&d).cmp(&rank(b)) {
+                        std::cmp::Ordering::Less => true,
+                        std::cmp::Ordering::Greater => false,
+                        std::cmp::Ordering::Equal => {
+                            v.is_some_and(|v| b.summary.attainable_speed_m_s.is_none_or(|w| v > w))
+                        }
+                    },
                 };
                 if faster {
                     best = Some(d);
@@ -303,6 +310,15 @@ fn fastest(
         tried.join(", ")
     ));
     Ok(d)
+}
+
+/// A design's verdict as a rank: ok 0, warn 1, over 2.
+fn rank(d: &Design) -> u8 {
+    match d.report.summary.verdict {
+        crate::evaluation::Verdict::Ok => 0,
+        crate::evaluation::Verdict::Warn => 1,
+        crate::evaluation::Verdict::Over => 2,
+    }
 }
 
 /// A strategy as the file names it.

@@ -186,8 +186,9 @@ pub enum Prefer {
     /// On a machine: of the designs each strategy (`equal-ratio`,
     /// `equal-strain`, `tapered`) lays out at the machine's pass count and
     /// no anneal, the one with the highest attainable finish speed (m/s, as
-    /// `check --machine` reports it; the tonnes per shift follow it), the
-    /// file's strategy kept on a tie.
+    /// `check --machine` reports it; the tonnes per shift follow it) among
+    /// those of the cleanest verdict (a design with no warning before one
+    /// with), the file's strategy kept on a tie.
     Speed,
 }
 
