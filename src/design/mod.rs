@@ -174,8 +174,9 @@ pub fn design_on(
     let mut build_error = None;
     let tiers = input.tiers();
     // The anneals the last tier holding the reduction line needs, worked out
-    // only when an earlier tier's design has an anneal: a tier that needs more
-    // is passed over for a later one that needs no more than these.
+    // only when an earlier tier's design has more anneals than the cold-work
+    // limit and the temper window force: a tier that needs more than the last
+    // is passed over for a later one that needs no more.
     let last_light = tiers.iter().rposition(|t| t.light);
     let mut fewest_anneals: Option<Option<usize>> = None;
     let mut passed_over: Option<(f64, usize)> = None;
@@ -187,7 +188,7 @@ pub fn design_on(
             continue;
         };
         let k = anneals_of(&split);
-        if k > 0 && last_light.is_some_and(|l| i < l) {
+        if k > tables.least_anneals() && last_light.is_some_and(|l| i < l) {
             let least = match fewest_anneals {
                 Some(x) => x,
                 None => {
