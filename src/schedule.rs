@@ -435,6 +435,11 @@ pub struct Target {
     /// Die sizes the die room stocks, mm: every die but the finish die is one of them.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub die_sizes_mm: Option<Vec<f64>>,
+    /// Which feasible design to keep: `strategy` (the default: the one
+    /// `strategy` lays out) or `speed` (on a machine, each strategy is tried
+    /// and the design with the highest attainable speed kept).
+    #[serde(default, skip_serializing_if = "crate::design::Prefer::is_default")]
+    pub prefer: crate::design::Prefer,
 }
 
 /// Where an equal-ratio design holds its one draw ratio.

@@ -135,6 +135,10 @@ fn text(c: &Case, ratio_max: f64, extra: &str) -> String {
     )
 }
 
+/// The case's file blocks. `limits.reduction_warn` is set above the 99.75 %
+/// the design's solvers try, so that the heavy-reduction line never binds:
+/// these properties are about the ratio and reduction limits and the witness
+/// (tests/design_margin.rs checks the line).
 fn base(c: &Case, ratio_max: f64) -> String {
     let opt = |k: &str, v: Option<f64>| v.map(|x| format!("  {k}: {x}\n")).unwrap_or_default();
     let line = c
@@ -142,7 +146,7 @@ fn base(c: &Case, ratio_max: f64) -> String {
         .map(|p| format!("line:\n  finish_speed_m_s: 10\n  block_power_kw: {p}\n"))
         .unwrap_or_default();
     format!(
-        "material:\n  density_kg_m3: 8000\n  specific_heat_j_kg_k: 450\n  flow: {}\n{}start:\n  diameter: {}\n  strain: {}\ndies:\n  semi_angles_deg: {:?}\n  friction: {}\n  land_length_mm: {}\nlimits:\n  method: {}\n  draw_ratio_warn: {}\n  draw_ratio_max: {}\n{}{}{line}",
+        "material:\n  density_kg_m3: 8000\n  specific_heat_j_kg_k: 450\n  flow: {}\n{}start:\n  diameter: {}\n  strain: {}\ndies:\n  semi_angles_deg: {:?}\n  friction: {}\n  land_length_mm: {}\nlimits:\n  method: {}\n  draw_ratio_warn: {}\n  draw_ratio_max: {}\n  reduction_warn: 0.9999\n{}{}{line}",
         c.law,
         opt("cold_work_limit", c.cold_work.map(|l| l + c.start_strain)),
         c.d0,

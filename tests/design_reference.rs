@@ -29,6 +29,7 @@ limits:
   method: {method}
   draw_ratio_warn: 1
   draw_ratio_max: 1
+  reduction_warn: 0.9999  # the heavy-reduction line out of the way (above the 99.75 % the solvers try): these checks are about the ratio limit
 target:
   diameter: {df}
   draw_ratio_aim: 1  # held to the limit itself: these checks are about the ratio limit

@@ -138,9 +138,28 @@ fn splits(n: u32, r: u32, drawn: bool) -> Vec<Vec<u32>> {
 /// By default the fewest anneals any split within the bound needs, then the
 /// fewest passes with that many; with `max_anneals`, the fewest passes with at
 /// most that many anneals, then the fewest anneals.
+///
+/// The design holds every pass first to the heavy-reduction line check
+/// flags (`limits.reduction_warn`, default 0.30 for wire; README, margin
+/// tiers) and only when no split meets it to `target.reduction_max`: the
+/// oracle enumerates at `min(reduction_max, 0.30)`, then at `reduction_max`.
 fn exhaustive(c: &Case) -> Option<(u32, u32)> {
+    const LINE: f64 = 0.30;
+    exhaustive_at(c, c.r_max.min(LINE)).or_else(|| {
+        if c.r_max > LINE {
+            exhaustive_at(c, c.r_max)
+        } else {
+            None
+        }
+    })
+}
+
+fn exhaustive_at(c: &Case, r_max: f64) -> Option<(u32, u32)> {
+    if r_max < c.r_min {
+        return None;
+    }
     let e = 2.0 * (c.d0 / c.df).ln();
-    let (x_lo, x_hi) = (-(-c.r_min).ln_1p(), -(-c.r_max).ln_1p());
+    let (x_lo, x_hi) = (-(-c.r_min).ln_1p(), -(-r_max).ln_1p());
     let drawn = c.start_strain > 0.0;
     let fits = |n: u32, runs: u32| {
         splits(n, runs, drawn)

@@ -63,6 +63,20 @@ impl Stock {
     }
 
     /// The stock in words.
+    /// Decimals (mm) the stock is given to: the shortest form of the step, or
+    /// the most of the sizes, at most 6.
+    pub(super) fn decimals(&self) -> usize {
+        let of = |x: &f64| {
+            let t = x.to_string();
+            t.split_once('.').map_or(0, |(_, f)| f.len())
+        };
+        match self {
+            Stock::Step(s) => of(s),
+            Stock::Sizes(v) => v.iter().map(of).max().unwrap_or(0),
+        }
+        .min(6)
+    }
+
     pub(super) fn words(&self) -> String {
         match self {
             Stock::Step(s) => format!("steps of {s} mm (target.die_step_mm)"),

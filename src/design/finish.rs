@@ -181,7 +181,8 @@ pub(super) fn finish(
             });
         }
     }
-    let notes = notes(input, chooser, tier, one_level, stock, &report);
+    let mut notes = notes(input, chooser, tier, one_level, stock, &report);
+    off_aim_note(input, split, &report, &mut notes);
     let ratios: Vec<f64> = report.passes.iter().filter_map(|r| r.draw_ratio).collect();
     let aimed = input.window.map(|w| file.annealed_law().stress_mpa(w.aim));
     let summary = DesignSummary {
@@ -209,6 +210,7 @@ pub(super) fn finish(
         draw_ratio_aimed: chooser.ctx.ratio_cap,
         dies: die_room::die_list(&dies),
         die_rounding: stock.map(Stock::words),
+        die_decimals: stock.map_or(3, Stock::decimals),
         runs: run_plans,
         anneals,
         notes,
@@ -256,6 +258,29 @@ pub(super) fn notes(
         )
     };
     match tier {
+        _ if heavy_tier(input, chooser) => {}
+        _ if chooser.ctx.fewer_anneals_than.get().is_some() => {
+            let (at, k) = chooser.ctx.fewer_anneals_than.get().unwrap_or_default();
+            let n = report
+                .passes
+                .iter()
+                .filter(|r| r.kind == crate::evaluation::StepKind::Anneal)
+                .count();
+            let held = if cap < l.draw_ratio_max {
+                format!("the warn line {cap}")
+            } else {
+                format!("limits.draw_ratio_max {cap} (passes may sit in the warning zone)")
+            };
+            let tighter = if at == aim {
+                aim_words.clone()
+            } else {
+                format!("the warn line {at}")
+            };
+            notes.push(format!(
+                "passes held to {held} rather than {tighter}, which would take {k} anneal{} where this design takes {n}",
+                if k == 1 { "" } else { "s" }
+            ));
+        }
         0 => notes.push(format!("every pass at or under {aim_words}")),
         _ if cap < l.draw_ratio_max => notes.push(format!(
             "no design within {} passes keeps every pass at or under {aim_words}: passes held to the warn line {cap}",
@@ -266,6 +291,7 @@ pub(super) fn notes(
             input.max_passes, l.draw_ratio_warn, l.draw_ratio_max
         )),
     }
+    reduction_note(input, chooser, report, &mut notes);
     if target.strategy == Strategy::EqualRatio {
         let whole = target.ratio_across == RatioAcross::WholeSchedule;
         if !one_level {
@@ -310,4 +336,82 @@ pub(super) fn notes(
         }
     }
     notes
+}
+
+/// The heavy-reduction tier in words: when the reduction was held to the
+/// heavy-reduction line and some pass sits near it (within 1 %), or when no
+/// design within the passes could be held there (the last tier).
+fn reduction_note(
+    input: &Input,
+    chooser: &Chooser,
+    report: &crate::evaluation::ScheduleReport,
+    notes: &mut Vec<String>,
+) {
+    let rw = input.reduction_warn;
+    let key = if input.file.limits.reduction_warn.is_some() {
+        format!("limits.reduction_warn {rw}")
+    } else {
+        format!("limits.reduction_warn {rw} (the default; set limits.reduction_warn)")
+    };
+    let heaviest = report
+        .passes
+        .iter()
+        .filter_map(|r| r.area_reduction)
+        .fold(0.0, f64::max);
+    if chooser.ctx.r_max_is_warn {
+        if heaviest > 0.99 * rw {
+            notes.push(format!(
+                "every pass's area reduction at or under {key}, the line over which check flags heavy-reduction"
+            ));
+        }
+    } else if heavy_tier(input, chooser) {
+        let within = match input.passes {
+            Some(n) => format!("with {}", passes_in_words(&Some(n))),
+            None => format!("within {} passes", input.max_passes),
+        };
+        notes.push(format!(
+            "no design {within} keeps every pass's area reduction at or under {key}: some passes are heavier (check flags them heavy-reduction){}, with draw ratios held to limits.draw_ratio_max {}",
+            input
+                .target
+                .reduction_max
+                .map_or_else(String::new, |r| format!(", up to target.reduction_max {r}")),
+            input.file.limits.draw_ratio_max
+        ));
+    }
+}
+
+/// Whether the design was made in the last tier, the reduction held to
+/// `target.reduction_max` alone (never on a slip machine, whose cones set the dies).
+fn heavy_tier(input: &Input, chooser: &Chooser) -> bool {
+    !chooser.ctx.r_max_is_warn
+        && input
+            .target
+            .reduction_max
+            .is_none_or(|r| r > input.reduction_warn)
+        && input.machine.is_none_or(|m| m.kind != MachineKind::Slip)
+}
+
+/// With a temper anneal whose run could not sit at the window's aim (the
+/// fewest passes put it elsewhere in the window), the finished flow stress
+/// in words, in place of the note that says the run is set by the middle.
+fn off_aim_note(
+    input: &Input,
+    split: &Split,
+    report: &crate::evaluation::ScheduleReport,
+    notes: &mut Vec<String>,
+) {
+    let (Some(_), Some(ws), Some(w)) = (split.temper, input.window, input.target.strength_mpa)
+    else {
+        return;
+    };
+    let aimed = input.file.annealed_law().stress_mpa(ws.aim);
+    let finished = report.summary.final_flow_stress_mpa;
+    if (finished - aimed).abs() <= 1e-6 * aimed {
+        return;
+    }
+    notes.retain(|n| !n.starts_with("the temper run is set by the window's middle"));
+    notes.push(format!(
+        "the temper run could not sit at the aimed {aimed:.1} MPa within the passes every other limit allows: the fewest passes finish the wire at {finished:.1} MPa, inside the {}-{} MPa window",
+        w.min, w.max
+    ));
 }

@@ -26,6 +26,22 @@ pub(super) struct Input<'f> {
     pub(super) max_anneals: Option<u32>,
     /// The machine the design runs on, when there is one.
     pub(super) machine: Option<&'f Machine>,
+    /// The area reduction above which `check` flags a pass `heavy-reduction`:
+    /// `limits.reduction_warn`, else [`crate::evaluation::REDUCTION_WARN_SINGLE_DRAFT`]
+    /// on a single-block machine and [`crate::evaluation::REDUCTION_WARN_WIRE`]
+    /// otherwise (the value `check` uses).
+    pub(super) reduction_warn: f64,
+}
+
+/// One margin tier of the search: the draw ratio the passes are held to and
+/// whether each pass's area reduction is also held to the heavy-reduction line.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub(super) struct Tier {
+    /// Index into [`Input::caps`].
+    pub(super) ratio: usize,
+    /// The reduction is held to `min(target.reduction_max, reduction_warn)`
+    /// (else to `target.reduction_max` alone, the last tier).
+    pub(super) light: bool,
 }
 
 pub(super) fn read_input<'f>(
@@ -142,6 +158,13 @@ pub(super) fn read_input<'f>(
             target.max_anneals
         },
         machine,
+        reduction_warn: file.limits.reduction_warn.unwrap_or(
+            if machine.is_some_and(|m| m.kind == MachineKind::SingleBlock) {
+                crate::evaluation::REDUCTION_WARN_SINGLE_DRAFT
+            } else {
+                crate::evaluation::REDUCTION_WARN_WIRE
+            },
+        ),
     })
 }
 
@@ -184,6 +207,42 @@ fn on_machine(target: &Target, machine: Option<&Machine>) -> Result<Option<u32>,
 }
 
 impl<'f> Input<'f> {
+    /// The margin tiers in the order tried: each ratio cap (aim, warn line,
+    /// limit) with every pass's reduction at or under the heavy-reduction
+    /// line, then, only when `target.reduction_max` allows more than that
+    /// line, the limit with the reduction up to `target.reduction_max`.
+    pub(super) fn tiers(&self) -> Vec<Tier> {
+        let mut v: Vec<Tier> = (0..self.caps.len())
+            .map(|ratio| Tier { ratio, light: true })
+            .collect();
+        if self
+            .target
+            .reduction_max
+            .is_none_or(|r| r > self.reduction_warn)
+        {
+            v.push(Tier {
+                ratio: self.caps.len() - 1,
+                light: false,
+            });
+        }
+        v
+    }
+
+    /// The pass chooser of a tier.
+    pub(super) fn tier_chooser(&self, tier: Tier) -> Result<Chooser<'f>, DesignError> {
+        let mut c = self.chooser(self.caps[tier.ratio])?;
+        if tier.light
+            && self
+                .target
+                .reduction_max
+                .is_none_or(|r| r > self.reduction_warn)
+        {
+            c.ctx.r_max = Some(self.reduction_warn);
+            c.ctx.r_max_is_warn = true;
+        }
+        Ok(c)
+    }
+
     pub(super) fn chooser(&self, cap: f64) -> Result<Chooser<'f>, DesignError> {
         let file = self.file;
         let mut dies = Vec::with_capacity(self.angles.len());
@@ -217,6 +276,8 @@ impl<'f> Input<'f> {
                 ratio_cap: cap,
                 r_min: self.target.reduction_min,
                 r_max: self.target.reduction_max,
+                r_max_is_warn: false,
+                fewer_anneals_than: std::cell::Cell::new(None),
                 delta_max: file.limits.delta_max,
                 cold_work: file.material.cold_work_limit,
                 finish_mm: self.finish_mm,

@@ -40,7 +40,7 @@ impl Breach {
         let v = |x: Option<f64>| x.map_or_else(String::new, |x| format!(" {x}"));
         match self {
             Breach::Ratio(_) => c.cap_name(),
-            Breach::ReductionMax(_) => format!("target.reduction_max{}", v(c.r_max)),
+            Breach::ReductionMax(_) => format!("{}{}", c.r_max_name(), v(c.r_max)),
             Breach::ReductionMin(_) => format!("target.reduction_min{}", v(c.r_min)),
             Breach::Delta(_) => format!("limits.delta_max{}", v(c.delta_max)),
             Breach::ColdWork(_) => format!("material.cold_work_limit{}", v(c.cold_work)),
@@ -59,8 +59,9 @@ impl Breach {
         match self {
             Breach::Ratio(x) => format!("draw ratio {x:.4} over {}", c.cap_name()),
             Breach::ReductionMax(r) => format!(
-                "reduction {:.2} % over target.reduction_max {}",
+                "reduction {:.2} % over {} {}",
                 100.0 * r,
+                c.r_max_name(),
                 c.r_max.unwrap_or(1.0)
             ),
             Breach::ReductionMin(r) => format!(
@@ -123,6 +124,12 @@ pub(super) struct Ctx<'a> {
     pub(super) ratio_cap: f64,
     pub(super) r_min: Option<f64>,
     pub(super) r_max: Option<f64>,
+    /// `r_max` is the heavy-reduction line `limits.reduction_warn` (as `check`
+    /// takes it), not `target.reduction_max`.
+    pub(super) r_max_is_warn: bool,
+    /// The design was made at this cap although a tighter one had a design:
+    /// that cap and its anneals, more than this one needs.
+    pub(super) fewer_anneals_than: Cell<Option<(f64, usize)>>,
     pub(super) delta_max: Option<f64>,
     pub(super) cold_work: Option<f64>,
     pub(super) finish_mm: f64,
@@ -138,6 +145,15 @@ pub(super) struct Ctx<'a> {
 pub(super) type PickKey = (usize, u64, u64, u64, bool);
 
 impl Ctx<'_> {
+    /// The key the largest reduction comes from.
+    pub(super) fn r_max_name(&self) -> &'static str {
+        if self.r_max_is_warn {
+            "limits.reduction_warn"
+        } else {
+            "target.reduction_max"
+        }
+    }
+
     /// The ratio the passes are held to, as the file names it.
     pub(super) fn cap_name(&self) -> String {
         if self.ratio_cap >= self.ratio_max {

@@ -31,7 +31,11 @@
 //! default [`DEFAULT_AIM_FRACTION`] of the warn line), then to the warn line,
 //! then to the limit: the first of these a design within `max_passes` meets is
 //! used, so no pass is planted in the warning zone when a design outside it
-//! exists. Within a cap the design has the fewest passes, then the fewest anneals.
+//! exists. At each of these caps every pass's area reduction is also held at
+//! or under the heavy-reduction line `check` flags (`limits.reduction_warn`,
+//! or its wire / single-block default); only a last tier at the limit lets
+//! passes take up to `target.reduction_max`. Within a cap the design has the
+//! fewest passes, then the fewest anneals.
 //!
 //! The die angle of a pass is the one from the stock that minimises the
 //! governing drawing stress among those with `Delta <= delta_max`. Every loop
@@ -54,7 +58,7 @@ mod strategies;
 pub use error::DesignError;
 pub use model::{
     AnnealPlan, AnnealReason, Design, DesignOptions, DesignSummary, DiameterRange, DieOrder,
-    RunPlan,
+    Prefer, RunPlan,
 };
 
 use crate::evaluation::{evaluate_on, EvaluateOptions};
@@ -155,18 +159,55 @@ pub fn design_on(
     options: &DesignOptions,
     machine: Option<&Machine>,
 ) -> Result<Design, DesignError> {
+    if file
+        .target
+        .as_ref()
+        .is_some_and(|t| t.prefer == Prefer::Speed)
+    {
+        return fastest(file, options, machine);
+    }
     let input = read_input(file, options, machine)?;
     if let Some(m) = machine.filter(|m| m.kind == MachineKind::Slip) {
         return slip::design_slip(&input, options, m);
     }
     let max_n = input.max_passes.max(input.passes.unwrap_or(0));
     let mut build_error = None;
-    for (tier, &cap) in input.caps.iter().enumerate() {
-        let chooser = input.chooser(cap)?;
+    let tiers = input.tiers();
+    // The anneals the last tier holding the reduction line needs, worked out
+    // only when an earlier tier's design has more anneals than the cold-work
+    // limit and the temper window force: a tier that needs more than the last
+    // is passed over for a later one that needs no more.
+    let last_light = tiers.iter().rposition(|t| t.light);
+    let mut fewest_anneals: Option<Option<usize>> = None;
+    let mut passed_over: Option<(f64, usize)> = None;
+    for (i, &t) in tiers.iter().enumerate() {
+        let tier = t.ratio;
+        let chooser = input.tier_chooser(t)?;
         let mut tables = input.tables(&chooser, max_n);
         let Some(split) = tables.fewest(input.pass_range(), input.max_anneals)? else {
             continue;
         };
+        let k = anneals_of(&split);
+        if k > tables.least_anneals() && last_light.is_some_and(|l| i < l) {
+            let least = match fewest_anneals {
+                Some(x) => x,
+                None => {
+                    let l = tiers[last_light.expect("checked")];
+                    let c = input.tier_chooser(l)?;
+                    let mut tb = input.tables(&c, max_n);
+                    let x = tb
+                        .fewest(input.pass_range(), input.max_anneals)?
+                        .map(|s| anneals_of(&s));
+                    fewest_anneals = Some(x);
+                    x
+                }
+            };
+            if least.is_some_and(|m| m < k) {
+                passed_over.get_or_insert((input.caps[tier], k));
+                continue;
+            }
+        }
+        chooser.ctx.fewer_anneals_than.set(passed_over);
         match assemble(&input, options, &chooser, &mut tables, &split, tier) {
             Ok(d) => return Ok(d),
             Err(e) => {
@@ -178,6 +219,116 @@ pub fn design_on(
         return Err(e);
     }
     Err(diagnose(&input)?)
+}
+
+/// The anneals of a split: one between each run and the next (an empty first
+/// run is an anneal before the first die, an empty temper run one after the last).
+fn anneals_of(split: &Split) -> usize {
+    split.middle.len() + usize::from(split.temper.is_some())
+}
+
+/// `target.prefer: speed`: the design of each strategy on the machine (the
+/// file's first), the one of highest attainable speed among those of the
+/// cleanest verdict (ok before warn) kept (the first on a tie), with a note giving every strategy's speed. A slip machine's cones
+/// set its dies whatever the strategy: its one design is kept. Without a
+/// machine there is no speed to compare: an error naming the key.
+fn fastest(
+    file: &ScheduleFile,
+    options: &DesignOptions,
+    machine: Option<&Machine>,
+) -> Result<Design, DesignError> {
+    let Some(m) = machine else {
+        return Err(DesignError::Input {
+            key: "target.prefer".into(),
+            why: "speed needs a machine to have an attainable speed (machine: in the file, or --machine); leave it out, or give prefer: strategy".into(),
+        });
+    };
+    let mut plain = file.clone();
+    let own = match plain.target.as_mut() {
+        Some(t) => {
+            t.prefer = Prefer::Strategy;
+            t.strategy
+        }
+        None => return design_on(&plain, options, machine),
+    };
+    if m.kind == MachineKind::Slip {
+        return design_on(&plain, options, machine);
+    }
+    let mut order = vec![own];
+    order.extend(
+        [
+            Strategy::EqualRatio,
+            Strategy::EqualStrain,
+            Strategy::Tapered,
+        ]
+        .into_iter()
+        .filter(|s| *s != own),
+    );
+    let mut best: Option<Design> = None;
+    let mut first_error = None;
+    let mut tried = Vec::new();
+    for s in order {
+        let mut f = plain.clone();
+        if let Some(t) = f.target.as_mut() {
+            t.strategy = s;
+        }
+        let name = strategy_name(s);
+        match design_on(&f, options, machine) {
+            Ok(d) => {
+                let v = d.summary.attainable_speed_m_s;
+                tried.push(match v {
+                    Some(v) => format!("{name} {v:.3} m/s"),
+                    None => format!("{name} no attainable speed"),
+                });
+                // A cleaner verdict first (no pass into a warning for speed),
+                // then the higher speed.
+                let faster = match &best {
+                    None => true,
+                    Some(b) => match rank(&d).cmp(&rank(b)) {
+                        std::cmp::Ordering::Less => true,
+                        std::cmp::Ordering::Greater => false,
+                        std::cmp::Ordering::Equal => {
+                            v.is_some_and(|v| b.summary.attainable_speed_m_s.is_none_or(|w| v > w))
+                        }
+                    },
+                };
+                if faster {
+                    best = Some(d);
+                }
+            }
+            Err(e) => {
+                tried.push(format!("{name} no design"));
+                first_error.get_or_insert(e);
+            }
+        }
+    }
+    let Some(mut d) = best else {
+        return Err(first_error.expect("a strategy was tried"));
+    };
+    d.summary.notes.push(format!(
+        "target.prefer speed: {} kept, the highest attainable speed of the strategies ({})",
+        strategy_name(d.summary.strategy),
+        tried.join(", ")
+    ));
+    Ok(d)
+}
+
+/// A design's verdict as a rank: ok 0, warn 1, over 2.
+fn rank(d: &Design) -> u8 {
+    match d.report.summary.verdict {
+        crate::evaluation::Verdict::Ok => 0,
+        crate::evaluation::Verdict::Warn => 1,
+        crate::evaluation::Verdict::Over => 2,
+    }
+}
+
+/// A strategy as the file names it.
+fn strategy_name(s: Strategy) -> &'static str {
+    match s {
+        Strategy::EqualRatio => "equal-ratio",
+        Strategy::EqualStrain => "equal-strain",
+        Strategy::Tapered => "tapered",
+    }
 }
 
 /// The designed schedule as YAML that `coldpass check` reads back to the

@@ -111,6 +111,11 @@ pub struct DesignSummary {
     pub dies: Vec<DieOrder>,
     /// Die-room step or sizes the dies were rounded to, in words (`None`: full precision).
     pub die_rounding: Option<String>,
+    /// Decimals (mm) the die room works to, for showing die sizes: those of
+    /// `target.die_step_mm`, or the most of `target.die_sizes_mm`, at most 6;
+    /// 3 without rounding (a micrometre). Not in JSON, which keeps full precision.
+    #[serde(skip)]
+    pub die_decimals: usize,
     /// The runs between anneals.
     pub runs: Vec<RunPlan>,
     /// The anneals, in order.
@@ -169,4 +174,27 @@ pub struct DesignOptions {
     /// A governing method overriding `limits.method` (it is written into the
     /// designed schedule so that `check` uses it too).
     pub method: Option<Method>,
+}
+
+/// Which feasible design `target.prefer` keeps.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, serde::Serialize, serde::Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum Prefer {
+    /// The design `target.strategy` lays out (the default).
+    #[default]
+    Strategy,
+    /// On a machine: of the designs each strategy (`equal-ratio`,
+    /// `equal-strain`, `tapered`) lays out at the machine's pass count and
+    /// no anneal, the one with the highest attainable finish speed (m/s, as
+    /// `check --machine` reports it; the tonnes per shift follow it) among
+    /// those of the cleanest verdict (a design with no warning before one
+    /// with), the file's strategy kept on a tie.
+    Speed,
+}
+
+impl Prefer {
+    /// Whether this is the default (`strategy`): the key is then not written.
+    pub fn is_default(&self) -> bool {
+        *self == Prefer::Strategy
+    }
 }

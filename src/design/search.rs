@@ -258,6 +258,25 @@ impl<'c, 'f> Tables<'c, 'f> {
         Ok(None)
     }
 
+    /// The fewest anneals any design can have, whatever the draw-ratio cap:
+    /// those the cold-work limit forces (the first run carries at most its
+    /// strain cap, each later one the annealed cap, as in `check`), and one
+    /// when a temper window cannot be met drawn straight through.
+    pub(super) fn least_anneals(&mut self) -> usize {
+        let e = self.total;
+        let eps = tol(e);
+        let c0 = self.first.class.strain_cap.max(0.0);
+        let ca = self.annealed().class.strain_cap.max(0.0);
+        let mut k = 0usize;
+        while c0 + k as f64 * ca < e - eps && k <= super::PASSES_ALLOWED as usize {
+            k += 1;
+        }
+        if self.window.is_some() && !self.straight_ok {
+            k = k.max(1);
+        }
+        k
+    }
+
     /// The programme row that holds designs with `k` anneals.
     fn row_of(&self, k: usize) -> usize {
         if self.window.is_some() {

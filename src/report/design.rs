@@ -12,9 +12,6 @@ use anyhow::Result;
 use coldpass::design::Design;
 use coldpass::evaluation::StepKind;
 use serde::Serialize;
-use tabled::builder::Builder;
-use tabled::settings::object::Columns;
-use tabled::settings::{Alignment, Style};
 
 use super::fixed;
 use super::{Format, Look};
@@ -135,8 +132,7 @@ pub fn summary_to(d: &Design, width: Option<usize>) -> String {
             "",
         ),
     }
-    let mut b = Builder::default();
-    b.push_record([
+    let header = [
         "run",
         "from mm",
         "to mm",
@@ -145,22 +141,26 @@ pub fn summary_to(d: &Design, width: Option<usize>) -> String {
         "passes",
         "draw ratio min",
         "draw ratio max",
-    ]);
-    for r in &s.runs {
-        b.push_record([
-            r.run.to_string(),
-            fixed(Some(r.from_diameter_mm), 3),
-            fixed(Some(r.to_diameter_mm), 3),
-            fixed(Some(r.strain), 3),
-            fixed(Some(r.strain_after), 3),
-            r.passes.to_string(),
-            fixed(Some(r.draw_ratio_min), 3),
-            fixed(Some(r.draw_ratio_max), 3),
-        ]);
-    }
-    let mut t = b.build();
-    t.with(Style::sharp());
-    t.modify(Columns::new(1..), Alignment::right());
+    ]
+    .map(String::from)
+    .to_vec();
+    let rows = s
+        .runs
+        .iter()
+        .map(|r| {
+            vec![
+                r.run.to_string(),
+                fixed(Some(r.from_diameter_mm), 3),
+                fixed(Some(r.to_diameter_mm), 3),
+                fixed(Some(r.strain), 3),
+                fixed(Some(r.strain_after), 3),
+                r.passes.to_string(),
+                fixed(Some(r.draw_ratio_min), 3),
+                fixed(Some(r.draw_ratio_max), 3),
+            ]
+        })
+        .collect();
+    let t = super::table::build(header, rows, width, &[]);
     out.push_str(&format!("\nRuns between anneals\n{t}\n"));
     if s.anneals.is_empty() {
         out.push_str("\nAnneals: none needed\n");
@@ -190,26 +190,29 @@ pub fn summary_to(d: &Design, width: Option<usize>) -> String {
             );
         }
     }
-    let mut b = Builder::default();
-    b.push_record(["die mm", "semi-angle deg", "land mm", "count"]);
-    for d in &s.dies {
-        b.push_record([
-            d.size_mm.to_string(),
-            d.semi_angle_deg.to_string(),
-            d.land_length_mm.to_string(),
-            d.count.to_string(),
-        ]);
-    }
-    let mut t = b.build();
-    t.with(Style::sharp());
-    t.modify(Columns::new(0..), Alignment::right());
+    let header = ["die mm", "semi-angle deg", "land mm", "count"]
+        .map(String::from)
+        .to_vec();
+    let rows = s
+        .dies
+        .iter()
+        .map(|d| {
+            vec![
+                fixed(Some(d.size_mm), s.die_decimals),
+                d.semi_angle_deg.to_string(),
+                d.land_length_mm.to_string(),
+                d.count.to_string(),
+            ]
+        })
+        .collect();
+    let t = super::table::build(header, rows, width, &[]);
     out.push('\n');
     line(
         &mut out,
         &format!(
             "Die list ({})",
             s.die_rounding.as_deref().unwrap_or(
-                "full precision: set target.die_step_mm or target.die_sizes_mm to round"
+                "sizes to 3 decimals, in full in JSON: set target.die_step_mm or target.die_sizes_mm to round"
             )
         ),
         "  ",
