@@ -149,3 +149,39 @@ fn die_sizes_are_shown_to_the_die_rooms_decimals_and_json_keeps_full_precision()
         }
     }
 }
+
+/// The runs table is what `check` reports for the designed schedule: each
+/// run's draw-ratio range is the range of the schedule's draw ratios over
+/// that run's passes (taken in order), on a machine with dancers too (whose
+/// back tension the layout leaves out) and after die-room rounding.
+#[test]
+fn each_runs_draw_ratio_range_is_checks_over_its_passes() {
+    for demo in [
+        "schedules-demo/design-steel-machine.yaml",
+        "schedules-demo/design-copper-temper.yaml",
+        "schedules-demo/design-copper-die-room.yaml",
+    ] {
+        let o = at_width(
+            120,
+            &["design", root(demo).to_str().unwrap(), "--format", "json"],
+        );
+        let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+        let ratios: Vec<f64> = v["schedule"]["passes"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .filter_map(|p| p["draw_ratio"].as_f64())
+            .collect();
+        let mut at = 0;
+        for run in v["design"]["runs"].as_array().unwrap() {
+            let n = run["passes"].as_u64().unwrap() as usize;
+            let own = &ratios[at..at + n];
+            let lo = own.iter().copied().fold(f64::INFINITY, f64::min);
+            let hi = own.iter().copied().fold(0.0, f64::max);
+            assert_eq!(run["draw_ratio_min"].as_f64().unwrap(), lo, "{demo}");
+            assert_eq!(run["draw_ratio_max"].as_f64().unwrap(), hi, "{demo}");
+            at += n;
+        }
+        assert_eq!(at, ratios.len(), "{demo}");
+    }
+}

@@ -183,7 +183,21 @@ pub(super) fn finish(
     }
     let mut notes = notes(input, chooser, tier, one_level, stock, &report);
     off_aim_note(input, split, &report, &mut notes);
+    if let Some(m) = input.machine {
+        let most = m
+            .blocks
+            .iter()
+            .filter_map(|b| b.dancer_back_tension_mpa)
+            .fold(0.0, f64::max);
+        if most > 0.0 {
+            notes.push(format!(
+                "the passes were laid out without the dancers' back tension (up to {most} MPa on {}); the draw ratios shown, and the runs' range, are check's on the machine, with it",
+                m.name
+            ));
+        }
+    }
     let ratios: Vec<f64> = report.passes.iter().filter_map(|r| r.draw_ratio).collect();
+    runs_as_checked(&mut run_plans, &ratios);
     let aimed = input.window.map(|w| file.annealed_law().stress_mpa(w.aim));
     let summary = DesignSummary {
         strategy: target.strategy,
@@ -414,4 +428,21 @@ fn off_aim_note(
         "the temper run could not sit at the aimed {aimed:.1} MPa within the passes every other limit allows: the fewest passes finish the wire at {finished:.1} MPa, inside the {}-{} MPa window",
         w.min, w.max
     ));
+}
+
+/// Each run's draw-ratio range as `check` reports the designed schedule
+/// (rounded dies, die land, a machine's dancer back tension and all), so the
+/// runs table and the spreads agree with the pass table under them; the
+/// ratios are the draw passes in order, `runs` their counts in order.
+fn runs_as_checked(runs: &mut [RunPlan], ratios: &[f64]) {
+    if runs.iter().map(|r| r.passes).sum::<usize>() != ratios.len() {
+        return;
+    }
+    let mut at = 0;
+    for r in runs {
+        let own = &ratios[at..at + r.passes];
+        r.draw_ratio_min = own.iter().copied().fold(f64::INFINITY, f64::min);
+        r.draw_ratio_max = own.iter().copied().fold(0.0, f64::max);
+        at += r.passes;
+    }
 }
