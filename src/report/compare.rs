@@ -218,18 +218,7 @@ fn pass_panel(
             }
         }
         if with_flags {
-            let tagged = |tag: &str, r: Option<&StepReport>| {
-                r.map(|r| {
-                    r.flags
-                        .iter()
-                        .map(|f| format!("{tag} {}", f.name()))
-                        .collect::<Vec<_>>()
-                })
-                .unwrap_or_default()
-            };
-            let mut flags = tagged("A", x);
-            flags.extend(tagged("B", y));
-            row.push(flags.join("\n"));
+            row.push(ab_flags(x, y).join("\n"));
         }
         bld.push_record(row);
     }
@@ -500,17 +489,7 @@ fn page(
                     cells.push(signed(diff(v(x), v(y)), c, units));
                 }
             }
-            let tagged = |tag: &str, r: Option<&StepReport>| {
-                r.map(|r| {
-                    r.flags
-                        .iter()
-                        .map(|f| format!("{tag} {}", f.name()))
-                        .collect::<Vec<_>>()
-                })
-                .unwrap_or_default()
-            };
-            let mut flags = tagged("A", x);
-            flags.extend(tagged("B", y));
+            let flags = ab_flags(x, y);
             if with_flags {
                 cells.push(flags.join(", "));
             }
@@ -564,4 +543,20 @@ fn page(
         caution: a.caution.clone(),
     };
     Ok(html::render(&p))
+}
+
+/// The flags of step A then step B, each tagged with its side (`A near-draw-limit`).
+fn ab_flags(x: Option<&StepReport>, y: Option<&StepReport>) -> Vec<String> {
+    let tagged = |tag: &str, r: Option<&StepReport>| {
+        r.map(|r| {
+            r.flags
+                .iter()
+                .map(|f| format!("{tag} {}", f.name()))
+                .collect::<Vec<_>>()
+        })
+        .unwrap_or_default()
+    };
+    let mut flags = tagged("A", x);
+    flags.extend(tagged("B", y));
+    flags
 }
