@@ -111,11 +111,12 @@ pub(super) fn design_slip(
         .retain(|t| !t.starts_with("no design within"));
     let s = |j: usize| 100.0 * -f64::exp_m1(-((n - j) as f64) * delta);
     d.summary.notes.push(format!(
-        "slip machine {name}: the cone ratios set dies 2-{n}, each elongating the wire {:.2} % more than its capstan's step ratio, for a slip of {:.2} % at capstan {} rising to {:.2} % at capstan 1 (half the slip limit {}); die 1 takes the rest of the reduction",
+        "slip machine {name}: the cone ratios set dies 2-{n}, each elongating the wire {:.2} % more than its capstan's step ratio, for a slip of {:.2} % at capstan {} rising to {:.2} % at capstan 1 (half the slip limit {:.0} % in logarithmic terms: 1 - sqrt(1 - {})); die 1 takes the rest of the reduction",
         100.0 * f64::exp_m1(delta),
         s(n - 1),
         n - 1,
         s(1),
+        100.0 * m.slip_limit(),
         m.slip_limit()
     ));
     Ok(d)

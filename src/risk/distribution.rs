@@ -485,18 +485,22 @@ impl Law {
             (_, Some(c)) => format!("cv {c}"),
             _ => String::new(),
         };
-        let lim = |x: f64| {
-            if x.is_finite() {
-                format!("{x}")
+        // One side of the range about the nominal: `nominal -0.5`, or the
+        // nominal itself when that side has no room (never `-0`).
+        let side = |sign: char, x: f64| {
+            if x == 0.0 {
+                "nominal".to_string()
+            } else if x.is_finite() {
+                format!("nominal {sign}{x}")
             } else {
-                "inf".to_string()
+                format!("nominal {sign}inf")
             }
         };
         match *self {
             Law::Normal { sd, cv } => format!("normal, {}", size(sd, cv)),
             Law::Lognormal { sd, cv } => format!("lognormal, {}", size(sd, cv)),
             Law::Uniform { below, above } => {
-                format!("uniform, nominal -{} to +{}", lim(below), lim(above))
+                format!("uniform, {} to {}", side('-', below), side('+', above))
             }
             Law::Truncated {
                 sd,
@@ -504,10 +508,10 @@ impl Law {
                 below,
                 above,
             } => format!(
-                "truncated normal, {}, within nominal -{} to +{}",
+                "truncated normal, {}, within {} to {}",
                 size(sd, cv),
-                lim(below),
-                lim(above)
+                side('-', below),
+                side('+', above)
             ),
         }
     }
