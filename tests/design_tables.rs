@@ -185,3 +185,29 @@ fn each_runs_draw_ratio_range_is_checks_over_its_passes() {
         assert_eq!(at, ratios.len(), "{demo}");
     }
 }
+
+/// `--units us` converts the design's own summary too (sizes in inches,
+/// stresses in ksi, named beside each): every run's sizes against the JSON's
+/// millimetres over 25.4 (exact, NIST SP 811 B.8) at four decimals, and the
+/// finished flow stress against the JSON's MPa over 6.894757 (SP 811 B.8).
+#[test]
+fn the_design_summary_follows_us_units() {
+    let demo = root("schedules-demo/design-copper-temper.yaml");
+    let demo = demo.to_str().unwrap();
+    let json = at_width(120, &["design", demo, "--format", "json"]);
+    let v: serde_json::Value = serde_json::from_slice(&json.stdout).unwrap();
+    let us = String::from_utf8(at_width(120, &["design", demo, "--units", "us"]).stdout).unwrap();
+    let runs = section(&us, "Runs between anneals", "Anneals");
+    assert!(runs.contains("from in") && runs.contains("to in"), "{runs}");
+    for run in v["design"]["runs"].as_array().unwrap() {
+        for key in ["from_diameter_mm", "to_diameter_mm"] {
+            let inch = format!("{:.4}", run[key].as_f64().unwrap() / 25.4);
+            assert!(runs.contains(&inch), "{inch} not in {runs}");
+        }
+    }
+    let finished = v["design"]["finished_flow_stress_mpa"].as_f64().unwrap() / 6.894_757;
+    let shown = format!("finished flow stress {finished:.2} ksi");
+    assert!(us.contains(&shown), "{shown} not in the summary");
+    let head: String = us.lines().take(6).collect::<Vec<_>>().join("\n");
+    assert!(!head.contains("MPa") && !head.contains(" mm"), "{head}");
+}

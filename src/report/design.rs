@@ -14,6 +14,7 @@ use coldpass::evaluation::StepKind;
 use serde::Serialize;
 
 use super::fixed;
+use super::units::{Quantity, Units};
 use super::{Format, Look};
 
 #[derive(Serialize)]
@@ -30,7 +31,7 @@ pub fn render(d: &Design, format: Format, look: &Look) -> Result<Vec<u8>> {
     };
     Ok(match format {
         Format::Table => {
-            let mut s = summary_to(d, Some(look.table.width));
+            let mut s = summary_to(d, Some(look.table.width), look.table.units);
             s.push('\n');
             s.push_str(
                 &super::table::schedule(&d.report, &look.table).map_err(anyhow::Error::msg)?,
@@ -56,14 +57,29 @@ fn strategy_name(d: &Design) -> String {
 }
 
 /// The short design section, unwrapped (the HTML page wraps it itself).
-pub fn summary(d: &Design) -> String {
-    summary_to(d, None)
+pub fn summary(d: &Design, units: Units) -> String {
+    summary_to(d, None, units)
 }
 
 /// The short design section of the table output, its lines and notes wrapped
-/// at words to `width` when given (as the check table's notes are).
-pub fn summary_to(d: &Design, width: Option<usize>) -> String {
+/// at words to `width` when given (as the check table's notes are); sizes,
+/// stresses and speeds in `units` (the factors of [`Quantity::convert`],
+/// NIST SP 811), the unit named beside each.
+pub fn summary_to(d: &Design, width: Option<usize>, units: Units) -> String {
     let s = &d.summary;
+    let (mm, mpa) = (Quantity::Length.label(units), Quantity::Stress.label(units));
+    let len = |x: f64, dec: usize| {
+        fixed(
+            Some(Quantity::Length.convert(x, units)),
+            Quantity::Length.decimals(dec, units),
+        )
+    };
+    let stress = |x: Option<f64>| {
+        fixed(
+            x.map(|v| Quantity::Stress.convert(v, units)),
+            Quantity::Stress.decimals(1, units),
+        )
+    };
     let mut out = String::new();
     let line = |out: &mut String, text: &str, indent: &str| {
         match width {
@@ -96,12 +112,15 @@ pub fn summary_to(d: &Design, width: Option<usize>) -> String {
     ), "");
     if let Some(name) = &s.machine {
         let speed = match (s.attainable_speed_m_s, s.attainable_t_per_shift) {
-            (Some(v), Some(t)) => format!(
-                "attainable finish speed {v:.2} m/s ({:.0} m/min), {t:.2} t per shift",
-                60.0 * v
-            ),
-            (Some(v), None) => {
-                format!("attainable finish speed {v:.2} m/s ({:.0} m/min)", 60.0 * v)
+            (Some(v), t) => {
+                let shown = match units {
+                    Units::Si => format!("{v:.2} m/s ({:.0} m/min)", 60.0 * v),
+                    Units::Us => format!("{:.0} ft/min", Quantity::Speed.convert(v, units)),
+                };
+                let t = t
+                    .map(|t| format!(", {t:.2} t per shift"))
+                    .unwrap_or_default();
+                format!("attainable finish speed {shown}{t}")
             }
             _ => "no attainable speed (see the notes)".into(),
         };
@@ -115,34 +134,33 @@ pub fn summary_to(d: &Design, width: Option<usize>) -> String {
         (Some(w), aim) => line(
             &mut out,
             &format!(
-                "Temper window {}-{} MPa, aimed at {} MPa; finished flow stress {} MPa",
-                w.min,
-                w.max,
-                fixed(aim, 1),
-                fixed(Some(s.finished_flow_stress_mpa), 1)
+                "Temper window {}-{} {mpa}, aimed at {} {mpa}; finished flow stress {} {mpa}",
+                stress(Some(w.min)),
+                stress(Some(w.max)),
+                stress(aim),
+                stress(Some(s.finished_flow_stress_mpa))
             ),
             "",
         ),
         (None, _) => line(
             &mut out,
             &format!(
-                "Finished flow stress {} MPa (no temper window given)",
-                fixed(Some(s.finished_flow_stress_mpa), 1)
+                "Finished flow stress {} {mpa} (no temper window given)",
+                stress(Some(s.finished_flow_stress_mpa))
             ),
             "",
         ),
     }
     let header = [
-        "run",
-        "from mm",
-        "to mm",
-        "run strain",
-        "strain at end",
-        "passes",
-        "draw ratio min",
-        "draw ratio max",
+        "run".to_string(),
+        format!("from {mm}"),
+        format!("to {mm}"),
+        "run strain".into(),
+        "strain at end".into(),
+        "passes".into(),
+        "draw ratio min".into(),
+        "draw ratio max".into(),
     ]
-    .map(String::from)
     .to_vec();
     let rows = s
         .runs
@@ -150,8 +168,8 @@ pub fn summary_to(d: &Design, width: Option<usize>) -> String {
         .map(|r| {
             vec![
                 r.run.to_string(),
-                fixed(Some(r.from_diameter_mm), 3),
-                fixed(Some(r.to_diameter_mm), 3),
+                len(r.from_diameter_mm, 3),
+                len(r.to_diameter_mm, 3),
                 fixed(Some(r.strain), 3),
                 fixed(Some(r.strain_after), 3),
                 r.passes.to_string(),
@@ -169,20 +187,14 @@ pub fn summary_to(d: &Design, width: Option<usize>) -> String {
         for a in &s.anneals {
             let window = a
                 .window_mm
-                .map(|w| {
-                    format!(
-                        " [window {}-{} mm]",
-                        fixed(Some(w.min_mm), 3),
-                        fixed(Some(w.max_mm), 3)
-                    )
-                })
+                .map(|w| format!(" [window {}-{} {mm}]", len(w.min_mm, 3), len(w.max_mm, 3)))
                 .unwrap_or_default();
             line(
                 &mut out,
                 &format!(
-                    "- step {} at {} mm ({}){window}: {}",
+                    "- step {} at {} {mm} ({}){window}: {}",
                     a.step,
-                    fixed(Some(a.diameter_mm), 3),
+                    len(a.diameter_mm, 3),
                     a.reason.name(),
                     a.why
                 ),
@@ -190,17 +202,24 @@ pub fn summary_to(d: &Design, width: Option<usize>) -> String {
             );
         }
     }
-    let header = ["die mm", "semi-angle deg", "land mm", "count"]
-        .map(String::from)
-        .to_vec();
+    let header = [
+        format!("die {mm}"),
+        "semi-angle deg".into(),
+        format!("land {mm}"),
+        "count".into(),
+    ]
+    .to_vec();
     let rows = s
         .dies
         .iter()
         .map(|d| {
             vec![
-                fixed(Some(d.size_mm), s.die_decimals),
+                len(d.size_mm, s.die_decimals),
                 d.semi_angle_deg.to_string(),
-                d.land_length_mm.to_string(),
+                match units {
+                    Units::Si => d.land_length_mm.to_string(),
+                    Units::Us => len(d.land_length_mm, 3),
+                },
                 d.count.to_string(),
             ]
         })

@@ -493,7 +493,7 @@ pub fn design_page(d: &Design, units: Units) -> Result<String> {
     page.kind = "Schedule design".to_string();
     page.facts.push((
         "Design".to_string(),
-        super::design::summary(d)
+        super::design::summary(d, units)
             .lines()
             .take_while(|l| !l.trim().is_empty())
             .collect::<Vec<_>>()
