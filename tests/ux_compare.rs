@@ -281,3 +281,26 @@ fn columns_and_wide_pick_the_compared_quantities() {
     assert_eq!(bad.status.code(), Some(1));
     assert!(stderr(&bad).contains("no column is named 'bogus'"));
 }
+
+/// `--plot` has no chart to draw for two schedules: it is refused as bad
+/// usage (exit 2) naming what to do instead, and no file is written (it was
+/// once accepted and silently ignored).
+#[test]
+fn compare_refuses_plot_and_writes_nothing() {
+    let dir = tempfile::tempdir().unwrap();
+    let svg = dir.path().join("x.svg");
+    let o = common::coldpass(&[
+        "compare",
+        "schedules-demo/copper-building-wire.yaml",
+        "schedules-demo/steel-multiblock.yaml",
+        "--plot",
+        svg.to_str().unwrap(),
+    ]);
+    assert_eq!(o.status.code(), Some(2), "{}", common::stderr(&o));
+    assert!(
+        common::stderr(&o).contains("--plot"),
+        "{}",
+        common::stderr(&o)
+    );
+    assert!(!svg.exists());
+}

@@ -129,7 +129,8 @@ impl Command {
 
 /// A combination of options clap's definitions cannot refuse by themselves,
 /// with the message that says what is allowed: `--summary` changes only the
-/// CSV, so with another format it would be silently ignored.
+/// CSV, so with another format it would be silently ignored; compare has two
+/// schedules and no chart of its own, so `--plot` there is refused too.
 pub fn usage_conflict(command: &Command) -> Option<String> {
     use crate::report::Format;
     let (name, report, view) = match command {
@@ -138,6 +139,14 @@ pub fn usage_conflict(command: &Command) -> Option<String> {
         Command::Design(a) => ("design", &a.report, &a.view),
         _ => return None,
     };
+    if name == "compare" && report.plot.is_some() {
+        return Some(
+            "--plot draws one schedule's chart, and compare reads two: draw each with \
+             coldpass check FILE --plot FILE.svg, or put their figures side by side on the page \
+             (--format html)"
+                .into(),
+        );
+    }
     if !view.summary {
         return None;
     }
