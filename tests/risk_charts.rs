@@ -280,3 +280,41 @@ fn the_plot_file_follows_us_units() {
         assert!(!us.iter().any(|t| t.contains("MPa")), "{args:?}: {us:?}");
     }
 }
+
+/// Every chart a report writes carries the whole caution (both of its
+/// sentences), inside the picture: check, check on a machine, design and risk.
+#[test]
+fn every_chart_carries_the_whole_caution_inside_the_picture() {
+    for args in [
+        &["check", "schedules-demo/copper-building-wire.yaml"][..],
+        &["check", STEEL][..],
+        &["design", "schedules-demo/design-copper-temper.yaml"][..],
+        &["risk", RISK_DEMO, "--samples", "500"][..],
+    ] {
+        let svg = plot(args);
+        let height: f64 = svg
+            .split("height=\"")
+            .nth(1)
+            .and_then(|t| t.split('"').next())
+            .and_then(|t| t.parse().ok())
+            .expect("the picture's height");
+        let lines: Vec<(f64, String)> = texts(&svg)
+            .into_iter()
+            .map(|(el, t)| (attr(el, "y").unwrap_or(0.0), t))
+            .collect();
+        for part in [
+            "Planning estimates only",
+            "whips when it breaks",
+            "licensed practice govern",
+        ] {
+            let (y, _) = lines
+                .iter()
+                .find(|(_, t)| t.contains(part))
+                .unwrap_or_else(|| panic!("{args:?}: no '{part}' in the chart"));
+            assert!(
+                *y + 13.0 <= height,
+                "{args:?}: '{part}' at y {y} is cut off (height {height})"
+            );
+        }
+    }
+}

@@ -200,3 +200,25 @@ pub fn framed<'a, 'b>(
         .build_cartesian_2d(x, y)
         .map_err(err)
 }
+
+/// Height of the strip the caution takes at the foot of a chart, px.
+pub const CAUTION_FOOT_PX: u32 = 40;
+
+/// The caution along the foot of a chart, in two lines (it is wider than
+/// the chart in one), large and dark enough to read on a print: every
+/// chart a report writes carries it, as every table does.
+pub fn caution_foot(foot: &Area<'_>, caution: &str) -> Result<()> {
+    let (first, rest) = match caution.split_once(". ") {
+        Some((a, b)) => (format!("{a}."), b.to_string()),
+        None => (caution.to_string(), String::new()),
+    };
+    for (k, line) in [first, rest].into_iter().enumerate() {
+        foot.draw(&Text::new(
+            line,
+            (8, 4 + 16 * k as i32),
+            ("sans-serif", 13).into_font().color(&DARK_GREY),
+        ))
+        .map_err(err)?;
+    }
+    Ok(())
+}

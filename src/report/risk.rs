@@ -542,8 +542,8 @@ pub fn csv(rep: &RiskReport) -> Result<Vec<u8>> {
 }
 
 use super::chart::{
-    bar, count_mesh, err, framed, legend, level_lines, limit_lines, page_title, Area, DARK_GREY,
-    OK as BAND, OVER, WIDE,
+    bar, caution_foot, count_mesh, err, framed, legend, level_lines, limit_lines, page_title, Area,
+    CAUTION_FOOT_PX, DARK_GREY, OK as BAND, OVER, WIDE,
 };
 
 /// The chart: draw-ratio fan per pass, and break probability per pass.
@@ -562,9 +562,11 @@ pub fn svg(rep: &RiskReport) -> Result<Vec<u8>> {
                 ("sans-serif", 18),
             )
             .map_err(err)?;
-        let (upper, lower) = root.split_vertically(430);
+        let (body, foot) = root.split_vertically(root.dim_in_pixel().1 - CAUTION_FOOT_PX);
+        let (upper, lower) = body.split_vertically(410);
         fan(rep, &upper)?;
         bars(rep, &lower)?;
+        caution_foot(&foot, &rep.caution)?;
         root.present().map_err(err)?;
     }
     Ok(buf.into_bytes())

@@ -13,8 +13,8 @@ use coldpass::schedule::ScheduleFile;
 use plotters::prelude::*;
 
 use super::chart::{
-    anneal_line, bar, count_mesh, err, framed, legend, level_lines, limit_lines, page_title,
-    whole_number, Area, Frame, GREY, HALF, OK, OVER, WARN, WIDE,
+    anneal_line, bar, caution_foot, count_mesh, err, framed, legend, level_lines, limit_lines,
+    page_title, whole_number, Area, Frame, CAUTION_FOOT_PX, HALF, OK, OVER, WARN, WIDE,
 };
 use super::units::{Quantity, Units};
 
@@ -35,7 +35,7 @@ pub fn schedule_in(rep: &ScheduleReport, file: &ScheduleFile, units: Units) -> R
                 ("sans-serif", 20),
             )
             .map_err(err)?;
-        let (body, foot) = root.split_vertically(height - 30);
+        let (body, foot) = root.split_vertically(root.dim_in_pixel().1 - CAUTION_FOOT_PX);
         let (upper, lower) = body.split_vertically(350);
         draw_ratios(rep, &upper)?;
         match &rep.machine {
@@ -48,19 +48,7 @@ pub fn schedule_in(rep: &ScheduleReport, file: &ScheduleFile, units: Units) -> R
             }
             None => draw_flow(rep, file, &lower, units)?,
         }
-        // The caution in two lines (it is wider than the chart in one).
-        let (first, rest) = match rep.caution.split_once(". ") {
-            Some((a, b)) => (format!("{a}."), b.to_string()),
-            None => (rep.caution.clone(), String::new()),
-        };
-        for (k, line) in [first, rest].into_iter().enumerate() {
-            foot.draw(&Text::new(
-                line,
-                (8, 2 + 13 * k as i32),
-                ("sans-serif", 11).into_font().color(&GREY),
-            ))
-            .map_err(err)?;
-        }
+        caution_foot(&foot, &rep.caution)?;
         root.present().map_err(err)?;
     }
     Ok(buf.into_bytes())
