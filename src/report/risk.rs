@@ -321,19 +321,32 @@ fn summary_lines(rep: &RiskReport) -> Vec<String> {
             "any pass breaks: {} %{}",
             pct_se(s.any_break_probability, s.any_break_standard_error),
             s.any_break_upper_95
-                .map(|u| format!(" (below {:.2e} at 95 %)", u))
+                .map(|u| format!(
+                    " (below {} % at 95 %, rule of three)",
+                    coldpass::risk::stats::percent_2sig(u)
+                ))
                 .unwrap_or_default()
         ),
         format!(
             "any pass over the max line: {} %",
             pct_se(s.any_over_max_probability, s.any_over_max_standard_error)
         ),
-        format!(
-            "weakest pass: step {} (break {:.2} %), driven most by {}",
-            s.weakest_step,
-            100.0 * s.weakest_break_probability,
-            s.weakest_main_driver.as_deref().unwrap_or("-")
-        ),
+        if s.weakest_break_probability > 0.0 {
+            format!(
+                "weakest pass: step {} (break {:.2} %), driven most by {}",
+                s.weakest_step,
+                100.0 * s.weakest_break_probability,
+                s.weakest_main_driver
+                    .as_deref()
+                    .unwrap_or("no input (none scatters)")
+            )
+        } else {
+            format!(
+                "weakest pass: step {} (no sample broke; the highest 99th-percentile draw ratio), driven most by {}",
+                s.weakest_step,
+                s.weakest_main_driver.as_deref().unwrap_or("no input (none scatters)")
+            )
+        },
         format!(
             "samples used: {} of {} ({} refused)",
             s.samples_used, s.samples, s.samples_refused

@@ -29,10 +29,13 @@ pub(super) fn build_report(
     let weakest = weakest_pass(&passes);
     let (pa, sa) = stats::probability(t.any_break, n);
     let (po, so) = stats::probability(t.any_over_max, n);
-    let upper = (t.any_break == 0 && n > 0).then(|| 3.0 / n as f64);
+    // The rule of three (Hanley & Lippman-Hand 1983): no event in n trials
+    // puts the probability below 3/n at 95 %; a bound over 1 says nothing more.
+    let upper = (t.any_break == 0 && n > 0).then(|| (3.0 / n as f64).min(1.0));
     if let Some(u) = upper {
         warnings.push(format!(
-            "no sample broke: the schedule's break probability is below {u:.2e} (95 %, rule of three), not zero"
+            "no sample broke: the schedule's break probability is below {} % (95 %, rule of three), not zero",
+            stats::percent_2sig(u)
         ));
     } else if 1.96 * sa > RELATIVE_PRECISION * pa {
         warnings.push(format!(

@@ -226,6 +226,17 @@ pub fn samples_for(p: f64, relative: f64) -> u64 {
 
 #[cfg(test)]
 mod tests {
+    #[test]
+    fn a_percentage_shows_two_significant_digits() {
+        // Worked by hand: 3/10,000 = 0.03 %, 3/1e6 = 0.0003 %, 0.3 = 30 %.
+        assert_eq!(percent_2sig(3.0e-4), "0.030");
+        assert_eq!(percent_2sig(3.0e-6), "0.00030");
+        assert_eq!(percent_2sig(0.3), "30");
+        assert_eq!(percent_2sig(0.03), "3.0");
+        assert_eq!(percent_2sig(1.0), "100");
+        assert_eq!(percent_2sig(0.0), "0");
+    }
+
     use super::*;
 
     #[test]
@@ -246,4 +257,15 @@ mod tests {
         // 1.96^2 x 0.99 / (0.01 x 0.2^2) = 9507.96 (arithmetic).
         assert_eq!(samples_for(0.01, 0.2), 9508);
     }
+}
+
+/// A probability (a fraction) as a percentage to two significant digits:
+/// 3e-4 -> "0.030", 3e-6 -> "0.00030", 0.3 -> "30".
+pub fn percent_2sig(p: f64) -> String {
+    let pct = 100.0 * p;
+    if pct >= 10.0 || pct <= 0.0 || !pct.is_finite() {
+        return format!("{pct:.0}");
+    }
+    let decimals = (1.0 - pct.log10().floor()).max(0.0) as usize;
+    format!("{pct:.decimals$}")
 }
