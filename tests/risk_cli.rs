@@ -174,8 +174,9 @@ fn a_break_probability_over_the_target_exits_3() {
     let o = coldpass(&[
         "risk",
         file.to_str().unwrap(),
+        // 10,000 samples put 10 beyond a 0.001 target: enough to place the margin.
         "--samples",
-        "4000",
+        "10000",
         "--target-probability",
         "0.001",
     ]);
@@ -441,4 +442,26 @@ fn kept_samples_into_a_folder_that_does_not_exist_write_nothing_at_all() {
         "the report was written although the samples were not"
     );
     assert_eq!(std::fs::read_dir(dir.path()).unwrap().count(), 0);
+}
+
+/// A target the samples cannot reach (fewer than 10 samples' worth of tail:
+/// 1 sample for a 0.001 target) places no margin and claims neither side of
+/// the target: the verdict says the samples are too few.
+#[test]
+fn too_few_samples_for_the_target_place_no_margin() {
+    let o = coldpass(&[
+        "risk",
+        DEMO,
+        "--samples",
+        "1",
+        "--target-probability",
+        "0.001",
+        "--format",
+        "json",
+    ]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let v: serde_json::Value = serde_json::from_str(&stdout(&o)).unwrap();
+    let s = &v["summary"];
+    assert_eq!(s["verdict"], "too-few-samples", "{s}");
+    assert!(s["draw_ratio_scale_for_target"].is_null(), "{s}");
 }

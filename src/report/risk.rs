@@ -363,6 +363,9 @@ fn summary_lines(rep: &RiskReport) -> Vec<String> {
                 "target {t}: within it, with room for every draw ratio to rise by {:.1} % (x {k:.4})",
                 100.0 * (k - 1.0)
             ),
+            None if s.verdict == "too-few-samples" => format!(
+                "target {t}: too few samples reach it to place a margin (see the warnings)"
+            ),
             None => format!("target {t}: the margin lies past a draw ratio of 2 and cannot be placed"),
         });
         lines.push(format!("verdict: {}", s.verdict));

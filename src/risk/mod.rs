@@ -220,7 +220,9 @@ pub struct RiskSummary {
     /// Nominal draw ratio the weakest pass alone would need for its own break
     /// probability to be at the target.
     pub weakest_draw_ratio_for_target: Option<f64>,
-    /// `within-target`, `over-target`, or `no-target`.
+    /// `within-target`, `over-target`, `too-few-samples` (the target is
+    /// reached by fewer than 10 samples' worth of tail, so neither is shown),
+    /// or `no-target`.
     pub verdict: String,
 }
 

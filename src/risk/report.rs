@@ -54,19 +54,23 @@ pub(super) fn build_report(
                     "--target-probability {tp}: {n} samples put fewer than 10 beyond it, too few to place the margin; use --samples {} or more",
                     (10.0 / tp).ceil() as u64
                 ));
+                // No margin is placed from a tail the samples do not reach.
+                (None, None, None)
+            } else {
+                let qa = t
+                    .worst
+                    .quantile(1.0 - tp, n, t.worst_range.0, t.worst_range.1);
+                let wp = &t.passes[weakest];
+                let qw = wp.ratio.quantile(1.0 - tp, n, wp.lowest, wp.highest);
+                (qa, qa.map(|q| 1.0 / q), qw.map(|q| nominal[weakest] / q))
             }
-            let qa = t
-                .worst
-                .quantile(1.0 - tp, n, t.worst_range.0, t.worst_range.1);
-            let wp = &t.passes[weakest];
-            let qw = wp.ratio.quantile(1.0 - tp, n, wp.lowest, wp.highest);
-            (qa, qa.map(|q| 1.0 / q), qw.map(|q| nominal[weakest] / q))
         }
         _ => (None, None, None),
     };
     let verdict = match target {
         None => "no-target",
         Some(tp) if pa > tp => "over-target",
+        Some(tp) if tp * (n as f64) < 10.0 => "too-few-samples",
         Some(_) => "within-target",
     };
     scatter_warnings(options, model, listed, t, &mut warnings);
