@@ -224,6 +224,17 @@ pub fn samples_for(p: f64, relative: f64) -> u64 {
     (1.96f64.powi(2) * (1.0 - p) / (p * relative * relative)).ceil() as u64
 }
 
+/// A probability (a fraction) as a percentage to two significant digits:
+/// 3e-4 -> "0.030", 3e-6 -> "0.00030", 0.3 -> "30".
+pub fn percent_2sig(p: f64) -> String {
+    let pct = 100.0 * p;
+    if pct >= 10.0 || pct <= 0.0 || !pct.is_finite() {
+        return format!("{pct:.0}");
+    }
+    let decimals = (1.0 - pct.log10().floor()).max(0.0) as usize;
+    format!("{pct:.decimals$}")
+}
+
 #[cfg(test)]
 mod tests {
     #[test]
@@ -257,15 +268,4 @@ mod tests {
         // 1.96^2 x 0.99 / (0.01 x 0.2^2) = 9507.96 (arithmetic).
         assert_eq!(samples_for(0.01, 0.2), 9508);
     }
-}
-
-/// A probability (a fraction) as a percentage to two significant digits:
-/// 3e-4 -> "0.030", 3e-6 -> "0.00030", 0.3 -> "30".
-pub fn percent_2sig(p: f64) -> String {
-    let pct = 100.0 * p;
-    if pct >= 10.0 || pct <= 0.0 || !pct.is_finite() {
-        return format!("{pct:.0}");
-    }
-    let decimals = (1.0 - pct.log10().floor()).max(0.0) as usize;
-    format!("{pct:.decimals$}")
 }
