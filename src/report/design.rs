@@ -252,7 +252,16 @@ fn csv(d: &Design) -> Result<Vec<u8>> {
     let mut r = ::csv::Reader::from_reader(base.as_slice());
     let mut w = ::csv::Writer::from_writer(Vec::new());
     let mut header: Vec<String> = r.headers()?.iter().map(str::to_string).collect();
-    header.extend(["strategy", "run", "anneal_reason"].map(String::from));
+    // The design's columns go before `caution`, which stays the last column
+    // as in check's CSV.
+    let at = header
+        .iter()
+        .position(|h| h == "caution")
+        .unwrap_or(header.len());
+    header.splice(
+        at..at,
+        ["strategy", "run", "anneal_reason"].map(String::from),
+    );
     w.write_record(&header)?;
     let strategy = strategy_name(d);
     let mut run = 1usize;
@@ -268,9 +277,7 @@ fn csv(d: &Design) -> Result<Vec<u8>> {
                 .unwrap_or_default(),
             StepKind::Draw => String::new(),
         };
-        row.push(strategy.clone());
-        row.push(run.to_string());
-        row.push(reason);
+        row.splice(at..at, [strategy.clone(), run.to_string(), reason]);
         if step.kind == StepKind::Anneal {
             run += 1;
         }
