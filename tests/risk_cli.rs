@@ -282,11 +282,12 @@ fn a_flow_scatter_naming_a_key_the_law_lacks_is_refused() {
 
 #[test]
 fn zero_samples_or_a_target_outside_zero_to_one_is_refused() {
+    // Bad option values are bad usage (exit 2), as `--samples abc` is.
     let o = coldpass(&["risk", DEMO, "--samples", "0"]);
-    assert_eq!(o.status.code(), Some(1));
+    assert_eq!(o.status.code(), Some(2));
     assert!(stderr(&o).contains("--samples"), "{}", stderr(&o));
     let o = coldpass(&["risk", DEMO, "--target-probability", "1.5"]);
-    assert_eq!(o.status.code(), Some(1));
+    assert_eq!(o.status.code(), Some(2));
     assert!(
         stderr(&o).contains("--target-probability"),
         "{}",

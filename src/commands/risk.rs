@@ -37,7 +37,8 @@ pub struct RiskArgs {
     /// The schedule file (YAML) with a `scatter` block; a design file is designed first.
     pub file: PathBuf,
     /// Number of samples (default: enough for a 1 % probability to within +-20 % at 95 %).
-    #[arg(long, value_name = "N", default_value_t = risk::DEFAULT_SAMPLES)]
+    #[arg(long, value_name = "N", default_value_t = risk::DEFAULT_SAMPLES,
+          value_parser = clap::value_parser!(u64).range(1..=1_000_000_000))]
     pub samples: u64,
     /// Seed of the random streams: the same seed gives the same report whatever the thread count.
     #[arg(long, value_name = "S", default_value_t = 0)]
@@ -47,7 +48,7 @@ pub struct RiskArgs {
     pub sampling: SamplingArg,
     /// Break probability of the whole schedule to design for: the report gives
     /// the draw-ratio margin that reaches it, and the exit status is 3 when it is exceeded.
-    #[arg(long, value_name = "P")]
+    #[arg(long, value_name = "P", value_parser = open_unit_interval)]
     pub target_probability: Option<f64>,
     /// Governing method, overriding the file's `limits.method`.
     #[arg(long, value_name = "NAME", value_parser = method_parser())]
@@ -233,5 +234,20 @@ impl KeptSamples {
         self.writer
             .into_inner()
             .map_err(|e| anyhow::anyhow!("writing the kept samples: {e}"))
+    }
+}
+
+/// `--target-probability`: a probability strictly between 0 and 1, refused
+/// as bad usage (exit 2) otherwise, as clap refuses other bad values.
+fn open_unit_interval(text: &str) -> Result<f64, String> {
+    let p: f64 = text.trim().parse().map_err(|_| {
+        format!("`{text}` is not a number: allowed a probability in (0, 1), e.g. 0.001")
+    })?;
+    if p > 0.0 && p < 1.0 {
+        Ok(p)
+    } else {
+        Err(format!(
+            "{p} is outside (0, 1): allowed a probability in (0, 1), e.g. 0.001"
+        ))
     }
 }
