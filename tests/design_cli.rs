@@ -783,3 +783,45 @@ fn a_slip_machine_design_keeps_a_small_positive_slip_on_every_capstan() {
     let notes = json(&d)["design"]["notes"].to_string();
     assert!(notes.contains("cone ratios set dies 2-13"), "{notes}");
 }
+
+/// The steel demo's die stock stops at 8 deg while pass 1's optimum is
+/// above it, so check flags that pass angle-off-optimum; the design notes
+/// name each such step with the optimum check reports for it, and every
+/// step they name is one check flags with its optimum outside the stock.
+#[test]
+fn a_die_stock_short_of_the_optimum_is_named_in_the_notes() {
+    let o = coldpass(&[
+        "design",
+        "schedules-demo/design-steel-ratio.yaml",
+        "--format",
+        "json",
+    ]);
+    let v = json(&o);
+    let notes: Vec<String> = v["design"]["notes"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|n| n.as_str().unwrap().to_string())
+        .collect();
+    let note = notes
+        .iter()
+        .find(|n| n.contains("outside the die stock"))
+        .unwrap_or_else(|| panic!("{notes:?}"));
+    let mut named = 0;
+    for p in v["schedule"]["passes"].as_array().unwrap() {
+        let flagged = p["flags"]
+            .as_array()
+            .is_some_and(|f| f.iter().any(|x| x == "angle-off-optimum"));
+        let Some(opt) = p["optimum_semi_angle_deg"].as_f64() else {
+            continue;
+        };
+        let words = format!("step {} ({opt:.1} deg)", p["step"]);
+        if flagged && !(4.0..=8.0).contains(&opt) {
+            assert!(note.contains(&words), "{words} not in {note}");
+            named += 1;
+        } else {
+            assert!(!note.contains(&words), "{words} in {note}");
+        }
+    }
+    assert!(named >= 1, "{note}");
+}

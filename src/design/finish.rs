@@ -3,6 +3,7 @@
 
 #[allow(unused_imports)]
 use super::*;
+use crate::evaluation::{Flag, ScheduleReport};
 
 #[allow(clippy::too_many_arguments)]
 pub(super) fn finish(
@@ -183,6 +184,7 @@ pub(super) fn finish(
     }
     let mut notes = notes(input, chooser, tier, one_level, stock, &report);
     off_aim_note(input, split, &report, &mut notes);
+    stock_angle_note(input, &report, &mut notes);
     if let Some(m) = input.machine {
         let most = m
             .blocks
@@ -445,4 +447,36 @@ fn runs_as_checked(runs: &mut [RunPlan], ratios: &[f64]) {
         r.draw_ratio_max = own.iter().copied().fold(0.0, f64::max);
         at += r.passes;
     }
+}
+
+/// When check flags a designed pass `angle-off-optimum` because the die
+/// stock (`dies.semi_angles_deg`) does not reach the pass's optimum
+/// semi-angle, a note names the passes and their optimum: the design took
+/// the stock angle of least governing stress, so only the stock can clear
+/// the flag.
+fn stock_angle_note(input: &Input, report: &ScheduleReport, notes: &mut Vec<String>) {
+    let (lo, hi) = input
+        .angles
+        .iter()
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &x| {
+            (a.min(x), b.max(x))
+        });
+    let outside: Vec<(usize, f64)> = report
+        .passes
+        .iter()
+        .filter(|r| r.flags.contains(&Flag::AngleOffOptimum))
+        .filter_map(|r| Some((r.step, r.optimum_semi_angle_deg?)))
+        .filter(|&(_, opt)| opt < lo || opt > hi)
+        .collect();
+    if outside.is_empty() {
+        return;
+    }
+    let steps: Vec<String> = outside
+        .iter()
+        .map(|(step, opt)| format!("step {step} ({opt:.1} deg)"))
+        .collect();
+    notes.push(format!(
+        "the optimum semi-angle of {} lies outside the die stock ({lo}-{hi} deg), so check flags angle-off-optimum there; the design took the stock angle of least drawing stress, and a die nearer the optimum in dies.semi_angles_deg may clear the flag (it is taken when its Delta is within limits.delta_max)",
+        steps.join(", ")
+    ));
 }
