@@ -6,28 +6,9 @@ use std::process::Output;
 
 use assert_cmd::Command;
 
-fn root(rel: &str) -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join(rel)
-}
+mod common;
 
-fn coldpass(args: &[&str]) -> Output {
-    Command::cargo_bin("coldpass")
-        .unwrap()
-        .current_dir(root(""))
-        .args(args)
-        .output()
-        .unwrap()
-}
-
-fn json(o: &Output) -> serde_json::Value {
-    serde_json::from_slice(&o.stdout).unwrap_or_else(|e| {
-        panic!(
-            "not JSON ({e}): {}{}",
-            String::from_utf8_lossy(&o.stdout),
-            String::from_utf8_lossy(&o.stderr)
-        )
-    })
-}
+use common::{coldpass, json, root};
 
 fn demo_designs() -> Vec<PathBuf> {
     let mut v: Vec<PathBuf> = std::fs::read_dir(root("schedules-demo"))
@@ -593,21 +574,7 @@ fn a_design_on_a_machine_takes_one_die_per_block_and_reports_the_speed_check_fin
     assert_eq!(blocks, 7);
     let dir = tempfile::tempdir().unwrap();
     let out = dir.path().join("designed.yaml");
-    let d = coldpass(&[
-        "design",
-        "schedules-demo/design-steel-machine.yaml",
-        "--format",
-        "json",
-        "--emit-schedule",
-        out.to_str().unwrap(),
-    ]);
-    assert_eq!(
-        d.status.code(),
-        Some(0),
-        "{}",
-        String::from_utf8_lossy(&d.stderr)
-    );
-    let d = json(&d);
+    let d = designed_json_emitting("schedules-demo/design-steel-machine.yaml", &out);
     assert_eq!(d["design"]["draw_passes"], blocks);
     assert_eq!(d["design"]["anneals"].as_array().unwrap().len(), 0);
     // The emitted schedule names the machine by a path from its own folder,
@@ -716,20 +683,7 @@ fn a_slip_machine_design_keeps_a_small_positive_slip_on_every_capstan() {
     // file's step ratios, apart from the machine code.
     let dir = tempfile::tempdir().unwrap();
     let out = dir.path().join("slip.yaml");
-    let d = coldpass(&[
-        "design",
-        "schedules-demo/design-copper-slip-machine.yaml",
-        "--format",
-        "json",
-        "--emit-schedule",
-        out.to_str().unwrap(),
-    ]);
-    assert_eq!(
-        d.status.code(),
-        Some(0),
-        "{}",
-        String::from_utf8_lossy(&d.stderr)
-    );
+    let d = designed_json_emitting("schedules-demo/design-copper-slip-machine.yaml", &out);
     let machine = std::fs::read_to_string(root("machines/northfield-wet-13.yaml")).unwrap();
     let steps: Vec<f64> = machine
         .lines()
@@ -780,7 +734,7 @@ fn a_slip_machine_design_keeps_a_small_positive_slip_on_every_capstan() {
             j + 1
         );
     }
-    let notes = json(&d)["design"]["notes"].to_string();
+    let notes = d["design"]["notes"].to_string();
     assert!(notes.contains("cone ratios set dies 2-13"), "{notes}");
 }
 
@@ -824,4 +778,24 @@ fn a_die_stock_short_of_the_optimum_is_named_in_the_notes() {
         }
     }
     assert!(named >= 1, "{note}");
+}
+
+/// `coldpass design DEMO --format json --emit-schedule OUT`, which must
+/// succeed: its JSON.
+fn designed_json_emitting(demo: &str, out: &Path) -> serde_json::Value {
+    let d = coldpass(&[
+        "design",
+        demo,
+        "--format",
+        "json",
+        "--emit-schedule",
+        out.to_str().unwrap(),
+    ]);
+    assert_eq!(
+        d.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&d.stderr)
+    );
+    json(&d)
 }

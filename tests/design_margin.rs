@@ -6,33 +6,9 @@
 //! schedule, and recomputes the area reduction from its diameters by the
 //! definition `r = 1 - (D1/D0)^2` (Dieter, *Mechanical Metallurgy*, ch. 19).
 
-use std::path::{Path, PathBuf};
-use std::process::Output;
+mod common;
 
-use assert_cmd::Command;
-
-fn root(rel: &str) -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join(rel)
-}
-
-fn coldpass(args: &[&str]) -> Output {
-    Command::cargo_bin("coldpass")
-        .unwrap()
-        .current_dir(root(""))
-        .args(args)
-        .output()
-        .unwrap()
-}
-
-fn json(o: &Output) -> serde_json::Value {
-    serde_json::from_slice(&o.stdout).unwrap_or_else(|e| {
-        panic!(
-            "not JSON ({e}): {}{}",
-            String::from_utf8_lossy(&o.stdout),
-            String::from_utf8_lossy(&o.stderr)
-        )
-    })
-}
+use common::{coldpass, json};
 
 /// The design of `file` as JSON, after checking it exits 0.
 fn design(file: &str) -> serde_json::Value {

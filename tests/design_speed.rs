@@ -4,32 +4,10 @@
 //! emitted schedule, an evaluation made apart from the design's choice.
 
 use std::path::{Path, PathBuf};
-use std::process::Output;
 
-use assert_cmd::Command;
+mod common;
 
-fn root(rel: &str) -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join(rel)
-}
-
-fn coldpass(args: &[&str]) -> Output {
-    Command::cargo_bin("coldpass")
-        .unwrap()
-        .current_dir(root(""))
-        .args(args)
-        .output()
-        .unwrap()
-}
-
-fn json(o: &Output) -> serde_json::Value {
-    serde_json::from_slice(&o.stdout).unwrap_or_else(|e| {
-        panic!(
-            "not JSON ({e}): {}{}",
-            String::from_utf8_lossy(&o.stdout),
-            String::from_utf8_lossy(&o.stderr)
-        )
-    })
-}
+use common::{coldpass, json, root};
 
 const MACHINE: &str = "machines/harrow-lane-dry-7.yaml";
 

@@ -46,3 +46,14 @@ pub fn demo_schedules() -> Vec<PathBuf> {
     v.sort();
     v
 }
+
+/// Standard output parsed as JSON; a panic that shows both streams if it is not.
+pub fn json(o: &Output) -> serde_json::Value {
+    serde_json::from_slice(&o.stdout).unwrap_or_else(|e| {
+        panic!(
+            "not JSON ({e}): {}{}",
+            String::from_utf8_lossy(&o.stdout),
+            String::from_utf8_lossy(&o.stderr)
+        )
+    })
+}
