@@ -167,18 +167,7 @@ pub fn bisect(law: &FlowLaw, lo: f64, hi: f64) -> f64 {
 mod tests {
     use super::*;
 
-    /// A small deterministic generator (SplitMix64) for the test's laws.
-    fn uniforms(seed: u64) -> impl FnMut(f64, f64) -> f64 {
-        let mut x = seed;
-        move |lo, hi| {
-            x = x.wrapping_add(0x9E37_79B9_7F4A_7C15);
-            let mut z = x;
-            z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
-            z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
-            z ^= z >> 31;
-            lo + (hi - lo) * ((z >> 11) as f64 / (1u64 << 53) as f64)
-        }
-    }
+    use crate::risk::test_uniforms as uniforms;
 
     fn check_family(nominal: FlowLaw, mut sample: impl FnMut() -> Option<FlowLaw>) {
         let solver = ConsidereSolver::new(&nominal);

@@ -621,3 +621,18 @@ pub fn assess_keeping(
         &tally,
     ))
 }
+
+/// SplitMix64 uniforms in `[lo, hi)` (Steele, Lea & Flood 2014), a small
+/// deterministic generator for the risk modules' unit tests' cases.
+#[cfg(test)]
+pub(crate) fn test_uniforms(seed: u64) -> impl FnMut(f64, f64) -> f64 {
+    let mut x = seed;
+    move |lo, hi| {
+        x = x.wrapping_add(0x9E37_79B9_7F4A_7C15);
+        let mut z = x;
+        z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
+        z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
+        z ^= z >> 31;
+        lo + (hi - lo) * ((z >> 11) as f64 / (1u64 << 53) as f64)
+    }
+}
