@@ -153,7 +153,7 @@ fn die_sizes_are_shown_to_the_die_rooms_decimals_and_json_keeps_full_precision()
 /// The runs table is what `check` reports for the designed schedule: each
 /// run's draw-ratio range is the range of the schedule's draw ratios over
 /// that run's passes (taken in order), on a machine with dancers too (whose
-/// back tension the layout leaves out) and after die-room rounding.
+/// back tension the layout counts) and after die-room rounding.
 #[test]
 fn each_runs_draw_ratio_range_is_checks_over_its_passes() {
     for demo in [

@@ -107,9 +107,11 @@ pub(super) fn round<'f>(
         step += 1;
         let run = runs[ri].0;
         let e = out[ri].1.last().map_or(run.strain0, |p| p.strain_after);
+        // This pass's place in its run, and the next pass's in its own.
+        let place = out[ri].1.len();
         let last_of_run = flat.get(k + 1).is_none_or(|n| n.0 != ri);
         if k + 1 == flat.len() {
-            let p = pick(ctx, &run, d, finish, e, step)?;
+            let p = pick(ctx, &run, (d, finish), (e, place), step)?;
             out[ri].1.push(p);
             break;
         }
@@ -130,17 +132,17 @@ pub(super) fn round<'f>(
                     }
                 }
             }
-            let p = pick(ctx, &run, d, c, e, step)?;
+            let p = pick(ctx, &run, (d, c), (e, place), step)?;
             let broken: Vec<String> = ctx.breaches(&p).iter().map(|b| b.describe(ctx)).collect();
             // The pass out of it, to the next designed size.
-            let (e_next, law_next) = if last_of_run {
-                (next_law_run.strain0, next_law_run.law)
+            let (e_next, law_next, place_next) = if last_of_run {
+                (next_law_run.strain0, next_law_run.law, 0)
             } else {
-                (p.strain_after, run.law)
+                (p.strain_after, run.law, place + 1)
             };
             let next_ok = next_x < c && {
                 let q = ctx
-                    .pick(law_next, c, next_x, e_next, false)
+                    .pick(law_next, c, next_x, e_next, ctx.back_mpa(place_next), false)
                     .map_err(|problem| DesignError::Pass {
                         pass: format!("step {}", step + 1),
                         problem,
@@ -186,15 +188,16 @@ pub(super) fn round<'f>(
     Ok(out)
 }
 
+/// The pass of `run` from `d` to `c` at strain `e`, the `place`-th of its
+/// run (from 0, for its back tension).
 fn pick(
     ctx: &Ctx,
     run: &Run,
-    d: f64,
-    c: f64,
-    e: f64,
+    (d, c): (f64, f64),
+    (e, place): (f64, usize),
     step: usize,
 ) -> Result<PassPick, DesignError> {
-    ctx.pick(run.law, d, c, e, false)
+    ctx.pick(run.law, d, c, e, ctx.back_mpa(place), false)
         .map_err(|problem| DesignError::Pass {
             pass: format!("step {step}"),
             problem,

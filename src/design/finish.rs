@@ -193,7 +193,7 @@ pub(super) fn finish(
             .fold(0.0, f64::max);
         if most > 0.0 {
             notes.push(format!(
-                "the passes were laid out without the dancers' back tension (up to {most} MPa on {}); the draw ratios shown, and the runs' range, are check's on the machine, with it",
+                "the passes were laid out with the dancers' back tension on their dies (up to {most} MPa on {}), as check applies it on the machine",
                 m.name
             ));
         }

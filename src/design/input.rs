@@ -282,6 +282,15 @@ impl<'f> Input<'f> {
                 cold_work: file.material.cold_work_limit,
                 finish_mm: self.finish_mm,
                 last_pick: std::cell::Cell::new(None),
+                dancers_mpa: self
+                    .machine
+                    .map(|m| {
+                        m.blocks
+                            .iter()
+                            .map(|b| b.dancer_back_tension_mpa.unwrap_or(0.0))
+                            .collect()
+                    })
+                    .unwrap_or_default(),
             },
             strategy: self.target.strategy,
             taper: self.target.taper.unwrap_or(DEFAULT_TAPER),

@@ -138,13 +138,23 @@ pub(super) struct Ctx<'a> {
     /// its pass strain is solved and again where it is laid, from the same
     /// figures, and the second is this one.
     pub(super) last_pick: Cell<Option<(PickKey, PassPick)>>,
+    /// Back tension on each pass of a run, MPa, by its place in the run (from
+    /// 0): a non-slip machine's dancers, block `i`'s on die `i` as `check
+    /// --machine` applies them; empty without one (no back tension).
+    pub(super) dancers_mpa: Vec<f64>,
 }
 
-/// The inputs of one `pick`: the law's address, then `d_in`, `d_out` and
-/// `strain_before` as bits, and the land switch.
-pub(super) type PickKey = (usize, u64, u64, u64, bool);
+/// The inputs of one `pick`: the law's address, then `d_in`, `d_out`,
+/// `strain_before` and the back tension as bits, and the land switch.
+pub(super) type PickKey = (usize, u64, u64, u64, u64, bool);
 
 impl Ctx<'_> {
+    /// The back tension on pass `i` of a run (from 0), MPa: the dancer of the
+    /// machine's block `i`, else 0.
+    pub(super) fn back_mpa(&self, i: usize) -> f64 {
+        self.dancers_mpa.get(i).copied().unwrap_or(0.0)
+    }
+
     /// The key the largest reduction comes from.
     pub(super) fn r_max_name(&self) -> &'static str {
         if self.r_max_is_warn {
@@ -170,12 +180,14 @@ impl Ctx<'_> {
     /// With `worst_land` the die land is scaled so that land over exit radius
     /// is what it is at the finish size, the most any pass of the design sees
     /// (the drawing stress depends on the size only through that ratio).
+    /// `back_mpa` is the back tension on the die ([`Ctx::back_mpa`]).
     pub(super) fn pick(
         &self,
         law: &FlowLaw,
         d_in: f64,
         d_out: f64,
         strain_before: f64,
+        back_mpa: f64,
         worst_land: bool,
     ) -> Result<PassPick, PassError> {
         let key = (
@@ -183,6 +195,7 @@ impl Ctx<'_> {
             d_in.to_bits(),
             d_out.to_bits(),
             strain_before.to_bits(),
+            back_mpa.to_bits(),
             worst_land,
         );
         if let Some((k, p)) = self.last_pick.get() {
@@ -190,7 +203,7 @@ impl Ctx<'_> {
                 return Ok(p);
             }
         }
-        let p = self.pick_fresh(law, d_in, d_out, strain_before, worst_land)?;
+        let p = self.pick_fresh(law, d_in, d_out, strain_before, back_mpa, worst_land)?;
         self.last_pick.set(Some((key, p)));
         Ok(p)
     }
@@ -202,6 +215,7 @@ impl Ctx<'_> {
         d_in: f64,
         d_out: f64,
         strain_before: f64,
+        back_mpa: f64,
         worst_land: bool,
     ) -> Result<PassPick, PassError> {
         let mut best: Option<PassPick> = None;
@@ -223,7 +237,7 @@ impl Ctx<'_> {
             entry_diameter_mm: d_in,
             exit_diameter_mm: d_out,
             strain_before,
-            back_tension_mpa: 0.0,
+            back_tension_mpa: back_mpa,
             die: land_die(first),
         };
         let prepared = PreparedPass::new(law, &dp, &self.settings)?;
@@ -242,12 +256,14 @@ impl Ctx<'_> {
     }
 
     /// The pass with one stock angle (`semi_angle_deg`, one of `angles`).
+    #[allow(clippy::too_many_arguments)]
     pub(super) fn pick_at(
         &self,
         law: &FlowLaw,
         d_in: f64,
         d_out: f64,
         strain_before: f64,
+        back_mpa: f64,
         worst_land: bool,
         semi_angle_deg: f64,
     ) -> Result<PassPick, PassError> {
@@ -264,7 +280,7 @@ impl Ctx<'_> {
             entry_diameter_mm: d_in,
             exit_diameter_mm: d_out,
             strain_before,
-            back_tension_mpa: 0.0,
+            back_tension_mpa: back_mpa,
             die,
         };
         let prepared = PreparedPass::new(law, &dp, &self.settings)?;
@@ -402,13 +418,14 @@ impl Ctx<'_> {
         (ratio, heavy, light)
     }
 
-    /// Draw ratio minus `rho` of a pass of strain `x` from `d_in`.
+    /// Draw ratio minus `rho` of a pass of strain `x` from `d_in`, at the
+    /// accumulated strain and back tension (MPa) given.
     #[allow(clippy::too_many_arguments)]
     pub(super) fn ratio_gap(
         &self,
         law: &FlowLaw,
         d_in: f64,
-        strain_before: f64,
+        (strain_before, back_mpa): (f64, f64),
         x: f64,
         rho: f64,
         worst_land: bool,
@@ -418,26 +435,28 @@ impl Ctx<'_> {
             d_in,
             d_in * (-0.5 * x).exp(),
             strain_before,
+            back_mpa,
             worst_land,
         )?;
         Ok((p.ratio - rho, p))
     }
 
-    /// The pass strain from `d_in` at which the draw ratio is `rho`, clamped to
+    /// The pass strain from `d_in`, at the accumulated strain and back
+    /// tension (MPa) given, at which the draw ratio is `rho`, clamped to
     /// `[PASS_STRAIN_FLOOR, PASS_STRAIN_CEILING]`; `guess` seeds the bracket.
     #[allow(clippy::too_many_arguments)]
     pub(super) fn strain_at_ratio(
         &self,
         law: &FlowLaw,
         d_in: f64,
-        strain_before: f64,
+        (strain_before, back_mpa): (f64, f64),
         rho: f64,
         guess: f64,
         worst_land: bool,
         tol: f64,
     ) -> Result<f64, DesignError> {
         let f = |x: f64| {
-            self.ratio_gap(law, d_in, strain_before, x, rho, worst_land)
+            self.ratio_gap(law, d_in, (strain_before, back_mpa), x, rho, worst_land)
                 .map(|r| r.0)
                 .map_err(|problem| DesignError::Pass {
                     pass: format!("a pass from {d_in:.4} mm"),
@@ -458,6 +477,7 @@ impl Ctx<'_> {
                         d_in,
                         d_in * (-0.5 * g0).exp(),
                         strain_before,
+                        back_mpa,
                         worst_land,
                     )
                     .map_err(|problem| DesignError::Pass {
@@ -473,6 +493,7 @@ impl Ctx<'_> {
                     d_in,
                     d_in * (-0.5 * x).exp(),
                     strain_before,
+                    back_mpa,
                     worst_land,
                     a,
                 )
@@ -491,6 +512,7 @@ impl Ctx<'_> {
                     d_in,
                     d_in * (-0.5 * x).exp(),
                     strain_before,
+                    back_mpa,
                     worst_land,
                 )
                 .map_err(|problem| DesignError::Pass {

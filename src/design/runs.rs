@@ -45,7 +45,7 @@ impl Chooser<'_> {
             };
             let p = self
                 .ctx
-                .pick(run.law, d, d_out, e, false)
+                .pick(run.law, d, d_out, e, self.ctx.back_mpa(i), false)
                 .map_err(|problem| DesignError::Pass {
                     pass: format!("run {}, pass {}", run.index, i + 1),
                     problem,
@@ -78,9 +78,15 @@ impl Chooser<'_> {
                 .copied()
                 .or(strains.last().copied())
                 .unwrap_or(0.2);
-            let x = self
-                .ctx
-                .strain_at_ratio(run.law, d, e, rho, guess, false, 1e-14)?;
+            let x = self.ctx.strain_at_ratio(
+                run.law,
+                d,
+                (e, self.ctx.back_mpa(i)),
+                rho,
+                guess,
+                false,
+                1e-14,
+            )?;
             if i < guesses.len() {
                 guesses[i] = x;
             } else {

@@ -159,12 +159,13 @@ impl Chooser<'_> {
             heavy_ok: true,
             light_ok: true,
         };
-        for &x in strains {
+        for (i, &x) in strains.iter().enumerate() {
             cum += x;
+            let back = self.ctx.back_mpa(i);
             let d_out = from_mm * (-0.5 * cum).exp();
             let p = self
                 .ctx
-                .pick(law, d, d_out, e, true)
+                .pick(law, d, d_out, e, back, true)
                 .map_err(|problem| DesignError::Pass {
                     pass: format!("a pass from {d:.4} mm"),
                     problem,
@@ -175,7 +176,7 @@ impl Chooser<'_> {
                         // The ratio's light side: a heavier pass has a lower ratio.
                         let q = self
                             .ctx
-                            .pick(law, d, d * (-0.5 * x * 1.02).exp(), e, true)
+                            .pick(law, d, d * (-0.5 * x * 1.02).exp(), e, back, true)
                             .map_err(|problem| DesignError::Pass {
                                 pass: format!("a pass from {d:.4} mm"),
                                 problem,
@@ -544,13 +545,14 @@ impl<'c, 'f> RunTable<'c, 'f> {
         while shot.cum.len() < n && !shot.stopped() {
             let i = shot.cum.len();
             let (d, e) = (shot.d, shot.e);
+            let back = ctx.back_mpa(i);
             let x = if by_ratio {
                 let guess = if i == 0 {
                     self.guesses.first().copied().unwrap_or(0.2)
                 } else {
                     shot.prev
                 };
-                let x = ctx.strain_at_ratio(c.law, d, e, t, guess, true, 1e-10)?;
+                let x = ctx.strain_at_ratio(c.law, d, (e, back), t, guess, true, 1e-10)?;
                 if i < self.guesses.len() {
                     self.guesses[i] = x;
                 } else {
@@ -570,7 +572,7 @@ impl<'c, 'f> RunTable<'c, 'f> {
                 break;
             }
             let d_out = d * (-0.5 * x).exp();
-            let p = ctx.pick(c.law, d, d_out, e, true).map_err(fail(d))?;
+            let p = ctx.pick(c.law, d, d_out, e, back, true).map_err(fail(d))?;
             let (mr, mh, ml) = ctx.margins(&p);
             let mut heavy = false;
             let mut light_here = Vec::new();
@@ -588,7 +590,7 @@ impl<'c, 'f> RunTable<'c, 'f> {
                     || (!by_ratio && matches!(b, super::limits::Breach::Ratio(_)) && {
                         // The ratio's light side: a heavier pass has a lower ratio.
                         let q = ctx
-                            .pick(c.law, d, d * (-0.51 * x).exp(), e, true)
+                            .pick(c.law, d, d * (-0.51 * x).exp(), e, back, true)
                             .map_err(fail(d))?;
                         q.ratio < p.ratio
                     });
