@@ -270,6 +270,11 @@ impl<'f> Input<'f> {
                         .unwrap_or(Settings::default().redundant_c),
                 },
                 angles: self.angles.clone(),
+                angle_terms: self
+                    .angles
+                    .iter()
+                    .map(|&a| pass::AngleTerms::new(a))
+                    .collect(),
                 dies,
                 from_stock: self.from_stock,
                 ratio_max: file.limits.draw_ratio_max,

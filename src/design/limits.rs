@@ -5,7 +5,7 @@
 use std::cell::Cell;
 
 use crate::flow::FlowLaw;
-use crate::pass::{self, Die, DrawPass, Method, PassError, PreparedPass, Settings};
+use crate::pass::{self, AngleTerms, Die, DrawPass, Method, PassError, PreparedPass, Settings};
 use crate::schedule::{self, ScheduleFile};
 
 use super::{DesignError, PASS_STRAIN_CEILING, PASS_STRAIN_FLOOR};
@@ -117,6 +117,9 @@ pub(super) struct Ctx<'a> {
     pub(super) angles: Vec<f64>,
     /// The die of each stock angle, as the file gives it.
     pub(super) dies: Vec<Die>,
+    /// The terms of each stock angle (tangent, sine, cosine, Avitzur's
+    /// `f`), computed once: every pass tries the same few angles.
+    pub(super) angle_terms: Vec<AngleTerms>,
     pub(super) from_stock: bool,
     /// The draw-ratio limit of the file.
     pub(super) ratio_max: f64,
@@ -241,8 +244,15 @@ impl Ctx<'_> {
             die: land_die(first),
         };
         let prepared = PreparedPass::new(law, &dp, &self.settings)?;
-        for (&a, die) in self.angles.iter().zip(&self.dies) {
-            let p = self.pick_one(&prepared, a, &land_die(die), d_in, d_out, strain_before)?;
+        for ((&a, die), terms) in self.angles.iter().zip(&self.dies).zip(&self.angle_terms) {
+            let p = self.pick_one(
+                &prepared,
+                (a, terms),
+                &land_die(die),
+                d_in,
+                d_out,
+                strain_before,
+            )?;
             let delta_ok = p.delta_ok;
             if best_any.is_none_or(|b| p.stress_mpa < b.stress_mpa) {
                 best_any = Some(p);
@@ -284,7 +294,14 @@ impl Ctx<'_> {
             die,
         };
         let prepared = PreparedPass::new(law, &dp, &self.settings)?;
-        self.pick_one(&prepared, semi_angle_deg, &die, d_in, d_out, strain_before)
+        self.pick_one(
+            &prepared,
+            (semi_angle_deg, &self.angle_terms[i]),
+            &die,
+            d_in,
+            d_out,
+            strain_before,
+        )
     }
 
     /// One stock die on a prepared pass: the governing stress alone, not
@@ -294,13 +311,13 @@ impl Ctx<'_> {
     fn pick_one(
         &self,
         prepared: &PreparedPass,
-        semi_angle_deg: f64,
+        (semi_angle_deg, terms): (f64, &AngleTerms),
         die: &Die,
         d_in: f64,
         d_out: f64,
         strain_before: f64,
     ) -> Result<PassPick, PassError> {
-        let stress = prepared.stress_mpa(die, self.method)?;
+        let stress = prepared.stress_mpa_at(die, terms, self.method)?;
         let flow_exit = prepared.flow_stress_exit_mpa();
         let reduction = pass::area_reduction(d_in, d_out);
         let delta = pass::delta(die.semi_angle_deg.to_radians(), reduction);
@@ -443,7 +460,10 @@ impl Ctx<'_> {
 
     /// The pass strain from `d_in`, at the accumulated strain and back
     /// tension (MPa) given, at which the draw ratio is `rho`, clamped to
-    /// `[PASS_STRAIN_FLOOR, PASS_STRAIN_CEILING]`; `guess` seeds the bracket.
+    /// `[PASS_STRAIN_FLOOR, PASS_STRAIN_CEILING]`; `guess` seeds the bracket,
+    /// with the stock angle the pass likely takes (that of the same pass at
+    /// a nearby level), when known: the one-angle solve starts from it, and
+    /// falls back to the angle picked at the guess when it does not settle.
     #[allow(clippy::too_many_arguments)]
     pub(super) fn strain_at_ratio(
         &self,
@@ -451,7 +471,7 @@ impl Ctx<'_> {
         d_in: f64,
         (strain_before, back_mpa): (f64, f64),
         rho: f64,
-        guess: f64,
+        (guess, hint): (f64, Option<f64>),
         worst_land: bool,
         tol: f64,
     ) -> Result<f64, DesignError> {
@@ -467,8 +487,13 @@ impl Ctx<'_> {
         // Fast path: solve with one die angle (a smooth ratio, a sixth of
         // the work with six angles), then check that the stock's pick at the
         // root is that angle, so the root is the full pick's root.
-        let mut angle = None;
-        for _ in 0..4 {
+        let mut angle = hint.filter(|h| self.angles.contains(h));
+        // The hint, when tried first, is one try more than the four the
+        // picked angles have.
+        let mut from_hint = angle.is_some();
+        let mut tries = if from_hint { 5 } else { 4 };
+        while tries > 0 {
+            tries -= 1;
             let a = match angle {
                 Some(a) => a,
                 None => {
@@ -504,8 +529,16 @@ impl Ctx<'_> {
                 })
             };
             let Some(x) = secant(one, g0, tol)? else {
+                if std::mem::take(&mut from_hint) {
+                    // The hinted angle did not settle: go on as without a
+                    // hint, from the angle picked at the guess.
+                    angle = None;
+                    tries = 4;
+                    continue;
+                }
                 break;
             };
+            from_hint = false;
             let p = self
                 .pick(
                     law,

@@ -59,12 +59,14 @@ impl Chooser<'_> {
 
     /// Shoots `n` passes each at ratio `rho` (or until the end is reached when
     /// `n` is `None`); returns the pass strains and the diameter reached.
+    /// `guesses` holds each pass's strain and stock angle from the last shot
+    /// (where the next one's solves start), and is updated.
     fn shoot(
         &self,
         run: &Run,
         rho: f64,
         n: Option<u32>,
-        guesses: &mut Vec<f64>,
+        (guesses, angles): (&mut Vec<f64>, &mut Vec<f64>),
     ) -> Result<(Vec<f64>, f64), DesignError> {
         let (mut d, mut e) = (run.from_mm, run.strain0);
         let mut strains = Vec::new();
@@ -83,7 +85,7 @@ impl Chooser<'_> {
                 d,
                 (e, self.ctx.back_mpa(i)),
                 rho,
-                guess,
+                (guess, angles.get(i).copied()),
                 false,
                 1e-14,
             )?;
@@ -91,6 +93,26 @@ impl Chooser<'_> {
                 guesses[i] = x;
             } else {
                 guesses.push(x);
+            }
+            // The pick at the root is the solve's last (kept by the memo).
+            let p = self
+                .ctx
+                .pick(
+                    run.law,
+                    d,
+                    d * (-0.5 * x).exp(),
+                    e,
+                    self.ctx.back_mpa(i),
+                    false,
+                )
+                .map_err(|problem| DesignError::Pass {
+                    pass: format!("run {}, pass {}", run.index, i + 1),
+                    problem,
+                })?;
+            if i < angles.len() {
+                angles[i] = p.semi_angle_deg;
+            } else {
+                angles.push(p.semi_angle_deg);
             }
             strains.push(x);
             e += x;
@@ -112,14 +134,15 @@ impl Chooser<'_> {
         let mut lo_rho = start.iter().map(|p| p.ratio).fold(f64::INFINITY, f64::min);
         let mut hi_rho = start.iter().map(|p| p.ratio).fold(0.0, f64::max);
         let mut guesses: Vec<f64> = even.clone();
+        let mut angles: Vec<f64> = start.iter().map(|p| p.semi_angle_deg).collect();
         let target = run.to_mm.ln();
         // gap(rho) = ln(target) - ln(D_n(rho)): increasing in rho.
-        let gap = |rho: f64, guesses: &mut Vec<f64>| -> Result<f64, DesignError> {
-            let (_, d) = self.shoot(run, rho, Some(n), guesses)?;
+        let gap = |rho: f64, g: (&mut Vec<f64>, &mut Vec<f64>)| -> Result<f64, DesignError> {
+            let (_, d) = self.shoot(run, rho, Some(n), g)?;
             Ok(target - d.ln())
         };
-        let mut flo = gap(lo_rho, &mut guesses)?;
-        let mut fhi = gap(hi_rho, &mut guesses)?;
+        let mut flo = gap(lo_rho, (&mut guesses, &mut angles))?;
+        let mut fhi = gap(hi_rho, (&mut guesses, &mut angles))?;
         for _ in 0..60 {
             if flo <= 0.0 {
                 break;
@@ -127,7 +150,7 @@ impl Chooser<'_> {
             hi_rho = lo_rho;
             fhi = flo;
             lo_rho *= 0.8;
-            flo = gap(lo_rho, &mut guesses)?;
+            flo = gap(lo_rho, (&mut guesses, &mut angles))?;
         }
         for _ in 0..60 {
             if fhi >= 0.0 {
@@ -136,7 +159,7 @@ impl Chooser<'_> {
             lo_rho = hi_rho;
             flo = fhi;
             hi_rho *= 1.25;
-            fhi = gap(hi_rho, &mut guesses)?;
+            fhi = gap(hi_rho, (&mut guesses, &mut angles))?;
         }
         if flo > 0.0 || fhi < 0.0 {
             return Err(DesignError::Solver {
@@ -145,7 +168,7 @@ impl Chooser<'_> {
             });
         }
         let rho = solve_increasing(
-            |r| gap(r, &mut guesses),
+            |r| gap(r, (&mut guesses, &mut angles)),
             lo_rho,
             hi_rho,
             flo,
@@ -153,7 +176,7 @@ impl Chooser<'_> {
             1e-13,
             "equal-ratio",
         )?;
-        let (strains, _) = self.shoot(run, rho, Some(n), &mut guesses)?;
+        let (strains, _) = self.shoot(run, rho, Some(n), (&mut guesses, &mut angles))?;
         Ok((strains, rho))
     }
 

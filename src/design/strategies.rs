@@ -217,7 +217,10 @@ pub(super) struct RunTable<'c, 'f> {
     max_n: u32,
     intervals: Vec<Option<Option<Interval>>>,
     shots: HashMap<u64, Shot>,
+    /// The pass strain and stock angle of pass `i` of the last shot that
+    /// solved it: where pass `i` of the next level's solve starts.
     guesses: Vec<f64>,
+    angle_hints: Vec<f64>,
     /// Counts done by the running extremes, and the extremes.
     done: u32,
     t_a: f64,
@@ -236,6 +239,7 @@ impl<'c, 'f> RunTable<'c, 'f> {
             intervals: vec![None; max_n as usize + 1],
             shots: HashMap::new(),
             guesses: Vec::new(),
+            angle_hints: Vec::new(),
             done: 0,
             t_a: 0.0,
             t_b: 0.0,
@@ -552,7 +556,8 @@ impl<'c, 'f> RunTable<'c, 'f> {
                 } else {
                     shot.prev
                 };
-                let x = ctx.strain_at_ratio(c.law, d, (e, back), t, guess, true, 1e-10)?;
+                let hint = self.angle_hints.get(i).copied();
+                let x = ctx.strain_at_ratio(c.law, d, (e, back), t, (guess, hint), true, 1e-10)?;
                 if i < self.guesses.len() {
                     self.guesses[i] = x;
                 } else {
@@ -573,6 +578,13 @@ impl<'c, 'f> RunTable<'c, 'f> {
             }
             let d_out = d * (-0.5 * x).exp();
             let p = ctx.pick(c.law, d, d_out, e, back, true).map_err(fail(d))?;
+            if by_ratio {
+                if i < self.angle_hints.len() {
+                    self.angle_hints[i] = p.semi_angle_deg;
+                } else {
+                    self.angle_hints.push(p.semi_angle_deg);
+                }
+            }
             let (mr, mh, ml) = ctx.margins(&p);
             let mut heavy = false;
             let mut light_here = Vec::new();

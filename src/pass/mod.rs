@@ -54,7 +54,7 @@ pub(crate) mod optimum;
 mod prepared;
 mod sachs;
 
-pub use prepared::PreparedPass;
+pub use prepared::{AngleTerms, PreparedPass};
 
 /// Why a pass cannot be evaluated.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]

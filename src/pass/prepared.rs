@@ -245,12 +245,29 @@ impl<'a> PreparedPass<'a> {
         })
     }
 
+    /// The drawing stress by `method` with `die` (validated) and its angle's
+    /// terms computed once ([`AngleTerms::new`] of `die.semi_angle_deg`), MPa:
+    /// the same figures as [`PreparedPass::stress_mpa`], to the bit, without
+    /// recomputing the angle's tangent, sine, cosine and Avitzur's `f(alpha)`
+    /// for every pass that tries the same stock angle.
+    pub fn stress_mpa_at(
+        &self,
+        die: &Die,
+        angle: &AngleTerms,
+        method: Method,
+    ) -> Result<f64, PassError> {
+        die.validate()?;
+        debug_assert_eq!(angle.alpha, die.semi_angle_deg.to_radians());
+        let t = DieTerms::new(die, self.exit_diameter_mm);
+        finite_or_overflow("drawing stress", self.stress(&t, method, *angle)?)
+    }
+
     #[inline]
-    pub(super) fn stress(
+    pub(super) fn stress<A: Angle>(
         &self,
         t: &DieTerms,
         method: Method,
-        alpha: f64,
+        alpha: A,
     ) -> Result<f64, PassError> {
         Ok(match method {
             Method::Ideal => self.ideal(),
@@ -294,7 +311,7 @@ impl<'a> PreparedPass<'a> {
         Ok(self.back + self.mean * self.eps / eta)
     }
 
-    fn sachs_cone(&self, t: &DieTerms, alpha: f64) -> Result<f64, PassError> {
+    fn sachs_cone<A: Angle>(&self, t: &DieTerms, alpha: A) -> Result<f64, PassError> {
         let b = t.mu / alpha.tan();
         let decay = (-b * self.eps).exp();
         let integral = match self.form.integral(b, self.eps, decay) {
@@ -304,12 +321,13 @@ impl<'a> PreparedPass<'a> {
         Ok(self.back * decay + (1.0 + b) * integral)
     }
 
-    fn siebel_cone(&self, t: &DieTerms, alpha: f64) -> f64 {
+    fn siebel_cone<A: Angle>(&self, t: &DieTerms, alpha: A) -> f64 {
+        let alpha = alpha.rad();
         self.back + self.mean * ((1.0 + t.mu / alpha) * self.eps + 2.0 / 3.0 * alpha)
     }
 
-    fn redundant_factor(&self, alpha: f64) -> f64 {
-        self.factor_of(delta(alpha, self.reduction))
+    fn redundant_factor<A: Angle>(&self, alpha: A) -> f64 {
+        self.factor_of(delta(alpha.rad(), self.reduction))
     }
 
     /// `Phi = 1 + C (Delta - 1)` for `Delta > 1`, else 1.
@@ -322,7 +340,7 @@ impl<'a> PreparedPass<'a> {
         }
     }
 
-    fn redundant_cone(&self, alpha: f64, sachs_cone: f64) -> f64 {
+    fn redundant_cone<A: Angle>(&self, alpha: A, sachs_cone: f64) -> f64 {
         sachs_cone + (self.redundant_factor(alpha) - 1.0) * self.mean * self.eps
     }
 
@@ -333,15 +351,93 @@ impl<'a> PreparedPass<'a> {
     }
 
     #[inline]
-    pub(super) fn upper_bound(&self, t: &DieTerms, alpha: f64) -> f64 {
-        let (s, c) = alpha.sin_cos();
+    pub(super) fn upper_bound<A: Angle>(&self, t: &DieTerms, angle: A) -> f64 {
+        let (s, c) = angle.sin_cos();
+        let alpha = angle.rad();
         let cot = c / s;
         let half = 0.5 * self.eps; // ln(R0/Rf)
         let k = 2.0 / 3f64.sqrt();
         self.back
             + self.mean
-                * (2.0 * avitzur_f_of(s, c) * half
+                * (2.0 * angle.avitzur_f(s, c) * half
                     + k * (alpha / (s * s) - cot)
                     + k * t.m * (cot * half + t.land_over_rf))
+    }
+}
+
+/// A die semi-angle's own terms, in radians: the angle, its tangent, sine and
+/// cosine and Avitzur's `f(alpha)` ([`super::avitzur_f`]), computed once for a
+/// stock angle that many passes try ([`PreparedPass::stress_mpa_at`]).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct AngleTerms {
+    alpha: f64,
+    tan: f64,
+    sin: f64,
+    cos: f64,
+    avitzur_f: f64,
+}
+
+impl AngleTerms {
+    /// The terms of a semi-angle of `semi_angle_deg` degrees (the radians as
+    /// `f64::to_radians` gives them, so every figure is the one computed on
+    /// the fly).
+    pub fn new(semi_angle_deg: f64) -> Self {
+        let alpha = semi_angle_deg.to_radians();
+        let (sin, cos) = alpha.sin_cos();
+        AngleTerms {
+            alpha,
+            tan: alpha.tan(),
+            sin,
+            cos,
+            avitzur_f: avitzur_f_of(sin, cos),
+        }
+    }
+}
+
+/// A semi-angle as the stress formulas need it: computed on the fly (`f64`,
+/// radians) or once ([`AngleTerms`]); both give the same bits.
+pub(super) trait Angle: Copy {
+    fn rad(self) -> f64;
+    fn tan(self) -> f64;
+    fn sin_cos(self) -> (f64, f64);
+    /// Avitzur's `f` from this angle's sine and cosine.
+    fn avitzur_f(self, s: f64, c: f64) -> f64;
+}
+
+impl Angle for f64 {
+    #[inline]
+    fn rad(self) -> f64 {
+        self
+    }
+    #[inline]
+    fn tan(self) -> f64 {
+        f64::tan(self)
+    }
+    #[inline]
+    fn sin_cos(self) -> (f64, f64) {
+        f64::sin_cos(self)
+    }
+    #[inline]
+    fn avitzur_f(self, s: f64, c: f64) -> f64 {
+        avitzur_f_of(s, c)
+    }
+}
+
+impl Angle for AngleTerms {
+    #[inline]
+    fn rad(self) -> f64 {
+        self.alpha
+    }
+    #[inline]
+    fn tan(self) -> f64 {
+        self.tan
+    }
+    #[inline]
+    fn sin_cos(self) -> (f64, f64) {
+        (self.sin, self.cos)
+    }
+    #[inline]
+    fn avitzur_f(self, _s: f64, _c: f64) -> f64 {
+        self.avitzur_f
     }
 }
