@@ -13,6 +13,7 @@
 use crate::flow::StrainAt;
 use crate::schedule::{ScheduleFile, Target};
 
+use super::limits::solve_increasing;
 use super::model::DiameterRange;
 use super::search::{Split, Tables};
 use super::strategies::RunTable;
@@ -143,7 +144,7 @@ pub(super) fn window_strains(
 /// is spread by one *level* `lambda` (the draw ratio for equal-ratio, the pass
 /// strain otherwise): each run takes `clamp(S_i(lambda), a_i, b_i)`, and
 /// `lambda` is solved so the run strains sum to the whole reduction
-/// (`S_i` rises with `lambda`, so the sum does: bisection). Runs not clamped
+/// (`S_i` rises with `lambda`, so the sum does: a bracketed solve). Runs not clamped
 /// share one level, which makes the ratios equal across runs wherever the
 /// limits allow.
 pub(super) fn place(
@@ -184,28 +185,48 @@ pub(super) fn place(
         .iter()
         .map(|&i| table(tables, i).level_top(counts[i]))
         .fold(0.0, f64::max);
-    let mut eval = |lam: f64, s: &mut Vec<f64>| -> Result<(f64, bool), DesignError> {
+    // The sum of the clamped run strains at a level, whether a run is
+    // clamped, and the sum less `rest` plus `TILT` times how far the runs'
+    // own strains pass their ends (at most 1 each): rising where every run
+    // is clamped, so that its root is the least level whose clamped sum
+    // reaches `rest` (the difference taken first, so the tilt is not lost
+    // to rounding).
+    const TILT: f64 = 1e-12;
+    let mut eval = |lam: f64, s: &mut Vec<f64>| -> Result<(f64, bool, f64), DesignError> {
         let mut sum = 0.0;
+        let mut past = 0.0;
         let mut clamped = false;
         for &i in &free {
             let raw = table(tables, i).strain_at(counts[i], lam)?;
             let v = raw.clamp(ivs[i].lo, ivs[i].hi);
             clamped |= raw < ivs[i].lo * (1.0 - 1e-9) || raw > ivs[i].hi * (1.0 + 1e-9);
+            past += (raw - v).clamp(-1.0, 1.0);
             s[i] = v;
             sum += v;
         }
-        Ok((sum, clamped))
+        Ok((sum, clamped, (sum - rest) + TILT * past))
     };
-    let (mut lo, mut hi) = (0.0, top);
-    for _ in 0..60 {
-        let m = 0.5 * (lo + hi);
-        if eval(m, &mut s)?.0 < rest {
-            lo = m;
-        } else {
-            hi = m;
-        }
-    }
-    let (_, clamped) = eval(hi, &mut s)?;
+    // The level where the tilted difference is 0: regula falsi (Illinois,
+    // with halvings) on it, to 1e-13 of the level; the last rounding goes
+    // to the runs below.
+    let f_lo = eval(0.0, &mut s)?.2;
+    let f_hi = eval(top, &mut s)?.2;
+    let level = if f_lo >= 0.0 {
+        0.0
+    } else if f_hi <= 0.0 {
+        top
+    } else {
+        solve_increasing(
+            |lam| Ok(eval(lam, &mut s)?.2),
+            0.0,
+            top,
+            f_lo,
+            f_hi,
+            1e-13,
+            "anneal placement",
+        )?
+    };
+    let (_, clamped, _) = eval(level, &mut s)?;
     // Hand the last rounding to the runs with room, in order.
     let mut residual = rest - free.iter().map(|&i| s[i]).sum::<f64>();
     for &i in &free {
