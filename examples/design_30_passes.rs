@@ -41,7 +41,10 @@ fn main() {
     let mut passes = 0;
     let t = std::time::Instant::now();
     for _ in 0..rounds {
-        passes = design(&file, &options).expect("a design").summary.draw_passes;
+        passes = design(&file, &options)
+            .expect("a design")
+            .summary
+            .draw_passes;
     }
     let per = t.elapsed().as_secs_f64() / rounds as f64;
     println!("{passes} passes, {:.3} ms a design", per * 1e3);

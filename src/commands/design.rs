@@ -32,8 +32,9 @@ pub struct DesignArgs {
     #[arg(long, value_name = "FILE")]
     pub machine: Option<PathBuf>,
     /// Also write the designed schedule to this file, for `coldpass check`
-    /// (diameters at full precision; written whole or not at all).
-    #[arg(long, value_name = "FILE.yaml")]
+    /// (diameters at full precision; written whole or not at all). The name
+    /// must end in .yaml or .yml.
+    #[arg(long, value_name = "FILE.yaml", value_parser = super::options::schedule_yaml_path)]
     pub emit_schedule: Option<PathBuf>,
 }
 

@@ -58,8 +58,9 @@ pub struct RiskArgs {
     #[arg(long, value_name = "FILE")]
     pub machine: Option<PathBuf>,
     /// Also write every sample (its drawn inputs and each pass's draw ratio,
-    /// one row a sample) to this CSV file; without it no sample is stored.
-    #[arg(long, value_name = "FILE.csv")]
+    /// one row a sample) to this CSV file (the name must end in .csv);
+    /// without it no sample is stored.
+    #[arg(long, value_name = "FILE.csv", value_parser = crate::commands::options::samples_csv_path)]
     pub keep_samples: Option<PathBuf>,
     /// Units of the table and the HTML page: si (mm, MPa, m/s, kW) or us
     /// (in, ksi, ft/min, hp). JSON, YAML and CSV stay SI, as their keys say.
