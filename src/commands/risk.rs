@@ -74,7 +74,7 @@ pub struct RiskArgs {
 /// is over `--target-probability`; 130 when stopped by Ctrl-C (nothing written).
 pub fn run(args: &RiskArgs) -> Result<u8> {
     let name = args.file.display().to_string();
-    let text = super::check::read_schedule_text(&args.file)?;
+    let text = super::check::read_schedule_text(&args.file, super::check::Reader::Risk)?;
     let mut file = schedule::parse(&text).with_context(|| format!("reading schedule '{name}'"))?;
     if file.target.is_some() && file.passes.is_empty() {
         let scatter = file.scatter.clone();
