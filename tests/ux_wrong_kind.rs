@@ -22,17 +22,20 @@ fn says(args: &[&str], words: &[&str]) -> String {
 
 #[test]
 fn a_csv_file_is_refused_by_the_command_that_was_run() {
-    for (args, reads) in [
+    for (args, not, reads) in [
         (
             vec!["check", RECORD],
+            "not a schedule file:",
             "coldpass check reads a schedule file in YAML",
         ),
         (
             vec!["design", RECORD],
+            "not a design file:",
             "coldpass design reads a design file in YAML",
         ),
         (
             vec!["risk", RECORD],
+            "not a schedule or design file:",
             "coldpass risk reads a schedule or design file in YAML with a `scatter:` block",
         ),
         (
@@ -41,6 +44,7 @@ fn a_csv_file_is_refused_by_the_command_that_was_run() {
                 "schedules-demo/copper-building-wire.yaml",
                 RECORD,
             ],
+            "not a schedule or design file:",
             "coldpass compare reads two schedule or design files in YAML",
         ),
         (
@@ -49,6 +53,7 @@ fn a_csv_file_is_refused_by_the_command_that_was_run() {
                 RECORD,
                 "schedules-demo/copper-building-wire.yaml",
             ],
+            "not a schedule or design file:",
             "coldpass compare reads two schedule or design files in YAML",
         ),
     ] {
@@ -57,6 +62,7 @@ fn a_csv_file_is_refused_by_the_command_that_was_run() {
             &[
                 "tensile-copper-rod.csv",
                 "looks like a CSV table",
+                not,
                 reads,
                 "coldpass fit",
             ],

@@ -161,6 +161,15 @@ pub enum Reader {
 }
 
 impl Reader {
+    /// The kind of file the command reads.
+    fn noun(self) -> &'static str {
+        match self {
+            Reader::Check => "a schedule file",
+            Reader::Design => "a design file",
+            Reader::Risk | Reader::Compare => "a schedule or design file",
+        }
+    }
+
     /// `coldpass NAME reads ...`: the command and what it reads, in words.
     fn reads(self) -> &'static str {
         match self {
@@ -185,8 +194,9 @@ pub fn read_schedule_text(path: &std::path::Path, reader: Reader) -> Result<Stri
     }
     if looks_csv(&text, path) {
         anyhow::bail!(
-            "'{}' looks like a CSV table, not a schedule or design file: {}; a tensile record goes to `coldpass fit`",
+            "'{}' looks like a CSV table, not {}: {}; a tensile record goes to `coldpass fit`",
             path.display(),
+            reader.noun(),
             reader.reads()
         );
     }
