@@ -343,11 +343,13 @@ pub fn html_tables(rep: &ScheduleReport, units: Units) -> Vec<html::Table> {
     out
 }
 
-/// The machine and temperature CSV columns, inserted before the caution.
-/// A block's net pull is the pass's `net_pull_kn` (the same front pull less
-/// the same back pull held, evaluation/line.rs and machine.rs), so the CSV
-/// carries it once; the JSON keeps it under `machine.blocks[]` too.
-const CSV_COLUMNS: [&str; 20] = [
+/// The machine and temperature CSV columns, inserted before the caution:
+/// every figure of `machine.blocks[]` as `machine.KEY` (the JSON path, so
+/// the CSV mirrors the JSON; tests/ux_cli.rs). Some equal a pass figure on
+/// a machine: `machine.net_pull_kn` is the pass's `net_pull_kn` (the same
+/// front pull less the same back pull held, evaluation/line.rs and
+/// machine.rs), kept under both names as the JSON has it.
+const CSV_COLUMNS: [&str; 21] = [
     "wire_temperature_entry_c",
     "wire_temperature_no_cooling_c",
     "entry_yield_mpa",
@@ -360,6 +362,7 @@ const CSV_COLUMNS: [&str; 20] = [
     "machine.net_power_kw",
     "machine.motor_load",
     "machine.wire_speed_m_s",
+    "machine.net_pull_kn",
     "machine.motor_load_kw",
     "machine.motor_kw",
     "machine.wire_temperature_in_c",
@@ -403,6 +406,7 @@ pub fn csv_record(rep: &ScheduleReport, r: &StepReport, mut record: Vec<String>)
         num(block.map(|b| b.net_power_kw)),
         num(block.map(|b| b.motor_load)),
         num(block.map(|b| b.wire_speed_m_s)),
+        num(block.map(|b| b.net_pull_kn)),
         num(block.map(|b| b.motor_load_kw)),
         num(block.map(|b| b.motor_kw)),
         num(block.map(|b| b.wire_temperature_in_c)),
