@@ -82,11 +82,23 @@ pub fn key_says(key: &str, problem: &ParamError) -> String {
     } else {
         path.to_string()
     };
-    format!(
-        "`{path}`{note} = {}: {}",
-        problem.value,
-        rule_words(&problem.allowed)
-    )
+    let rule = rule_in_unit(&problem.name, &problem.allowed);
+    // A range in a unit the key does not name (`start.diameter`, a
+    // `passes[i].exit`) shows the value in that unit too: it may have been
+    // written in another (`"0.002 in"`) and converted.
+    let last = path.rsplit('.').next().unwrap_or(&path);
+    let last = last.split('[').next().unwrap_or(last);
+    let value = match unit_of(&problem.name) {
+        Some(u)
+            if unit_of(last).is_none()
+                && rule.starts_with("allowed in ")
+                && problem.value.parse::<f64>().is_ok() =>
+        {
+            format!("{} {u}", problem.value)
+        }
+        _ => problem.value.clone(),
+    };
+    format!("`{path}`{note} = {value}: {rule}")
 }
 
 /// A rule in the messages' words: "must be in [0, 1]" reads "allowed in [0, 1]".
@@ -95,6 +107,53 @@ pub fn rule_words(rule: &str) -> String {
         Some(rest) => format!("allowed {rest}"),
         None => rule.to_string(),
     }
+}
+
+/// The rule of parameter `name` in the messages' words, a range followed by
+/// the unit the name ends in: "must be in [0.001, 1000]" for `diameter_mm`
+/// reads "allowed in [0.001, 1000] mm" (what follows the range is kept).
+pub fn rule_in_unit(name: &str, rule: &str) -> String {
+    let words = rule_words(rule);
+    let Some(unit) = unit_of(name) else {
+        return words;
+    };
+    let Some(range) = words.strip_prefix("allowed in ") else {
+        return words;
+    };
+    match range.find([']', ')']) {
+        Some(end) => format!("allowed in {} {unit}{}", &range[..=end], &range[end + 1..]),
+        None => words,
+    }
+}
+
+/// The unit a key or parameter name ends in (`_mm`, `_kg_m3`, `_m_s`, ...),
+/// as the messages write it; `None` for a plain number (`friction`,
+/// `draw_ratio_aim`, `eps_c`, `redundant_c`: `_c` is a temperature only in
+/// a temperature's name).
+pub fn unit_of(name: &str) -> Option<&'static str> {
+    const SUFFIXES: [(&str, &str); 14] = [
+        ("_kg_m3", "kg/m^3"),
+        ("_j_kg_k", "J/(kg K)"),
+        ("_m_s", "m/s"),
+        ("_mm2", "mm^2"),
+        ("_mm", "mm"),
+        ("_mpa", "MPa"),
+        ("_gpa", "GPa"),
+        ("_deg", "deg"),
+        ("_kw", "kW"),
+        ("_kn", "kN"),
+        ("_kg", "kg"),
+        ("_rpm", "rpm"),
+        ("_hours", "h"),
+        ("_t_per_shift", "t"),
+    ];
+    let name = name.trim_start_matches('-').replace('-', "_");
+    if let Some((_, u)) = SUFFIXES.iter().find(|(s, _)| name.ends_with(s)) {
+        return Some(u);
+    }
+    let temperature =
+        name.ends_with("_c") && (name.contains("temperature") || name.contains("ambient"));
+    temperature.then_some("C")
 }
 
 fn pass_says(key: &str, problem: &crate::pass::PassError) -> String {
@@ -630,5 +689,46 @@ impl ScheduleFile {
             .annealed_flow
             .as_ref()
             .unwrap_or(&self.material.flow)
+    }
+}
+
+#[cfg(test)]
+mod unit_tests {
+    use super::*;
+
+    #[test]
+    fn a_range_takes_the_unit_its_name_ends_in() {
+        // The units as the keys spell them (README's key list, the project's own).
+        assert_eq!(
+            rule_in_unit("diameter_mm", "must be in [0.001, 1000]"),
+            "allowed in [0.001, 1000] mm"
+        );
+        assert_eq!(
+            rule_in_unit("density_kg_m3", "must be in [100, 30000]"),
+            "allowed in [100, 30000] kg/m^3"
+        );
+        // What follows the range stays after the unit.
+        assert_eq!(
+            rule_in_unit(
+                "wire_temperature_max_c",
+                "must be in (25, 2000] (above 25 C)"
+            ),
+            "allowed in (25, 2000] C (above 25 C)"
+        );
+        // A plain number, or a rule that is not a range, gets no unit.
+        assert_eq!(
+            rule_in_unit("friction", "must be in [0, 0.5]"),
+            "allowed in [0, 0.5]"
+        );
+        assert_eq!(
+            rule_in_unit("yield_mpa", "must be greater than 0"),
+            "allowed greater than 0"
+        );
+        // `_c` names a temperature only in a temperature's name: Voce's
+        // `eps_c` is a strain and `redundant_c` a coefficient.
+        assert_eq!(unit_of("eps_c"), None);
+        assert_eq!(unit_of("redundant_c"), None);
+        assert_eq!(unit_of("ambient_c"), Some("C"));
+        assert_eq!(unit_of("--shear-modulus-gpa"), Some("GPa"));
     }
 }

@@ -626,7 +626,7 @@ fn the_page_carries_the_machine_tables_in_the_table_words() {
     for want in [
         "Machine summary",
         "<th>capstan rpm</th>",
-        "<th>load %</th>",
+        "<th>motor load %</th>",
         "binding block and limit",
         "Caution: ",
     ] {

@@ -453,3 +453,88 @@ fn a_machine_file_missing_or_wrong_key_says_what_is_allowed() {
         assert!(stderr(&out).contains(words), "{}", stderr(&out));
     }
 }
+
+/// A range for a quantity with a unit shows the unit after the range, and
+/// after the value too where the key does not name it (a diameter may be
+/// written in inches and is checked in mm). The ranges are those of
+/// src/schedule/ranges.rs; the wording is the project's own.
+#[test]
+fn a_range_message_shows_its_unit() {
+    for (from, to, start) in [
+        (
+            "  diameter: 8.0",
+            "  diameter: 0.0001",
+            "`start.diameter` = 0.0001 mm: allowed in [0.001, 1000] mm",
+        ),
+        // 0.00002 in = 0.000508 mm (25.4 mm to the inch, exact by definition).
+        (
+            "  diameter: 8.0",
+            "  diameter: \"0.00002 in\"",
+            "`start.diameter` = 0.000508 mm: allowed in [0.001, 1000] mm",
+        ),
+        (
+            "  - exit: 7.0",
+            "  - exit: 2000",
+            "`passes[0].exit` = 2000 mm: allowed in [0.001, 1000] mm",
+        ),
+        (
+            "  density_kg_m3: 8940",
+            "  density_kg_m3: 5",
+            "`material.density_kg_m3` = 5: allowed in [100, 30000] kg/m^3",
+        ),
+        (
+            "  ambient_c: 25",
+            "  ambient_c: 9999",
+            "`limits.ambient_c` = 9999: allowed in [-50, 100] C",
+        ),
+        (
+            "  finish_speed_m_s: 20",
+            "  finish_speed_m_s: 900",
+            "`line.finish_speed_m_s` = 900: allowed in (0, 500] m/s",
+        ),
+        (
+            "  - exit: 6.15",
+            "  - exit: 6.15\n    semi_angle_deg: 50",
+            "`passes[1].semi_angle_deg` (step 2) = 50: allowed in (0, 45) deg",
+        ),
+        (
+            "  wire_temperature_max_c: 150",
+            "  wire_temperature_max_c: 10",
+            "`limits.wire_temperature_max_c` = 10: allowed in (25, 2000] C (above the ambient",
+        ),
+        // A plain number keeps a plain range.
+        (
+            "  friction: 0.05",
+            "  friction: 5",
+            "`dies.friction` = 5: allowed in [0, 0.5]",
+        ),
+    ] {
+        reads_key_value_allowed(from, to, start);
+    }
+    // The machine file's ranges read the same way.
+    let dir = tempfile::tempdir().unwrap();
+    let text = std::fs::read_to_string(root("machines/harrow-lane-dry-7.yaml")).unwrap();
+    let path = dir.path().join("m.yaml");
+    for (from, to, says) in [
+        (
+            "motor_kw: 22,",
+            "motor_kw: 200000,",
+            "`blocks[0].motor_kw` (block 1) = 200000: allowed in (0, 100000] kW",
+        ),
+        (
+            "capstan_diameter_mm: 600,",
+            "capstan_diameter_mm: 9000,",
+            "`blocks[0].capstan_diameter_mm` (block 1) = 9000: allowed in (0, 5000] mm",
+        ),
+    ] {
+        std::fs::write(&path, text.replacen(from, to, 1)).unwrap();
+        let o = coldpass(&[
+            "check",
+            "schedules-demo/steel-multiblock.yaml",
+            "--machine",
+            path.to_str().unwrap(),
+        ]);
+        assert_eq!(o.status.code(), Some(1));
+        assert!(stderr(&o).contains(says), "{to}: {}", stderr(&o));
+    }
+}

@@ -106,7 +106,7 @@ fn the_block_table_in_us_units_names_and_converts_every_unit() {
             "slip %",
             "net pull lbf",
             "net power hp",
-            "load %",
+            "motor load %",
             "wire temperature in F",
             "wire temperature out F",
         ],
@@ -120,7 +120,7 @@ fn the_block_table_in_us_units_names_and_converts_every_unit() {
         close(&row[3], f("surface_speed_m_s") / 5.08e-3, 0.5, "ft/min");
         close(&row[5], f("net_pull_kn") * 1e3 / 4.448_222, 0.5, "lbf");
         close(&row[6], f("net_power_kw") * 1e3 / 745.6999, 0.05, "hp");
-        close(&row[7], 100.0 * f("motor_load"), 0.05, "load %");
+        close(&row[7], 100.0 * f("motor_load"), 0.05, "motor load %");
         close(
             &row[8],
             f("wire_temperature_in_c") * 1.8 + 32.0,
@@ -140,9 +140,9 @@ fn the_block_table_in_us_units_names_and_converts_every_unit() {
         header,
         [
             "step",
-            "wire temperature in F",
-            "wire temperature out F",
-            "no cooling F",
+            "wire temperature entry F",
+            "wire temperature F",
+            "wire temperature no cooling F",
             "entry yield ksi",
             "tensile strength ksi",
         ]

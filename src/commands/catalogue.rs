@@ -75,7 +75,7 @@ pub fn files(args: &CheckArgs) -> Result<Vec<PathBuf>> {
 fn check_one(path: &Path, args: &CheckArgs) -> Product {
     let name = path.display().to_string();
     let result = (|| -> Result<_> {
-        let text = super::check::read_schedule_text(path)?;
+        let text = super::check::read_schedule_text(path, super::check::Reader::Check)?;
         let file = schedule::parse(&text).with_context(|| format!("reading schedule '{name}'"))?;
         let machine = super::check::machine_of(path, args.machine.as_deref(), &file)?;
         evaluate_on(

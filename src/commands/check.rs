@@ -46,7 +46,7 @@ pub fn run(args: &CheckArgs) -> Result<u8> {
     if !args.more.is_empty() || args.file.is_dir() {
         return super::catalogue::run(args);
     }
-    let text = read_schedule_text(&args.file)?;
+    let text = read_schedule_text(&args.file, Reader::Check)?;
     let file = schedule::parse(&text)
         .with_context(|| format!("reading schedule '{}'", args.file.display()))?;
     let machine = read_machine(args, &file)?;
@@ -146,9 +146,45 @@ pub fn machine_of(
     Ok(Some((path, m)))
 }
 
-/// Reads a schedule (or design) file's text: a UTF-8 byte-order mark is
-/// dropped, and a CSV file is refused in one line, pointing to `fit`.
-pub fn read_schedule_text(path: &std::path::Path) -> Result<String> {
+/// The command that reads a schedule or design file, for the messages that
+/// say what it reads.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Reader {
+    /// `coldpass check` (one file or a catalogue).
+    Check,
+    /// `coldpass design`.
+    Design,
+    /// `coldpass risk`.
+    Risk,
+    /// `coldpass compare`.
+    Compare,
+}
+
+impl Reader {
+    /// The kind of file the command reads.
+    fn noun(self) -> &'static str {
+        match self {
+            Reader::Check => "a schedule file",
+            Reader::Design => "a design file",
+            Reader::Risk | Reader::Compare => "a schedule or design file",
+        }
+    }
+
+    /// `coldpass NAME reads ...`: the command and what it reads, in words.
+    fn reads(self) -> &'static str {
+        match self {
+            Reader::Check => "coldpass check reads a schedule file in YAML (title:, material:, start:, passes: ...)",
+            Reader::Design => "coldpass design reads a design file in YAML (title:, material:, start:, target: ...)",
+            Reader::Risk => "coldpass risk reads a schedule or design file in YAML with a `scatter:` block (title:, material:, passes: or target:, scatter: ...)",
+            Reader::Compare => "coldpass compare reads two schedule or design files in YAML (title:, material:, passes: or target: ...)",
+        }
+    }
+}
+
+/// Reads a schedule (or design) file's text for `reader`: a UTF-8
+/// byte-order mark is dropped, and a CSV file is refused in one line that
+/// names the command, what it reads, and points to `fit`.
+pub fn read_schedule_text(path: &std::path::Path, reader: Reader) -> Result<String> {
     let text = strip_bom(crate::input::read_text(path)?);
     if let Some(kind) = other_kind(&text, Expected::Schedule, path) {
         anyhow::bail!(
@@ -158,8 +194,10 @@ pub fn read_schedule_text(path: &std::path::Path) -> Result<String> {
     }
     if looks_csv(&text, path) {
         anyhow::bail!(
-            "'{}' looks like a CSV table, not a schedule file: check and design read YAML (title:, material:, passes: ...); a tensile record goes to `coldpass fit`",
-            path.display()
+            "'{}' looks like a CSV table, not {}: {}; a tensile record goes to `coldpass fit`",
+            path.display(),
+            reader.noun(),
+            reader.reads()
         );
     }
     Ok(text)
@@ -203,6 +241,46 @@ fn top_keys(text: &str) -> Vec<&str> {
         .filter_map(|l| l.split_once(':').map(|(k, _)| k.trim()))
         .filter(|k| !k.is_empty() && !k.contains(' '))
         .collect()
+}
+
+/// What a YAML file given where a tensile record belongs looks like, and
+/// where it goes instead: `(what, where)`, from its top-level keys; `None`
+/// with fewer than two (a CSV header such as `strain: fraction,stress: MPa`
+/// is one `key:` line, not a YAML file).
+pub(crate) fn yaml_kind(text: &str) -> Option<(&'static str, &'static str)> {
+    let keys = top_keys(text);
+    if keys.len() < 2 {
+        return None;
+    }
+    let has = |k: &str| keys.contains(&k);
+    Some(if has("passes") {
+        (
+            "a schedule file (YAML, with `passes:`)",
+            "a schedule goes to `coldpass check FILE`",
+        )
+    } else if has("target") {
+        (
+            "a design file (YAML, with `target:`)",
+            "a design file goes to `coldpass design FILE`",
+        )
+    } else if has("blocks") && has("kind") {
+        (
+            "a machine file (YAML, with `kind:` and `blocks:`)",
+            "a machine file goes to `coldpass check SCHEDULE --machine FILE`",
+        )
+    } else if has("flow") {
+        (
+            "a flow law (YAML, `flow:` as `--emit-law` writes it)",
+            "a flow law goes under `material:` in a schedule",
+        )
+    } else if has("material") || has("start") || has("title") {
+        (
+            "a schedule or design file (YAML)",
+            "a schedule goes to `coldpass check FILE`, a design file to `coldpass design FILE`",
+        )
+    } else {
+        ("a YAML file", "give the tensile record's CSV file")
+    })
 }
 
 /// What `text` is when it is plainly another kind of coldpass file than the

@@ -35,7 +35,7 @@ pub struct CompareArgs {
 /// no `passes`) and returns the designed schedule's report.
 fn report_of(path: &Path, method: Option<Method>) -> Result<ScheduleReport> {
     let name = path.display().to_string();
-    let text = super::check::read_schedule_text(path)?;
+    let text = super::check::read_schedule_text(path, super::check::Reader::Compare)?;
     let file = schedule::parse(&text).with_context(|| format!("reading '{name}'"))?;
     if file.passes.is_empty() && file.target.is_some() {
         let d = design(&file, &DesignOptions { method })

@@ -32,8 +32,9 @@ pub struct DesignArgs {
     #[arg(long, value_name = "FILE")]
     pub machine: Option<PathBuf>,
     /// Also write the designed schedule to this file, for `coldpass check`
-    /// (diameters at full precision; written whole or not at all).
-    #[arg(long, value_name = "FILE.yaml")]
+    /// (diameters at full precision; written whole or not at all). The name
+    /// must end in .yaml or .yml.
+    #[arg(long, value_name = "FILE.yaml", value_parser = super::options::schedule_yaml_path)]
     pub emit_schedule: Option<PathBuf>,
 }
 
@@ -41,7 +42,7 @@ pub struct DesignArgs {
 /// none can (the message names the binding constraint) or the file is bad.
 pub fn run(args: &DesignArgs) -> Result<u8> {
     let name = args.file.display().to_string();
-    let text = super::check::read_schedule_text(&args.file)?;
+    let text = super::check::read_schedule_text(&args.file, super::check::Reader::Design)?;
     let file = schedule::parse(&text).with_context(|| format!("reading design '{name}'"))?;
     let machine = super::check::machine_of(&args.file, args.machine.as_deref(), &file)?;
     let mut d = design_on(

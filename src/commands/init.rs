@@ -27,7 +27,9 @@ pub struct InitArgs {
     #[arg(value_enum)]
     pub kind: Starter,
     /// Where to write it (default: schedule.yaml, design.yaml or machine.yaml here; a
-    /// folder gets that name inside it); an existing file is never overwritten.
+    /// folder gets that name inside it; a file name must end in .yaml or .yml);
+    /// an existing file is never overwritten.
+    #[arg(value_parser = super::options::starter_path)]
     pub file: Option<PathBuf>,
 }
 

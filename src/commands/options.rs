@@ -34,6 +34,67 @@ pub fn svg_path(s: &str) -> Result<PathBuf, String> {
     }
 }
 
+/// Accepts `s` as the name of a file of one fixed kind when its extension is
+/// one of `allowed` (any case); otherwise the message names the value, what
+/// the file holds, the allowed extensions and `or` (another way out, may be
+/// empty). Clap puts the option before it and exits 2 (bad usage) before
+/// anything is read or written.
+fn path_ending(s: &str, holds: &str, allowed: &[&str], or: &str) -> Result<PathBuf, String> {
+    let p = PathBuf::from(s);
+    let ext = p.extension().and_then(|e| e.to_str()).unwrap_or("");
+    if allowed.iter().any(|a| a.eq_ignore_ascii_case(ext)) {
+        return Ok(p);
+    }
+    let list: Vec<String> = allowed.iter().map(|a| format!(".{a}")).collect();
+    let list = match list.split_last() {
+        Some((last, [])) => last.clone(),
+        Some((last, rest)) => format!("{} or {last}", rest.join(", ")),
+        None => String::new(),
+    };
+    Err(format!(
+        "'{s}': {holds}, so the file name must end in {list}{or}"
+    ))
+}
+
+/// `--emit-schedule`: the designed schedule is a YAML file for `check`.
+pub fn schedule_yaml_path(s: &str) -> Result<PathBuf, String> {
+    path_ending(
+        s,
+        "the designed schedule is written as YAML",
+        &["yaml", "yml"],
+        "",
+    )
+}
+
+/// `--emit-law`: the fitted law is a YAML `flow:` block for a schedule.
+pub fn law_yaml_path(s: &str) -> Result<PathBuf, String> {
+    path_ending(
+        s,
+        "the law is written as a YAML flow: block",
+        &["yaml", "yml"],
+        "",
+    )
+}
+
+/// `--keep-samples`: the kept samples are a CSV table, one row a sample.
+pub fn samples_csv_path(s: &str) -> Result<PathBuf, String> {
+    path_ending(s, "the samples are written as a CSV table", &["csv"], "")
+}
+
+/// `init`'s FILE: a starter is a YAML file; an existing folder gets it
+/// under its default name.
+pub fn starter_path(s: &str) -> Result<PathBuf, String> {
+    if std::path::Path::new(s).is_dir() {
+        return Ok(PathBuf::from(s));
+    }
+    path_ending(
+        s,
+        "the starter is written as YAML",
+        &["yaml", "yml"],
+        ", or name an existing folder",
+    )
+}
+
 /// How a people's report (table, HTML page) is laid out.
 #[derive(Debug, Clone, Args)]
 pub struct ViewArgs {

@@ -58,8 +58,9 @@ pub struct RiskArgs {
     #[arg(long, value_name = "FILE")]
     pub machine: Option<PathBuf>,
     /// Also write every sample (its drawn inputs and each pass's draw ratio,
-    /// one row a sample) to this CSV file; without it no sample is stored.
-    #[arg(long, value_name = "FILE.csv")]
+    /// one row a sample) to this CSV file (the name must end in .csv);
+    /// without it no sample is stored.
+    #[arg(long, value_name = "FILE.csv", value_parser = crate::commands::options::samples_csv_path)]
     pub keep_samples: Option<PathBuf>,
     /// Units of the table and the HTML page: si (mm, MPa, m/s, kW) or us
     /// (in, ksi, ft/min, hp). JSON, YAML and CSV stay SI, as their keys say.
@@ -73,7 +74,7 @@ pub struct RiskArgs {
 /// is over `--target-probability`; 130 when stopped by Ctrl-C (nothing written).
 pub fn run(args: &RiskArgs) -> Result<u8> {
     let name = args.file.display().to_string();
-    let text = super::check::read_schedule_text(&args.file)?;
+    let text = super::check::read_schedule_text(&args.file, super::check::Reader::Risk)?;
     let mut file = schedule::parse(&text).with_context(|| format!("reading schedule '{name}'"))?;
     if file.target.is_some() && file.passes.is_empty() {
         let scatter = file.scatter.clone();

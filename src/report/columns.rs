@@ -22,7 +22,10 @@ pub enum Read {
 pub struct Column {
     /// The JSON key (nested keys joined by a dot), also the CSV column.
     pub key: &'static str,
-    /// Header words before the unit.
+    /// Header words before the unit: the key's own words (`_` read as a
+    /// space, the unit left to the header's unit), some left out where the
+    /// table is narrow (`entry` for `entry_diameter_mm`), never other words
+    /// (see [`words_of_key`]).
     pub words: &'static str,
     /// What the figure measures.
     pub quantity: Quantity,
@@ -217,7 +220,7 @@ pub const ALL: &[Column] = &[
     ),
     num(
         "friction_factor",
-        "shear factor m",
+        "friction factor m",
         Q::Plain,
         |r| r.friction_factor,
         3,
@@ -339,7 +342,7 @@ pub const ALL: &[Column] = &[
     ),
     num(
         "wire_temperature_entry_c",
-        "wire temperature in",
+        "wire temperature entry",
         Q::Temperature,
         |r| r.wire_temperature_entry_c,
         0,
@@ -347,7 +350,7 @@ pub const ALL: &[Column] = &[
     ),
     num(
         "wire_temperature_no_cooling_c",
-        "no cooling",
+        "wire temperature no cooling",
         Q::Temperature,
         |r| r.wire_temperature_no_cooling_c,
         0,
@@ -439,9 +442,55 @@ pub const FIRST: &[&str] = &[
     "flags",
 ];
 
+/// Whether header `words` are made of the words of JSON `key` only (the
+/// project's rule: one name in every format): each word, in lower case and
+/// with a hyphen read as a space, is one of the key's (split at `_` and
+/// `.`), a symbol beside it (`mu`, `m`) or a shortening of one (`cum.`,
+/// `red.`). `%` (a fraction or probability shown in percent) is a unit.
+pub fn words_of_key(words: &str, key: &str) -> bool {
+    let key_words: Vec<&str> = key.split(['_', '.']).collect();
+    words
+        .to_lowercase()
+        .replace('-', " ")
+        .split_whitespace()
+        .all(|w| {
+            let w = match w {
+                "cum." => "cumulative",
+                "red." => "reduction",
+                other => other,
+            };
+            key_words.contains(&w) || matches!(w, "mu" | "m" | "%")
+        })
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn headers_are_the_words_of_their_keys() {
+        for c in ALL {
+            assert!(
+                words_of_key(c.words, c.key),
+                "column {}: header '{}' has words its key has not",
+                c.key,
+                c.words
+            );
+        }
+        // The rule refuses a word the key lacks.
+        assert!(!words_of_key(
+            "wire temperature in",
+            "wire_temperature_entry_c"
+        ));
+        assert!(!words_of_key("shear factor m", "friction_factor"));
+        // The no-cooling bound names what it bounds, as its key does.
+        assert_eq!(
+            find("wire_temperature_no_cooling_c")
+                .unwrap()
+                .header(Units::Si),
+            "wire temperature no cooling C"
+        );
+    }
 
     #[test]
     fn keys_are_unique_and_sets_are_known() {

@@ -25,6 +25,10 @@ fn build(header: &[String], rows: Vec<Vec<String>>, width: usize) -> String {
 /// One figure of the temperature or block table: header words, what it
 /// measures (the unit follows `--units`), its SI decimals and how to read it.
 struct Figure<T> {
+    /// The JSON key (of the pass, or of `machine.blocks[]`).
+    key: &'static str,
+    /// Header words before the unit: the key's words
+    /// ([`super::columns::words_of_key`]).
     words: &'static str,
     quantity: Quantity,
     digits: usize,
@@ -33,6 +37,12 @@ struct Figure<T> {
 
 impl<T> Figure<T> {
     fn header(&self, units: Units) -> String {
+        debug_assert!(
+            super::columns::words_of_key(self.words, self.key),
+            "header '{}' has words its key {} has not",
+            self.words,
+            self.key
+        );
         match self.quantity.label(units) {
             "" => self.words.to_string(),
             unit => format!("{} {unit}", self.words),
@@ -48,12 +58,14 @@ impl<T> Figure<T> {
 }
 
 const fn figure<T>(
+    key: &'static str,
     words: &'static str,
     quantity: Quantity,
     digits: usize,
     read: fn(&T) -> Option<f64>,
 ) -> Figure<T> {
     Figure {
+        key,
         words,
         quantity,
         digits,
@@ -65,37 +77,75 @@ const fn figure<T>(
 /// `wire_temperature_entry_c`, `wire_temperature_c`,
 /// `wire_temperature_no_cooling_c`, `entry_yield_mpa`, `tensile_strength_mpa`.
 const TEMPERATURES: [Figure<StepReport>; 5] = [
-    figure("wire temperature in", Quantity::Temperature, 0, |r| {
-        r.wire_temperature_entry_c
+    figure(
+        "wire_temperature_entry_c",
+        "wire temperature entry",
+        Quantity::Temperature,
+        0,
+        |r| r.wire_temperature_entry_c,
+    ),
+    figure(
+        "wire_temperature_c",
+        "wire temperature",
+        Quantity::Temperature,
+        0,
+        |r| r.wire_temperature_c,
+    ),
+    figure(
+        "wire_temperature_no_cooling_c",
+        "wire temperature no cooling",
+        Quantity::Temperature,
+        0,
+        |r| r.wire_temperature_no_cooling_c,
+    ),
+    figure("entry_yield_mpa", "entry yield", Quantity::Stress, 0, |r| {
+        r.entry_yield_mpa
     }),
-    figure("wire temperature out", Quantity::Temperature, 0, |r| {
-        r.wire_temperature_c
-    }),
-    figure("no cooling", Quantity::Temperature, 0, |r| {
-        r.wire_temperature_no_cooling_c
-    }),
-    figure("entry yield", Quantity::Stress, 0, |r| r.entry_yield_mpa),
-    figure("tensile strength", Quantity::Stress, 0, |r| {
-        r.tensile_strength_mpa
-    }),
+    figure(
+        "tensile_strength_mpa",
+        "tensile strength",
+        Quantity::Stress,
+        0,
+        |r| r.tensile_strength_mpa,
+    ),
 ];
 
 /// The block table after `block` and `step` (JSON `machine.blocks[]`).
 const BLOCKS: [Figure<BlockReport>; 8] = [
-    figure("capstan rpm", Quantity::Plain, 0, |b| Some(b.capstan_rpm)),
-    figure("surface speed", Quantity::Speed, 2, |b| {
-        Some(b.surface_speed_m_s)
+    figure("capstan_rpm", "capstan rpm", Quantity::Plain, 0, |b| {
+        Some(b.capstan_rpm)
     }),
-    figure("slip", Quantity::Percent, 1, |b| Some(b.slip)),
-    figure("net pull", Quantity::Force, 2, |b| Some(b.net_pull_kn)),
-    figure("net power", Quantity::Power, 1, |b| Some(b.net_power_kw)),
-    figure("load", Quantity::Percent, 1, |b| Some(b.motor_load)),
-    figure("wire temperature in", Quantity::Temperature, 0, |b| {
-        Some(b.wire_temperature_in_c)
+    figure(
+        "surface_speed_m_s",
+        "surface speed",
+        Quantity::Speed,
+        2,
+        |b| Some(b.surface_speed_m_s),
+    ),
+    figure("slip", "slip", Quantity::Percent, 1, |b| Some(b.slip)),
+    figure("net_pull_kn", "net pull", Quantity::Force, 2, |b| {
+        Some(b.net_pull_kn)
     }),
-    figure("wire temperature out", Quantity::Temperature, 0, |b| {
-        Some(b.wire_temperature_out_c)
+    figure("net_power_kw", "net power", Quantity::Power, 1, |b| {
+        Some(b.net_power_kw)
     }),
+    figure("motor_load", "motor load", Quantity::Percent, 1, |b| {
+        Some(b.motor_load)
+    }),
+    figure(
+        "wire_temperature_in_c",
+        "wire temperature in",
+        Quantity::Temperature,
+        0,
+        |b| Some(b.wire_temperature_in_c),
+    ),
+    figure(
+        "wire_temperature_out_c",
+        "wire temperature out",
+        Quantity::Temperature,
+        0,
+        |b| Some(b.wire_temperature_out_c),
+    ),
 ];
 
 fn temperature_header(units: Units) -> Vec<String> {
@@ -293,7 +343,12 @@ pub fn html_tables(rep: &ScheduleReport, units: Units) -> Vec<html::Table> {
     out
 }
 
-/// The machine and temperature CSV columns, inserted before the caution.
+/// The machine and temperature CSV columns, inserted before the caution:
+/// every figure of `machine.blocks[]` as `machine.KEY` (the JSON path, so
+/// the CSV mirrors the JSON; tests/ux_cli.rs). Some equal a pass figure on
+/// a machine: `machine.net_pull_kn` is the pass's `net_pull_kn` (the same
+/// front pull less the same back pull held, evaluation/line.rs and
+/// machine.rs), kept under both names as the JSON has it.
 const CSV_COLUMNS: [&str; 21] = [
     "wire_temperature_entry_c",
     "wire_temperature_no_cooling_c",
@@ -367,4 +422,37 @@ pub fn csv_record(rep: &ScheduleReport, r: &StepReport, mut record: Vec<String>)
     record.extend(extra);
     record.push(last);
     record
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn headers_are_the_words_of_their_keys() {
+        let keys = TEMPERATURES
+            .iter()
+            .map(|f| (f.key, f.words))
+            .chain(BLOCKS.iter().map(|f| (f.key, f.words)));
+        for (key, words) in keys {
+            assert!(
+                super::super::columns::words_of_key(words, key),
+                "{key}: header '{words}'"
+            );
+        }
+        // The three a reader met under other words (the JSON keys motor_load,
+        // wire_temperature_no_cooling_c, wire_temperature_entry_c).
+        assert!(block_header(Units::Si).contains(&"motor load %".to_string()));
+        let t = temperature_header(Units::Si);
+        for h in [
+            "wire temperature entry C",
+            "wire temperature C",
+            "wire temperature no cooling C",
+        ] {
+            assert!(t.contains(&h.to_string()), "{h} in {t:?}");
+        }
+        assert!(
+            temperature_header(Units::Us).contains(&"wire temperature no cooling F".to_string())
+        );
+    }
 }

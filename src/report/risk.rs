@@ -280,7 +280,7 @@ fn pass_rows(rep: &RiskReport, units: Units) -> (Vec<String>, Vec<Vec<String>>) 
     if power {
         header.push("over block power %");
     }
-    header.push("driven most by");
+    header.push("main driver");
     let rows = rep
         .passes
         .iter()

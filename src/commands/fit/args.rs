@@ -73,8 +73,8 @@ pub struct FitArgs {
     #[arg(long, value_name = "NAME", value_parser = law_parser())]
     pub law: Option<FitLaw>,
     /// Write the chosen law as a `flow:` block (with `flow_valid_to_strain`
-    /// and `flow_scatter`) for a schedule file.
-    #[arg(long, value_name = "FILE.yaml")]
+    /// and `flow_scatter`) for a schedule file (the name must end in .yaml or .yml).
+    #[arg(long, value_name = "FILE.yaml", value_parser = crate::commands::options::law_yaml_path)]
     pub emit_law: Option<PathBuf>,
     /// Let --emit-law write a law whose fit did not converge.
     #[arg(long)]

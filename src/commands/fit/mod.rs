@@ -75,7 +75,7 @@ pub fn run(args: &FitArgs) -> Result<u8> {
         anyhow!(
             "`{flag}` = {}: {}",
             e.value,
-            coldpass::schedule::rule_words(&e.allowed)
+            coldpass::schedule::rule_in_unit(&e.name, &e.allowed)
         )
     })?;
     let mut results = Vec::with_capacity(args.files.len());

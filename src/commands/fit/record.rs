@@ -79,6 +79,42 @@ pub(super) fn open_record(path: &Path) -> Result<(Box<dyn BufRead>, u64)> {
     Ok((Box::new(BufReader::with_capacity(1 << 16, f)), meta.len()))
 }
 
+/// Whether a first line reads as a YAML `key: value` line (`title: Demo
+/// mill`, `passes:`) rather than a header row: a bare name, a colon, then a
+/// space or the end (a header such as `Time:s,Strain` has no space).
+fn looks_keyed(line: &str) -> bool {
+    match line.split_once(':') {
+        Some((key, rest)) => {
+            !key.is_empty()
+                && key
+                    .chars()
+                    .all(|c| c.is_ascii_alphanumeric() || c == '_' || c == '-')
+                && (rest.is_empty() || rest.starts_with([' ', '\t']))
+        }
+        None => false,
+    }
+}
+
+/// Whether `path` is named `.yaml` or `.yml`.
+fn named_yaml(path: &Path) -> bool {
+    path.extension()
+        .and_then(|e| e.to_str())
+        .is_some_and(|e| e.eq_ignore_ascii_case("yaml") || e.eq_ignore_ascii_case("yml"))
+}
+
+/// The message for a YAML file given as a tensile record: what it looks
+/// like (from its top-level keys) and where it goes instead; `None` when
+/// the file is not YAML after all.
+fn yaml_instead(path: &Path) -> Option<anyhow::Error> {
+    let text = crate::input::read_text(path).ok()?;
+    let (what, goes) = crate::commands::check::yaml_kind(&text)?;
+    Some(anyhow!(
+        "'{}' looks like {what}, not a tensile record: coldpass fit reads a tensile record as CSV \
+         (a header row naming the strain and stress, or force and extension, columns, then one row a point); {goes}",
+        path.display()
+    ))
+}
+
 /// Reads the header row and chooses the two columns with `pick`, then
 /// reads those two columns as numbers, line by line as bytes (no table of
 /// strings is kept: 16 bytes a point).
@@ -106,9 +142,23 @@ pub(super) fn read_columns(
             break t;
         }
     };
+    if looks_keyed(&header) {
+        if let Some(e) = yaml_instead(path) {
+            return Err(e);
+        }
+    }
     let sep = separator(&header);
     let headers: Vec<String> = header.split(sep).map(|h| unquote(h).to_string()).collect();
-    let (a, b) = pick(&headers)?;
+    let (a, b) = pick(&headers).map_err(|e| {
+        if named_yaml(path) {
+            e.context(format!(
+                "'{}' is named as a YAML file: coldpass fit reads a tensile record as CSV",
+                path.display()
+            ))
+        } else {
+            e
+        }
+    })?;
     let decimal_comma = sep != ',';
     let sep = sep as u8;
     let mut first = Vec::new();
