@@ -162,8 +162,12 @@ td.status { font-weight: bold; }
 tr.warn td.status { color: var(--warn); }
 tr.over td.status { color: var(--over); }
 .charts { display: flex; flex-wrap: wrap; gap: 8px; }
+/* On screen the chart takes the page's width: drawn 960 px wide with its
+   smallest text 9.7 px, it shows that text at 11 px or more from a 1100 px
+   wide figure (a 1280-pixel window gives 12.6 px). */
+.charts figure { width: 100%; }
 figure { margin: 0; max-width: 100%; }
-figure svg { width: 100%; max-width: 720px; height: auto; display: block; }
+figure svg { width: 100%; max-width: 1400px; height: auto; display: block; }
 figcaption { font-size: .85em; color: #444; }
 ul.notes { margin: 2px 0; padding-left: 20px; }
 footer.caution { margin-top: 12px; padding: 6px 10px; border: 2px solid #333; font-weight: bold; }
@@ -182,6 +186,13 @@ footer.caution { margin-top: 12px; padding: 6px 10px; border: 2px solid #333; fo
   tr { break-inside: avoid; }
   .second { display: grid; grid-template-columns: auto 1fr; gap: 4mm; align-items: start; }
   .charts { flex-direction: column; flex-wrap: nowrap; }
+  /* The tables beside the chart sit side by side where they fit; a caption
+     or heading wraps to its chart's or table's width instead of widening it
+     (width 0, then 100 % of what the figure or table makes it). */
+  .rest { display: flex; flex-wrap: wrap; gap: 0 3mm; align-items: start; }
+  .rest > section { width: fit-content; max-width: 100%; }
+  .rest h2, figcaption { width: 0; min-width: 100%; }
+  .charts figure { width: auto; }
   figure svg { width: auto; max-width: 100%; height: 100mm; }
   footer.caution { margin-top: 4px; padding: 2px 6px; }
   .verdict, tr.warn td, tr.over td { -webkit-print-color-adjust: exact; print-color-adjust: exact; }

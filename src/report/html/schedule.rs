@@ -162,6 +162,11 @@ pub fn schedule_sections(rep: &ScheduleReport, file: &ScheduleFile, units: Units
             methods,
         ]
         .into_iter()
+        // On a machine, the temperature and strength table too, before the
+        // block table, as the check table has it. Off a machine it stays off
+        // the page, so a 25-pass page prints on two sheets (the pass table
+        // carries the wire temperature).
+        .chain(rep.machine.is_some().then(|| temperature_table(rep, units)))
         .chain(crate::report::machine::html_tables(rep, units))
         .collect(),
         charts: vec![Chart {
@@ -171,6 +176,26 @@ pub fn schedule_sections(rep: &ScheduleReport, file: &ScheduleFile, units: Units
         notes: rep.notes.clone(),
         caution: rep.caution.clone(),
     })
+}
+
+/// The wire temperature and strength of every draw, as the check table shows
+/// it (heading, headers and figures from `report::machine`, so the names are
+/// the JSON keys' `wire_temperature_entry_c`, `wire_temperature_c`,
+/// `wire_temperature_no_cooling_c`, `entry_yield_mpa`, `tensile_strength_mpa`
+/// in `units`).
+fn temperature_table(rep: &ScheduleReport, units: Units) -> Table {
+    Table {
+        heading: "Wire temperature and strength".to_string(),
+        header: crate::report::machine::temperature_header(units),
+        rows: crate::report::machine::temperature_rows(rep, units)
+            .into_iter()
+            .map(|cells| Row {
+                cells,
+                status: Status::None,
+            })
+            .collect(),
+        page_break_before: false,
+    }
 }
 
 /// The page of a checked schedule.
