@@ -1,7 +1,8 @@
 //! The report page in a real browser (Debian's chromium, headless): printed
 //! to PDF a 25-pass schedule takes at most two landscape pages, A4 and
 //! Letter; a screenshot is not blank; nothing overflows the page's width; the
-//! DOM holds every pass row; and a title holding `<script>` is shown, not run.
+//! DOM holds every pass row; a title holding `<script>` is shown, not run;
+//! and the chart's smallest text is 11 px or more in a 1280-pixel window.
 //!
 //! In CI (`CI=1` or `COLDPASS_REQUIRE_BROWSER=1`, as `.ci/run` sets) a missing
 //! browser fails the test; on a developer machine without one it is skipped,
@@ -304,5 +305,55 @@ fn the_dom_holds_every_pass_row_and_a_script_title_does_not_run() {
                 "{row}"
             );
         }
+    }
+}
+
+/// The chart's text on screen: the smallest text of the SVG (its font size
+/// times the scale it is drawn at) is 11 px or more in a 1280-pixel window,
+/// the check page's and a machine page's (whose chart is taller), and the
+/// page still fits the window. 11 px is about the smallest screen text that
+/// reads comfortably (common practice, from memory: browsers' minimum-font
+/// settings and UI guidelines put body text at 12 px and up).
+#[test]
+fn chart_text_reads_at_11_px_on_a_1280_pixel_screen() {
+    let Some(browser) = browser() else { return };
+    let dir = tempfile::tempdir().unwrap();
+    let probe = r#"<script>
+let m = 1e9, n = 0;
+for (const t of document.querySelectorAll('figure svg text')) {
+  const px = parseFloat(getComputedStyle(t).fontSize) * t.ownerSVGElement.getScreenCTM().a;
+  if (t.textContent.trim()) { m = Math.min(m, px); n++; }
+}
+document.body.setAttribute('data-chart-text', n + ' ' + m.toFixed(2));
+</script></body>"#;
+    for (schedule, name) in [
+        (P25, "p25.html"),
+        ("schedules-demo/steel-multiblock.yaml", "machine.html"),
+    ] {
+        let page = page_of(&root(schedule), dir.path(), name);
+        let html = std::fs::read_to_string(&page).unwrap();
+        let measured = dir.path().join(format!("measured-{name}"));
+        std::fs::write(&measured, html.replace("</body>", probe)).unwrap();
+        let dom = run_browser(
+            &browser,
+            dir.path(),
+            &measured,
+            &["--window-size=1280,900".into(), "--dump-dom".into()],
+        );
+        let got = dom
+            .split(r#"data-chart-text=""#)
+            .nth(1)
+            .and_then(|s| s.split('"').next())
+            .expect("the probe ran");
+        let (n, px) = got.split_once(' ').unwrap();
+        assert!(
+            n.parse::<usize>().unwrap() > 20,
+            "{schedule}: chart text found: {got}"
+        );
+        let px: f64 = px.parse().unwrap();
+        assert!(
+            px >= 11.0,
+            "{schedule}: smallest chart text {px} px on screen"
+        );
     }
 }

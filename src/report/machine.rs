@@ -148,7 +148,7 @@ const BLOCKS: [Figure<BlockReport>; 8] = [
     ),
 ];
 
-fn temperature_header(units: Units) -> Vec<String> {
+pub(super) fn temperature_header(units: Units) -> Vec<String> {
     std::iter::once("step".to_string())
         .chain(TEMPERATURES.iter().map(|f| f.header(units)))
         .collect()
@@ -161,7 +161,7 @@ fn block_header(units: Units) -> Vec<String> {
         .collect()
 }
 
-fn temperature_rows(rep: &ScheduleReport, units: Units) -> Vec<Vec<String>> {
+pub(super) fn temperature_rows(rep: &ScheduleReport, units: Units) -> Vec<Vec<String>> {
     rep.passes
         .iter()
         .filter(|r| r.kind == StepKind::Draw)
@@ -322,8 +322,8 @@ pub fn html_tables(rep: &ScheduleReport, units: Units) -> Vec<html::Table> {
             .collect(),
         page_break_before: false,
     };
-    // The per-pass temperature table stays off the page: a 25-pass page must
-    // print on two sheets, and the block table carries the temperatures.
+    // The per-pass temperature table is added by the page itself, on a
+    // machine only (html/schedule.rs), so a 25-pass page prints on two sheets.
     let mut out = Vec::new();
     if let Some(m) = &rep.machine {
         out.push(table(

@@ -16,15 +16,22 @@
 //! [`schedule_sections`] gives its parts for a report that adds its own
 //! (as the design and fit pages do).
 
-use anyhow::Result;
-use coldpass::design::Design;
-use coldpass::evaluation::{ScheduleReport, StepKind, StepReport, Verdict};
-use coldpass::fit::FitReport;
-use coldpass::schedule::ScheduleFile;
+//!
+//! Files: this one the neutral page and its stylesheet; `schedule.rs` a
+//! checked schedule's sections (passes, methods, temperature and strength,
+//! machine); `design.rs` the design page (runs, anneals with their windows,
+//! die list); `fit.rs` the hardening-law fit page.
+
+use coldpass::evaluation::Verdict;
 use maud::{html, Markup, PreEscaped, DOCTYPE};
 
-use super::columns::{self, Column};
-use super::units::{Quantity, Units};
+mod design;
+mod fit;
+mod schedule;
+
+pub use design::design_page;
+pub use fit::fit_page;
+pub use schedule::{schedule_page, schedule_sections, step_status};
 
 /// How a row stands against the limits; shown by colour and by a word.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -155,8 +162,12 @@ td.status { font-weight: bold; }
 tr.warn td.status { color: var(--warn); }
 tr.over td.status { color: var(--over); }
 .charts { display: flex; flex-wrap: wrap; gap: 8px; }
+/* On screen the chart takes the page's width: drawn 960 px wide with its
+   smallest text 9.7 px, it shows that text at 11 px or more from a 1100 px
+   wide figure (a 1280-pixel window gives 12.6 px). */
+.charts figure { width: 100%; }
 figure { margin: 0; max-width: 100%; }
-figure svg { width: 100%; max-width: 720px; height: auto; display: block; }
+figure svg { width: 100%; max-width: 1400px; height: auto; display: block; }
 figcaption { font-size: .85em; color: #444; }
 ul.notes { margin: 2px 0; padding-left: 20px; }
 footer.caution { margin-top: 12px; padding: 6px 10px; border: 2px solid #333; font-weight: bold; }
@@ -175,6 +186,13 @@ footer.caution { margin-top: 12px; padding: 6px 10px; border: 2px solid #333; fo
   tr { break-inside: avoid; }
   .second { display: grid; grid-template-columns: auto 1fr; gap: 4mm; align-items: start; }
   .charts { flex-direction: column; flex-wrap: nowrap; }
+  /* The tables beside the chart sit side by side where they fit; a caption
+     or heading wraps to its chart's or table's width instead of widening it
+     (width 0, then 100 % of what the figure or table makes it). */
+  .rest { display: flex; flex-wrap: wrap; gap: 0 3mm; align-items: start; }
+  .rest > section { width: fit-content; max-width: 100%; }
+  .rest h2, figcaption { width: 0; min-width: 100%; }
+  .charts figure { width: auto; }
   figure svg { width: auto; max-width: 100%; height: 100mm; }
   footer.caution { margin-top: 4px; padding: 2px 6px; }
   .verdict, tr.warn td, tr.over td { -webkit-print-color-adjust: exact; print-color-adjust: exact; }
@@ -315,343 +333,6 @@ fn charts(charts: &[Chart]) -> Markup {
             }
         }
     }
-}
-
-/// The pass columns of the page: the figures read first plus the line figures,
-/// so that the planner's speed and power are there too.
-const PAGE_PASSES: &[&str] = &[
-    "step",
-    "die_size",
-    "exit_diameter_mm",
-    "area_reduction",
-    "cumulative_reduction",
-    "pass_strain",
-    "strain_after",
-    "flow_stress_exit_mpa",
-    "delta",
-    "semi_angle_deg",
-    "optimum_semi_angle_deg",
-    "governing_draw_stress_mpa",
-    "draw_ratio",
-    "force_kn",
-    "exit_speed_m_s",
-    "power_kw",
-    "wire_temperature_c",
-    "flags",
-];
-
-const PAGE_METHODS: &[&str] = &[
-    "step",
-    "mean_flow_stress_mpa",
-    "draw_stress_mpa.ideal",
-    "draw_stress_mpa.efficiency",
-    "draw_stress_mpa.sachs",
-    "draw_stress_mpa.siebel",
-    "draw_stress_mpa.redundant",
-    "draw_stress_mpa.upper_bound",
-    "back_tension_mpa",
-    "temperature_rise_c",
-];
-
-/// A step's standing: over when any flag is over a limit, warn when flagged.
-pub fn step_status(r: &StepReport) -> Status {
-    if r.kind == StepKind::Anneal {
-        Status::None
-    } else if r.flags.iter().any(|f| f.is_over()) {
-        Status::Over
-    } else if !r.flags.is_empty() {
-        Status::Warn
-    } else {
-        Status::Ok
-    }
-}
-
-fn step_table(
-    heading: String,
-    cols: &[&Column],
-    steps: &[&StepReport],
-    units: Units,
-    status: bool,
-) -> Table {
-    Table {
-        heading,
-        header: cols.iter().map(|c| c.header(units)).collect(),
-        rows: steps
-            .iter()
-            .map(|r| Row {
-                cells: cols.iter().map(|c| c.cell(r, units)).collect(),
-                status: if status { step_status(r) } else { Status::None },
-            })
-            .collect(),
-        page_break_before: false,
-    }
-}
-
-/// The parts of a checked schedule's page: facts, verdict, summary, the pass
-/// table and the drawing-stress table, the chart, notes and caution.
-pub fn schedule_sections(rep: &ScheduleReport, file: &ScheduleFile, units: Units) -> Result<Page> {
-    let mut facts = Vec::new();
-    if !rep.material.is_empty() {
-        facts.push(("Material".to_string(), rep.material.clone()));
-    }
-    if let Some(m) = &rep.machine {
-        let kind = serde_json::to_value(m.kind)
-            .ok()
-            .and_then(|v| v.as_str().map(str::to_string))
-            .unwrap_or_default();
-        let speed = |v: f64| {
-            format!(
-                "{} {}",
-                super::fixed(
-                    Some(Quantity::Speed.convert(v, units)),
-                    Quantity::Speed.decimals(2, units)
-                ),
-                Quantity::Speed.label(units)
-            )
-        };
-        facts.push((
-            "Machine".to_string(),
-            format!(
-                "{} ({kind}, {} blocks); attainable finish speed {}",
-                m.name,
-                m.blocks_available,
-                m.attainable_speed_m_s
-                    .map_or_else(|| "none (too hot at any speed)".to_string(), speed)
-            ),
-        ));
-    }
-    facts.push((
-        "Governing method".to_string(),
-        format!(
-            "{} ({}); draw ratio warn {} / max {}",
-            rep.method, rep.method_source, rep.draw_ratio_warn, rep.draw_ratio_max
-        ),
-    ));
-    let all: Vec<&StepReport> = rep.passes.iter().collect();
-    let draws: Vec<&StepReport> = rep
-        .passes
-        .iter()
-        .filter(|r| r.kind == StepKind::Draw)
-        .collect();
-    let mut methods = step_table(
-        format!(
-            "Drawing stress by method, {}",
-            Quantity::Stress.label(units)
-        ),
-        &columns::fixed_set(PAGE_METHODS),
-        &draws,
-        units,
-        false,
-    );
-    methods.page_break_before = false;
-    let svg = String::from_utf8(super::svg::schedule_in(rep, file, units)?)?;
-    Ok(Page {
-        title: if rep.title.is_empty() {
-            "Schedule".to_string()
-        } else {
-            rep.title.clone()
-        },
-        kind: "Schedule check".to_string(),
-        facts,
-        verdict: Some((
-            rep.summary.verdict.into(),
-            format!("Verdict: {}", super::table::verdict_words(rep.summary.verdict)),
-        )),
-        summary: super::table::summary_rows(rep, units),
-        tables: vec![
-            step_table(
-                "Passes".to_string(),
-                &columns::fixed_set(PAGE_PASSES),
-                &all,
-                units,
-                true,
-            ),
-            methods,
-        ]
-        .into_iter()
-        .chain(super::machine::html_tables(rep, units))
-        .collect(),
-        charts: vec![Chart {
-            caption: "Draw ratio per pass against the warn and max lines; flow stress against the total strain drawn, with each pass and anneal marked.".to_string(),
-            svg,
-        }],
-        notes: rep.notes.clone(),
-        caution: rep.caution.clone(),
-    })
-}
-
-/// The page of a checked schedule.
-pub fn schedule_page(rep: &ScheduleReport, file: &ScheduleFile, units: Units) -> Result<String> {
-    Ok(render(&schedule_sections(rep, file, units)?))
-}
-
-/// The page of a design: the schedule's page with the design's facts, its
-/// runs between anneals and why each anneal is there.
-pub fn design_page(d: &Design, units: Units) -> Result<String> {
-    let mut page = schedule_sections(&d.report, &d.schedule, units)?;
-    let s = &d.summary;
-    page.kind = "Schedule design".to_string();
-    page.facts.push((
-        "Design".to_string(),
-        super::design::summary(d, units)
-            .lines()
-            .take_while(|l| !l.trim().is_empty())
-            .collect::<Vec<_>>()
-            .join("; ")
-            .trim_start_matches("Design: ")
-            .to_string(),
-    ));
-    let len = |mm: f64| {
-        super::fixed(
-            Some(Quantity::Length.convert(mm, units)),
-            Quantity::Length.decimals(3, units),
-        )
-    };
-    let lu = Quantity::Length.label(units);
-    let runs = Table {
-        heading: "Runs between anneals".to_string(),
-        header: [
-            "run".to_string(),
-            format!("from {lu}"),
-            format!("to {lu}"),
-            "run strain".into(),
-            "strain at end".into(),
-            "passes".into(),
-            "draw ratio min".into(),
-            "draw ratio max".into(),
-        ]
-        .to_vec(),
-        rows: s
-            .runs
-            .iter()
-            .map(|r| Row {
-                cells: vec![
-                    r.run.to_string(),
-                    len(r.from_diameter_mm),
-                    len(r.to_diameter_mm),
-                    format!("{:.3}", r.strain),
-                    format!("{:.3}", r.strain_after),
-                    r.passes.to_string(),
-                    format!("{:.3}", r.draw_ratio_min),
-                    format!("{:.3}", r.draw_ratio_max),
-                ],
-                status: Status::None,
-            })
-            .collect(),
-        page_break_before: false,
-    };
-    page.tables.push(runs);
-    for a in &s.anneals {
-        page.notes.push(format!(
-            "Anneal at step {} ({} {lu}, {}): {}",
-            a.step,
-            len(a.diameter_mm),
-            a.reason.name(),
-            a.why
-        ));
-    }
-    page.notes.extend(s.notes.iter().cloned());
-    Ok(render(&page))
-}
-
-/// The page of a hardening-law fit: the record, the fits ranked, the chart,
-/// warnings and the caution.
-pub fn fit_page(r: &FitReport, src: &super::fit::Source, units: Units) -> Result<String> {
-    let opt = |v: Option<f64>, d: usize| super::fixed(v.filter(|x| x.is_finite()), d);
-    let su = Quantity::Stress.label(units);
-    let stress = |v: Option<f64>, d: usize| {
-        super::fixed(
-            v.filter(|x| x.is_finite())
-                .map(|x| Quantity::Stress.convert(x, units)),
-            Quantity::Stress.decimals(d, units),
-        )
-    };
-    let facts = vec![
-        ("Record".to_string(), src.file.clone()),
-        ("Columns".to_string(), src.columns.clone()),
-        (
-            "Points".to_string(),
-            format!("{} read, {} fitted", r.points_read, r.plastic_strain.len()),
-        ),
-    ];
-    let summary = vec![
-        (
-            "Young's modulus".to_string(),
-            match units {
-                // 1 Msi = 1000 ksi.
-                Units::Us => format!(
-                    "{} Msi",
-                    opt(
-                        r.youngs_modulus_gpa
-                            .map(|g| g * 1000.0 / super::units::MPA_PER_KSI / 1000.0),
-                        2
-                    )
-                ),
-                Units::Si => format!("{} GPa", opt(r.youngs_modulus_gpa, 1)),
-            },
-        ),
-        (
-            "0.2 % offset yield".to_string(),
-            format!("{} {su}", stress(r.yield_mpa, 0)),
-        ),
-        ("UTS".to_string(), format!("{} {su}", stress(r.uts_mpa, 0))),
-        ("uniform strain".to_string(), opt(r.uniform_strain, 3)),
-        (
-            "best law by AIC".to_string(),
-            r.best.map_or("none".to_string(), |b| b.name().to_string()),
-        ),
-    ];
-    let rows = r
-        .fits
-        .iter()
-        .map(|f| Row {
-            cells: vec![
-                format!(
-                    "{}{}",
-                    f.law.name(),
-                    if Some(f.law) == r.best { " (best)" } else { "" }
-                ),
-                f.params
-                    .iter()
-                    .map(|p| super::fit::param_text(p.name, p.value, p.std_error, " ± ", units))
-                    .collect::<Vec<_>>()
-                    .join("; "),
-                stress(Some(f.rms_mpa), 2),
-                opt(Some(f.r2), 5),
-                opt(Some(f.aic), 1),
-                stress(f.uts_mpa, 0),
-                stress(f.stress_at_reach_mpa, 0),
-                if f.converged { "yes" } else { "NO" }.to_string(),
-            ],
-            status: if f.converged {
-                Status::None
-            } else {
-                Status::Warn
-            },
-        })
-        .collect();
-    let page = Page {
-        title: format!("Hardening-law fit: {}", src.file),
-        kind: "Hardening-law fit".to_string(),
-        facts,
-        verdict: None,
-        summary,
-        tables: vec![Table {
-            heading: "Fits".to_string(),
-            header: super::fit::law_header(r.reach_strain, units),
-            rows,
-            page_break_before: false,
-        }],
-        charts: vec![Chart {
-            caption: "The record and every fitted law.".to_string(),
-            svg: super::fit::svg(r, src, units)?,
-        }],
-        notes: r.warnings.iter().map(ToString::to_string).collect(),
-        caution: super::fit::CAUTION
-            .trim_start_matches("Caution: ")
-            .to_string(),
-    };
-    Ok(render(&page))
 }
 
 #[cfg(test)]
