@@ -413,9 +413,9 @@ fn machine_page_shows_the_temperature_and_block_tables_as_the_json() {
                 header,
                 [
                     "step".to_string(),
-                    format!("wire temperature in {t}"),
-                    format!("wire temperature out {t}"),
-                    format!("no cooling {t}"),
+                    format!("wire temperature entry {t}"),
+                    format!("wire temperature {t}"),
+                    format!("wire temperature no cooling {t}"),
                     format!("entry yield {s}"),
                     format!("tensile strength {s}"),
                 ],
@@ -450,7 +450,7 @@ fn machine_page_shows_the_temperature_and_block_tables_as_the_json() {
                     "slip %".into(),
                     format!("net pull {pull}"),
                     format!("net power {kw}"),
-                    "load %".into(),
+                    "motor load %".into(),
                 ],
                 "{what}"
             );

@@ -538,3 +538,22 @@ fn a_range_message_shows_its_unit() {
         assert!(stderr(&o).contains(says), "{to}: {}", stderr(&o));
     }
 }
+
+/// A record whose header line is long junk (binary read as text) gets a
+/// message that names the file and a few shortened headers, not a page of
+/// them: 30 headers of 100 characters give 12 of at most 40, "and 18 more".
+#[test]
+fn a_record_of_long_junk_headers_gets_a_short_message() {
+    let dir = tempfile::tempdir().unwrap();
+    let p = dir.path().join("junk.csv");
+    let head: Vec<String> = (0..30)
+        .map(|i| format!("{i:02}{}", "x".repeat(98)))
+        .collect();
+    std::fs::write(&p, format!("{}\n1,2\n", head.join(","))).unwrap();
+    let o = coldpass(&["fit", p.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(1), "{}", stderr(&o));
+    let e = stderr(&o);
+    assert!(e.len() < 1000, "message of {} bytes: {e}", e.len());
+    assert!(e.contains("junk.csv") && e.contains("and 18 more"), "{e}");
+    assert!(e.contains(&format!("'00{}...'", "x".repeat(38))), "{e}");
+}

@@ -255,11 +255,15 @@ pub(super) fn find(
     flag: &str,
 ) -> Result<usize> {
     let present = || {
-        headers
+        let mut v: Vec<String> = headers
             .iter()
-            .map(|h| format!("'{h}'"))
-            .collect::<Vec<_>>()
-            .join(", ")
+            .take(SHOWN_COLUMNS)
+            .map(|h| shown(h))
+            .collect();
+        if headers.len() > SHOWN_COLUMNS {
+            v.push(format!("and {} more", headers.len() - SHOWN_COLUMNS));
+        }
+        v.join(", ")
     };
     if let Some(name) = named {
         return headers
@@ -287,7 +291,8 @@ pub(super) fn find(
                 "'{}': several column headers contain '{word}' ({}); choose one with {flag}",
                 path.display(),
                 hits.iter()
-                    .map(|&i| format!("'{}'", headers[i]))
+                    .take(SHOWN_COLUMNS)
+                    .map(|&i| shown(&headers[i]))
                     .collect::<Vec<_>>()
                     .join(", ")
             ),
@@ -299,6 +304,22 @@ pub(super) fn find(
         words.join("' or '"),
         present()
     )
+}
+
+/// Most column headers a message lists.
+const SHOWN_COLUMNS: usize = 12;
+/// Most characters of one header a message shows.
+const SHOWN_CHARS: usize = 40;
+
+/// A header as a message quotes it: at most [`SHOWN_CHARS`] characters
+/// (a line of binary read as text must not make the message a page long).
+fn shown(h: &str) -> String {
+    if h.chars().count() > SHOWN_CHARS {
+        let cut: String = h.chars().take(SHOWN_CHARS).collect();
+        format!("'{cut}...'")
+    } else {
+        format!("'{h}'")
+    }
 }
 
 pub(super) fn has(headers: &[String], word: &str) -> bool {
