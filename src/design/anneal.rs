@@ -207,7 +207,7 @@ pub(super) fn place(
         Ok((sum, clamped, (sum - rest) + TILT * past))
     };
     // The level where the tilted difference is 0: regula falsi (Illinois,
-    // with halvings) on it, to 1e-13 of the level; the last rounding goes
+    // with halvings) on it, to 1e-13 of the level range; the last rounding goes
     // to the runs below.
     let f_lo = eval(0.0, &mut s)?.2;
     let f_hi = eval(top, &mut s)?.2;
@@ -216,15 +216,34 @@ pub(super) fn place(
     } else if f_hi <= 0.0 {
         top
     } else {
-        solve_increasing(
-            |lam| Ok(eval(lam, &mut s)?.2),
-            0.0,
+        // Solved in `u = lambda + top`, so that the tolerance is of the
+        // level range even where the level is near 0. Where a run's strain
+        // jumps (a level past its heavy side) the solve may not settle: then
+        // 60 halvings of the level range, the least level whose sum reaches.
+        match solve_increasing(
+            |u| Ok(eval(u - top, &mut s)?.2),
             top,
+            2.0 * top,
             f_lo,
             f_hi,
             1e-13,
             "anneal placement",
-        )?
+        ) {
+            Ok(u) => u - top,
+            Err(DesignError::Solver { .. }) => {
+                let (mut lo, mut hi) = (0.0, top);
+                for _ in 0..60 {
+                    let m = 0.5 * (lo + hi);
+                    if eval(m, &mut s)?.2 < 0.0 {
+                        lo = m;
+                    } else {
+                        hi = m;
+                    }
+                }
+                hi
+            }
+            Err(e) => return Err(e),
+        }
     };
     let (_, clamped, _) = eval(level, &mut s)?;
     // Hand the last rounding to the runs with room, in order.

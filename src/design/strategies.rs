@@ -35,6 +35,11 @@ use super::{DesignError, PASS_STRAIN_FLOOR};
 
 /// Halvings of a level bracket.
 const BISECTIONS: usize = 30;
+/// A level whose binding pass is within its limit (past the search's guard)
+/// by at most this fraction of the limit is the switch: the level tolerance
+/// of [`RunTable::switch`] (1e-10 of the level range) leaves margins of about
+/// this size.
+const SWITCH_MARGIN: f64 = 1e-11;
 
 /// The kind of run: where it starts and with which law.
 #[derive(Debug, Clone, Copy)]
@@ -225,6 +230,11 @@ pub(super) struct RunTable<'c, 'f> {
     done: u32,
     t_a: f64,
     t_b: f64,
+    /// How far the light side's level rose at the last two counts that
+    /// moved it (the last, the one before): where the next count's switch
+    /// is first tried.
+    t_a_step: f64,
+    t_a_step_before: f64,
     blocked: bool,
     /// The levels `(t_a, t_b)` of each count done by the running extremes.
     levels: Vec<Option<(f64, f64)>>,
@@ -243,6 +253,8 @@ impl<'c, 'f> RunTable<'c, 'f> {
             done: 0,
             t_a: 0.0,
             t_b: 0.0,
+            t_a_step: 0.0,
+            t_a_step_before: 0.0,
             blocked: false,
             levels: vec![None; max_n as usize + 1],
         };
@@ -304,14 +316,18 @@ impl<'c, 'f> RunTable<'c, 'f> {
         let top = self.level_top(1);
         // Heavy side: the new pass may bind below the running minimum.
         if !self.shot(self.t_b, ku)?.heavy(ku) {
-            self.t_b = self.switch(0.0, self.t_b, ku, true)?;
+            self.t_b = self.switch(0.0, self.t_b, ku, true, None)?;
         }
         // Light side: the new pass may bind above the running maximum.
         if !self.shot(self.t_a, ku)?.light(ku) {
             if !self.shot(top, ku)?.light(ku) {
                 self.blocked = true;
             } else {
-                self.t_a = self.switch(self.t_a, top, ku, false)?;
+                let guess = self.light_guess(top);
+                let t = self.switch(self.t_a, top, ku, false, guess)?;
+                self.t_a_step_before = self.t_a_step;
+                self.t_a_step = t - self.t_a;
+                self.t_a = t;
             }
         }
         if self.blocked || self.t_a > self.t_b {
@@ -375,13 +391,37 @@ impl<'c, 'f> RunTable<'c, 'f> {
         Ok(out)
     }
 
+    /// Where the light side's switch for `n` passes is first tried: the
+    /// running level `t_a` plus the last count's rise times the ratio of the
+    /// last two rises (each count's lightest pass moves the level a little
+    /// less than the one before, near geometrically); `None` before two
+    /// counts have moved it.
+    fn light_guess(&self, top: f64) -> Option<f64> {
+        let (d1, d0) = (self.t_a_step, self.t_a_step_before);
+        if !(d1 > 0.0 && d0 > 0.0) {
+            return None;
+        }
+        let x = self.t_a + d1 * (d1 / d0).clamp(0.3, 1.0);
+        (x > self.t_a && x < top).then_some(x)
+    }
+
     /// The level in `[lo, hi]` where the first `n` passes switch: on the
     /// heavy side (`heavy`: ok at `lo`, over at `hi`, the last ok level
     /// returned) or the light side (under at `lo`, ok at `hi`, the first ok
-    /// level returned). Regula falsi (Illinois) on pass `n`'s margin with
-    /// the bracket kept by the limits themselves, and a halving whenever the
-    /// bracket fails to halve in three steps; to 1e-10 of the level range.
-    fn switch(&mut self, lo: f64, hi: f64, n: usize, heavy: bool) -> Result<f64, DesignError> {
+    /// level returned). The secant on pass `n`'s margin through the last two
+    /// levels tried (from `first` when given), kept inside the bracket the
+    /// limits themselves keep, with regula falsi (Illinois) when it leaves
+    /// it and a halving whenever the bracket fails to halve in three steps;
+    /// done at an ok level within [`SWITCH_MARGIN`] of the limit, or when the
+    /// bracket is 1e-10 of the level range.
+    fn switch(
+        &mut self,
+        lo: f64,
+        hi: f64,
+        n: usize,
+        heavy: bool,
+        first: Option<f64>,
+    ) -> Result<f64, DesignError> {
         let tol = 1e-10 * self.level_top(1).max(1e-12);
         let margin = |s: &Shot| -> (bool, f64) {
             let ok = if heavy { s.heavy(n) } else { s.light(n) };
@@ -398,16 +438,23 @@ impl<'c, 'f> RunTable<'c, 'f> {
         let (mut a, mut b) = if heavy { (hi, lo) } else { (lo, hi) };
         let (_, mut ga) = margin(self.shot(a, n)?);
         let (_, mut gb) = margin(self.shot(b, n)?);
+        // The last two levels tried, for the secant.
+        let mut last = [(a, ga), (b, gb)];
         let mut side = 0i8;
         let mut width_ref = (b - a).abs();
         for it in 0..200 {
             if (b - a).abs() <= tol {
                 break;
             }
-            let mut x = if ga.is_finite() && gb.is_finite() && gb > ga {
-                a - ga * (b - a) / (gb - ga)
-            } else {
-                0.5 * (a + b)
+            let (lo_x, hi_x) = (a.min(b), a.max(b));
+            let inside = |x: f64| x > lo_x && x < hi_x;
+            let [(x0, g0), (x1, g1)] = last;
+            let secant = x1 - g1 * (x1 - x0) / (g1 - g0);
+            let mut x = match first.filter(|&f| it == 0 && inside(f)) {
+                Some(f) => f,
+                None if secant.is_finite() && inside(secant) => secant,
+                None if ga.is_finite() && gb.is_finite() && gb > ga => a - ga * (b - a) / (gb - ga),
+                None => 0.5 * (a + b),
             };
             if it % 3 == 2 {
                 if (b - a).abs() > 0.5 * width_ref {
@@ -415,11 +462,16 @@ impl<'c, 'f> RunTable<'c, 'f> {
                 }
                 width_ref = (b - a).abs();
             }
-            let (lo_x, hi_x) = (a.min(b), a.max(b));
-            if !(x > lo_x && x < hi_x) {
+            if !inside(x) {
                 x = 0.5 * (a + b);
             }
             let (ok, g) = margin(self.shot(x, n)?);
+            if ok && g <= SWITCH_MARGIN {
+                // Within the limit by less than a part in 1e11 of it: as
+                // close as the level tolerance would bring it.
+                return Ok(x);
+            }
+            last = [last[1], (x, g)];
             if ok {
                 b = x;
                 gb = g;
