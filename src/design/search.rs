@@ -69,6 +69,10 @@ pub(super) struct Tables<'c, 'f> {
     /// Strain of the temper run that lands the window's middle.
     pub(super) aim: Option<f64>,
     rows: Vec<Vec<Option<Set>>>,
+    /// Runs are looked at only up to the count that reaches their class's
+    /// strain cap ([`RunTable::capped_by`]): set while the fewest passes
+    /// are sought, not for an exact count.
+    prune: bool,
 }
 
 fn tol(total: f64) -> f64 {
@@ -110,6 +114,7 @@ impl<'c, 'f> Tables<'c, 'f> {
             total,
             aim: None,
             rows: Vec::new(),
+            prune: false,
         }
     }
 
@@ -181,13 +186,20 @@ impl<'c, 'f> Tables<'c, 'f> {
         }
         if self.rows[j][p].is_none() {
             let set = if j == 0 {
-                match self.first_iv(p as u32)? {
-                    Some(iv) => vec![(iv.lo, iv.hi)],
-                    None => Vec::new(),
+                if self.past_cap(true, p)? {
+                    Vec::new()
+                } else {
+                    match self.first_iv(p as u32)? {
+                        Some(iv) => vec![(iv.lo, iv.hi)],
+                        None => Vec::new(),
+                    }
                 }
             } else {
                 let mut acc: Set = Vec::new();
                 for m in 1..=p.saturating_sub(j - 1) {
+                    if self.past_cap(false, m)? {
+                        break;
+                    }
                     let Some(iv) = self.annealed().interval(m as u32)? else {
                         continue;
                     };
@@ -203,6 +215,24 @@ impl<'c, 'f> Tables<'c, 'f> {
             self.rows[j][p] = Some(set);
         }
         Ok(self.rows[j][p].as_ref().expect("just filled"))
+    }
+
+    /// Whether, while pruning, a run of `n` passes (of the first run's class
+    /// with `first`, else the annealed one) is past the count that reaches
+    /// its class's strain cap: in the fewest-passes search such a run is
+    /// never needed, since that count carries every strain it can with fewer
+    /// passes, and the first `(N, k)` and its split are those of the search
+    /// that looks at every count.
+    fn past_cap(&mut self, first: bool, n: usize) -> Result<bool, DesignError> {
+        if !self.prune || n <= 1 {
+            return Ok(false);
+        }
+        let t = if first {
+            &mut self.first
+        } else {
+            self.annealed()
+        };
+        Ok(t.capped_by(n as u32 - 1)?.is_some_and(|c| n as u32 > c))
     }
 
     /// Whether row `j` is empty for every pass count up to `n`.
@@ -228,6 +258,7 @@ impl<'c, 'f> Tables<'c, 'f> {
         if lo > hi {
             return Ok(None);
         }
+        self.prune = lo < hi;
         match max_anneals {
             Some(kmax) => {
                 for n in lo..=hi {
@@ -322,6 +353,9 @@ impl<'c, 'f> Tables<'c, 'f> {
                 .map(|t| (t, true))
                 .chain((0..=n).map(|t| (t, false)))
             {
+                if self.past_cap(false, t as usize)? {
+                    continue;
+                }
                 let Some(tv) = self.temper_iv(t)? else {
                     continue;
                 };
@@ -372,6 +406,9 @@ impl<'c, 'f> Tables<'c, 'f> {
             });
             let mut found = None;
             for m in ms {
+                if self.past_cap(false, m)? {
+                    continue;
+                }
                 let Some(iv) = self.annealed().interval(m as u32)? else {
                     continue;
                 };

@@ -238,6 +238,10 @@ pub(super) struct RunTable<'c, 'f> {
     blocked: bool,
     /// The levels `(t_a, t_b)` of each count done by the running extremes.
     levels: Vec<Option<(f64, f64)>>,
+    /// The least count whose range reaches the class's strain cap, once
+    /// found, and the counts looked at for it.
+    capped: Option<u32>,
+    scanned: u32,
 }
 
 impl<'c, 'f> RunTable<'c, 'f> {
@@ -257,6 +261,8 @@ impl<'c, 'f> RunTable<'c, 'f> {
             t_a_step_before: 0.0,
             blocked: false,
             levels: vec![None; max_n as usize + 1],
+            capped: None,
+            scanned: 0,
         };
         t.t_b = t.level_top(1);
         t
@@ -265,6 +271,30 @@ impl<'c, 'f> RunTable<'c, 'f> {
     /// Most passes a run may have.
     pub(super) fn max_n(&self) -> u32 {
         self.max_n
+    }
+
+    /// The least count up to `n` whose run can carry the class's strain cap
+    /// (`b(m)` at the cap), if one is: a run of more passes can carry no
+    /// strain that this count cannot (`a` never falls as passes are added,
+    /// `b` is at most the cap), so a search for the fewest passes need not
+    /// look past it ([`super::search`]).
+    pub(super) fn capped_by(&mut self, n: u32) -> Result<Option<u32>, DesignError> {
+        if let Some(c) = self.capped {
+            return Ok((c <= n).then_some(c));
+        }
+        let cap = self.class.strain_cap;
+        while self.scanned < n.min(self.max_n) {
+            let q = self.scanned + 1;
+            self.scanned = q;
+            if self
+                .interval(q)?
+                .is_some_and(|iv| iv.hi >= cap * (1.0 - 1e-12))
+            {
+                self.capped = Some(q);
+                return Ok(Some(q));
+            }
+        }
+        Ok(None)
     }
 
     fn shared(&self) -> bool {
