@@ -136,8 +136,10 @@ pub(super) fn window_strains(
     }))
 }
 
-/// The strain of each run of `split` (first, middle runs, temper run), and
-/// whether every run with passes could be held at one level.
+/// The strain of each run of `split` (first, middle runs, temper run),
+/// whether every run with passes could be held at one level, and that level
+/// when it was solved (for equal-ratio the common draw ratio, where each
+/// run's own layout starts its solve).
 ///
 /// With a window and `aim_temper`, the temper run takes the strain nearest
 /// the window's middle that leaves the other runs a feasible total. The rest
@@ -152,7 +154,7 @@ pub(super) fn place(
     split: &Split,
     window: Option<WindowStrains>,
     aim_temper: bool,
-) -> Result<(Vec<f64>, bool), DesignError> {
+) -> Result<(Vec<f64>, bool, Option<f64>), DesignError> {
     let total = tables.total;
     let mut counts = vec![split.first];
     counts.extend(split.middle.iter().copied());
@@ -179,7 +181,7 @@ pub(super) fn place(
     let free: Vec<usize> = (0..r).filter(|i| fixed[*i].is_none()).collect();
     let mut s: Vec<f64> = fixed.iter().map(|x| x.unwrap_or(0.0)).collect();
     if free.is_empty() {
-        return Ok((s, true));
+        return Ok((s, true, None));
     }
     let top = free
         .iter()
@@ -256,7 +258,7 @@ pub(super) fn place(
         residual -= v - s[i];
         s[i] = v;
     }
-    Ok((s, !clamped))
+    Ok((s, !clamped, Some(level)))
 }
 
 fn table<'a, 'c, 'f>(tables: &'a mut Tables<'c, 'f>, i: usize) -> &'a mut RunTable<'c, 'f> {

@@ -104,7 +104,7 @@ pub(super) fn set_by(
     tables: &mut Tables,
     s: &Split,
 ) -> Result<String, DesignError> {
-    let (strains, _) = anneal::place(tables, s, input.window, true)?;
+    let (strains, _, _) = anneal::place(tables, s, input.window, true)?;
     let mut counts = vec![s.first];
     counts.extend(s.middle.iter().copied());
     if let Some(t) = s.temper {

@@ -14,7 +14,7 @@ pub(super) fn lay_out<'f>(
     chooser: &Chooser<'f>,
     tables: &mut Tables<'_, 'f>,
     counts: &[u32],
-    strains: &[f64],
+    (strains, level): (&[f64], Option<f64>),
 ) -> Result<(RunPasses<'f>, Vec<usize>), DesignError> {
     let file = input.file;
     let r = counts.len();
@@ -49,7 +49,7 @@ pub(super) fn lay_out<'f>(
         let passes = if counts[i] == 0 {
             Vec::new()
         } else {
-            let s = chooser.strains(&run, counts[i])?;
+            let s = chooser.strains(&run, counts[i], level)?;
             let p = chooser.passes_of(&run, &s)?;
             let even = chooser.strategy != Strategy::EqualRatio
                 || spread(p.iter().map(|p| p.ratio)) <= EQUAL_RATIO_SPREAD_MAX;
@@ -134,13 +134,13 @@ pub(super) fn assemble<'f>(
 ) -> Result<Design, DesignError> {
     let t = input.target;
     let whole = t.strategy == Strategy::EqualRatio && t.ratio_across == RatioAcross::WholeSchedule;
-    let (strains, one_level) = anneal::place(tables, split, input.window, !whole)?;
+    let (strains, one_level, level) = anneal::place(tables, split, input.window, !whole)?;
     let mut counts = vec![split.first];
     counts.extend(split.middle.iter().copied());
     if let Some(n) = split.temper {
         counts.push(n);
     }
-    let (mut runs, by_table) = lay_out(input, chooser, tables, &counts, &strains)?;
+    let (mut runs, by_table) = lay_out(input, chooser, tables, &counts, (&strains, level))?;
     let bad = broken(chooser, &runs, &by_table);
     if !bad.is_empty() {
         return Err(DesignError::NoDesign {

@@ -127,12 +127,25 @@ impl Chooser<'_> {
 
     /// The equal-ratio pass strains of `n` passes: the common ratio solved so
     /// that the last exit lands on `run.to_mm`.
-    fn equal_ratio_strains(&self, run: &Run, n: u32) -> Result<(Vec<f64>, f64), DesignError> {
+    fn equal_ratio_strains(
+        &self,
+        run: &Run,
+        n: u32,
+        hint: Option<f64>,
+    ) -> Result<(Vec<f64>, f64), DesignError> {
         let total = run.strain();
         let even = vec![total / n as f64; n as usize];
         let start = self.passes_of(run, &even)?;
-        let mut lo_rho = start.iter().map(|p| p.ratio).fold(f64::INFINITY, f64::min);
-        let mut hi_rho = start.iter().map(|p| p.ratio).fold(0.0, f64::max);
+        // The bracket: about the ratio the tables placed the run at, when
+        // given (the bracket steps out below if the run's own sizes move
+        // it), else the ratios of an even split.
+        let (mut lo_rho, mut hi_rho) = match hint.filter(|h| h.is_finite() && *h > 0.0) {
+            Some(h) => (h * (1.0 - 1e-9), h * (1.0 + 1e-9)),
+            None => (
+                start.iter().map(|p| p.ratio).fold(f64::INFINITY, f64::min),
+                start.iter().map(|p| p.ratio).fold(0.0, f64::max),
+            ),
+        };
         let mut guesses: Vec<f64> = even.clone();
         let mut angles: Vec<f64> = start.iter().map(|p| p.semi_angle_deg).collect();
         let target = run.to_mm.ln();
@@ -180,8 +193,14 @@ impl Chooser<'_> {
         Ok((strains, rho))
     }
 
-    /// The pass strains of `n` passes by the strategy.
-    pub(super) fn strains(&self, run: &Run, n: u32) -> Result<Vec<f64>, DesignError> {
+    /// The pass strains of `n` passes by the strategy; `hint` is the draw
+    /// ratio an equal-ratio run is likely at (the placement's level).
+    pub(super) fn strains(
+        &self,
+        run: &Run,
+        n: u32,
+        hint: Option<f64>,
+    ) -> Result<Vec<f64>, DesignError> {
         let total = run.strain();
         Ok(match self.strategy {
             Strategy::EqualStrain => vec![total / n as f64; n as usize],
@@ -189,7 +208,7 @@ impl Chooser<'_> {
                 .iter()
                 .map(|w| w * total / n as f64)
                 .collect(),
-            Strategy::EqualRatio => self.equal_ratio_strains(run, n)?.0,
+            Strategy::EqualRatio => self.equal_ratio_strains(run, n, hint)?.0,
         })
     }
 }

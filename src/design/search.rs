@@ -279,8 +279,13 @@ impl<'c, 'f> Tables<'c, 'f> {
                             return Ok(Some(s));
                         }
                     }
-                    // A row empty up to the bound stays empty with more anneals.
-                    if k > 0 && self.row_empty(self.row_of(k), hi as usize)? {
+                    // A row empty up to the bound stays empty with more
+                    // anneals (not worked out while the runs' strain caps
+                    // alone rule `k` out: more anneals may then serve).
+                    if k > 0
+                        && !self.short_of_cap(k)
+                        && self.row_empty(self.row_of(k), hi as usize)?
+                    {
                         break;
                     }
                 }
@@ -317,17 +322,23 @@ impl<'c, 'f> Tables<'c, 'f> {
         }
     }
 
-    /// A split of `n` passes with `k` anneals that carries the whole reduction.
-    fn check(&mut self, n: u32, k: usize) -> Result<Option<Split>, DesignError> {
+    /// Capacity: the first run carries at most its cap, each later run at
+    /// most the annealed cap; with `k` anneals, whether that sum is short of
+    /// the whole reduction (then no split with `k` anneals can work).
+    fn short_of_cap(&mut self, k: usize) -> bool {
         let e = self.total;
-        let eps = tol(e);
-        // Capacity: the first run carries at most its cap, each later run at
-        // most the annealed cap; fewer anneals than that sum allows cannot work.
         let (c0, ca) = (
             self.first.class.strain_cap.max(0.0),
             self.annealed().class.strain_cap.max(0.0),
         );
-        if c0 + k as f64 * ca < e - eps {
+        c0 + k as f64 * ca < e - tol(e)
+    }
+
+    /// A split of `n` passes with `k` anneals that carries the whole reduction.
+    fn check(&mut self, n: u32, k: usize) -> Result<Option<Split>, DesignError> {
+        let e = self.total;
+        let eps = tol(e);
+        if self.short_of_cap(k) {
             return Ok(None);
         }
         let windowed = self.window.is_some();
