@@ -21,7 +21,7 @@ passes, best of several batches); SciPy by timeit (best of several rounds).
 Both run in this one process tree, one after the other, so the ratio holds
 on the machine it is measured on. Run from the repository root:
 
-    /work/main/.venv/bin/python benches/scipy_side_by_side.py
+    .venv/bin/python benches/scipy_side_by_side.py
 """
 
 import json
