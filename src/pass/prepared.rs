@@ -168,7 +168,8 @@ impl<'a> PreparedPass<'a> {
     #[inline]
     fn mechanics_of(&self, die: &Die) -> Result<PassMechanics, PassError> {
         let t = DieTerms::new(die, self.exit_diameter_mm);
-        let alpha = die.semi_angle_deg.to_radians();
+        let angle = AngleTerms::of(die.semi_angle_deg);
+        let alpha = angle.alpha;
         let strain_after = self.strain_before + self.eps;
         let shape = delta(alpha, self.reduction);
         let result = PassMechanics {
@@ -187,7 +188,7 @@ impl<'a> PreparedPass<'a> {
             friction_factor: t.m,
             friction_factor_derived: t.m_derived,
             back_tension_mpa: self.back,
-            draw_stress_mpa: self.all_stresses_with_delta(&t, alpha, shape)?,
+            draw_stress_mpa: self.all_stresses_with_delta(&t, angle, shape)?,
         };
         // Valid but extreme inputs (a law constant near f64::MAX, a subnormal
         // yield stress) can overflow; report that rather than return infinities.
@@ -225,10 +226,10 @@ impl<'a> PreparedPass<'a> {
     }
 
     /// Every method's stress, with `shape = delta(alpha, r)` already at hand.
-    fn all_stresses_with_delta(
+    fn all_stresses_with_delta<A: Angle>(
         &self,
         t: &DieTerms,
-        alpha: f64,
+        alpha: A,
         shape: f64,
     ) -> Result<DrawStresses, PassError> {
         let cone = self.sachs_cone(t, alpha)?;
@@ -377,7 +378,30 @@ pub struct AngleTerms {
     avitzur_f: f64,
 }
 
+thread_local! {
+    /// The last semi-angle's terms (by its bits) on this thread: a schedule's
+    /// passes mostly share one die angle, and a risk sample runs the same
+    /// dies again, so each pass's mechanics finds its angle's terms here.
+    static LAST_ANGLE: std::cell::Cell<Option<(u64, AngleTerms)>> =
+        const { std::cell::Cell::new(None) };
+}
+
 impl AngleTerms {
+    /// [`AngleTerms::new`] of `semi_angle_deg`, from the last angle's terms
+    /// when it is the same (the same bits either way).
+    #[inline]
+    pub(super) fn of(semi_angle_deg: f64) -> Self {
+        let key = semi_angle_deg.to_bits();
+        LAST_ANGLE.with(|c| match c.get() {
+            Some((k, t)) if k == key => t,
+            _ => {
+                let t = AngleTerms::new(semi_angle_deg);
+                c.set(Some((key, t)));
+                t
+            }
+        })
+    }
+
     /// The terms of a semi-angle of `semi_angle_deg` degrees (the radians as
     /// `f64::to_radians` gives them, so every figure is the one computed on
     /// the fly).
