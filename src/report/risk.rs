@@ -395,20 +395,13 @@ pub fn page(rep: &RiskReport, units: Units) -> Result<String> {
         .collect();
     let mut tables = Vec::new();
     if !rep.scatter.is_empty() {
-        tables.push(Table {
-            heading: "Inputs that scatter".into(),
-            header: ["input", "distribution", "between dies", "from"]
+        tables.push(Table::plain(
+            "Inputs that scatter".into(),
+            ["input", "distribution", "between dies", "from"]
                 .map(String::from)
                 .to_vec(),
-            rows: scatter_rows(rep, units)
-                .into_iter()
-                .map(|cells| Row {
-                    cells,
-                    status: Status::None,
-                })
-                .collect(),
-            page_break_before: false,
-        });
+            scatter_rows(rep, units),
+        ));
     }
     tables.insert(
         0,

@@ -97,21 +97,6 @@ fn length(mm: f64, decimals: usize, units: Units) -> String {
     )
 }
 
-fn table(heading: String, header: Vec<String>, rows: Vec<Vec<String>>) -> Table {
-    Table {
-        heading,
-        header,
-        rows: rows
-            .into_iter()
-            .map(|cells| Row {
-                cells,
-                status: Status::None,
-            })
-            .collect(),
-        page_break_before: false,
-    }
-}
-
 /// The anneals: step, diameter, reason, the strain each removes and its
 /// window (`-` for an anneal without one, as a cold-work anneal is).
 fn anneal_table(d: &Design, units: Units) -> Table {
@@ -134,7 +119,7 @@ fn anneal_table(d: &Design, units: Units) -> Table {
             ]
         })
         .collect();
-    table(
+    Table::plain(
         "Anneals".to_string(),
         vec![
             "step".to_string(),
@@ -169,7 +154,7 @@ fn die_table(d: &Design, units: Units) -> Table {
             ]
         })
         .collect();
-    table(
+    Table::plain(
         format!(
             "Die list ({})",
             s.die_rounding.as_deref().unwrap_or(

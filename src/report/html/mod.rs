@@ -99,6 +99,24 @@ pub struct Table {
     pub page_break_before: bool,
 }
 
+impl Table {
+    /// A table of plain rows (no status tint) that does not start a page.
+    pub fn plain(heading: String, header: Vec<String>, rows: Vec<Vec<String>>) -> Table {
+        Table {
+            heading,
+            header,
+            rows: rows
+                .into_iter()
+                .map(|cells| Row {
+                    cells,
+                    status: Status::None,
+                })
+                .collect(),
+            page_break_before: false,
+        }
+    }
+}
+
 /// A chart: an SVG document drawn by plotters, and a caption.
 #[derive(Debug, Clone)]
 pub struct Chart {

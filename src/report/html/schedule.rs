@@ -184,18 +184,11 @@ pub fn schedule_sections(rep: &ScheduleReport, file: &ScheduleFile, units: Units
 /// `wire_temperature_no_cooling_c`, `entry_yield_mpa`, `tensile_strength_mpa`
 /// in `units`).
 fn temperature_table(rep: &ScheduleReport, units: Units) -> Table {
-    Table {
-        heading: "Wire temperature and strength".to_string(),
-        header: crate::report::machine::temperature_header(units),
-        rows: crate::report::machine::temperature_rows(rep, units)
-            .into_iter()
-            .map(|cells| Row {
-                cells,
-                status: Status::None,
-            })
-            .collect(),
-        page_break_before: false,
-    }
+    Table::plain(
+        "Wire temperature and strength".to_string(),
+        crate::report::machine::temperature_header(units),
+        crate::report::machine::temperature_rows(rep, units),
+    )
 }
 
 /// The page of a checked schedule.
