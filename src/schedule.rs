@@ -111,12 +111,19 @@ pub fn rule_words(rule: &str) -> String {
 
 /// The rule of parameter `name` in the messages' words, a range followed by
 /// the unit the name ends in: "must be in [0.001, 1000]" for `diameter_mm`
-/// reads "allowed in [0.001, 1000] mm" (what follows the range is kept).
+/// reads "allowed in [0.001, 1000] mm" (what follows the range is kept);
+/// "must be 0 or greater" for `back_tension_mpa` reads "allowed 0 MPa or greater".
 pub fn rule_in_unit(name: &str, rule: &str) -> String {
     let words = rule_words(rule);
     let Some(unit) = unit_of(name) else {
         return words;
     };
+    // The one-sided rules of `param` (`non_negative`, `positive`).
+    match words.as_str() {
+        "allowed 0 or greater" => return format!("allowed 0 {unit} or greater"),
+        "allowed greater than 0" => return format!("allowed greater than 0 {unit}"),
+        _ => {}
+    }
     let Some(range) = words.strip_prefix("allowed in ") else {
         return words;
     };
@@ -715,14 +722,22 @@ mod unit_tests {
             ),
             "allowed in (25, 2000] C (above 25 C)"
         );
-        // A plain number, or a rule that is not a range, gets no unit.
+        // A plain number gets no unit; a one-sided rule gets it after its 0.
         assert_eq!(
             rule_in_unit("friction", "must be in [0, 0.5]"),
             "allowed in [0, 0.5]"
         );
         assert_eq!(
             rule_in_unit("yield_mpa", "must be greater than 0"),
-            "allowed greater than 0"
+            "allowed greater than 0 MPa"
+        );
+        assert_eq!(
+            rule_in_unit("back_tension_mpa", "must be 0 or greater"),
+            "allowed 0 MPa or greater"
+        );
+        assert_eq!(
+            rule_in_unit("friction", "must be 0 or greater"),
+            "allowed 0 or greater"
         );
         // `_c` names a temperature only in a temperature's name: Voce's
         // `eps_c` is a strain and `redundant_c` a coefficient.

@@ -526,6 +526,12 @@ fn a_range_message_shows_its_unit() {
             "capstan_diameter_mm: 9000,",
             "`blocks[0].capstan_diameter_mm` (block 1) = 9000: allowed in (0, 5000] mm",
         ),
+        // A one-sided rule names the unit too.
+        (
+            "dancer_back_tension_mpa: 40}",
+            "dancer_back_tension_mpa: -5}",
+            "`blocks[1].dancer_back_tension_mpa` (block 2) = -5: allowed 0 MPa or greater",
+        ),
     ] {
         std::fs::write(&path, text.replacen(from, to, 1)).unwrap();
         let o = coldpass(&[
