@@ -420,3 +420,65 @@ fn drawn_wire_points_carry_the_law_to_drawing_strains() {
         "{best}: {at3}"
     );
 }
+
+/// A yield drop: the hardening is fitted after the Lueders plateau, so the
+/// best law (a Hollomon-like law, K eps^n) runs far under the lower yield
+/// strength ReL at zero plastic strain, where the metal flows at about ReL
+/// (the plateau; ISO 6892-1, from memory). The warning names the law, its
+/// stress at zero strain (the law's own formula at 0), ReL and the Lueders
+/// strain; a record that yields continuously (Swift from eps0 = 0.015, whose
+/// law at 0 is its yield) gets none.
+#[test]
+fn a_law_under_the_plateau_at_zero_strain_is_warned_of() {
+    let (e, s) = lueders_record(330.0, 700.0, 0.22, 0.02, 21);
+    let r = fit(&e, &s);
+    let Some(Yielding::Discontinuous {
+        lower_mpa,
+        lueders_strain,
+        ..
+    }) = r.yielding
+    else {
+        panic!("no yield drop found: {:?}", r.yielding);
+    };
+    let best = r.fit(r.best.unwrap()).unwrap();
+    // The best law's stress at zero plastic strain, from its parameters.
+    let p = |k: &str| best.param(k).unwrap();
+    let at_zero = match best.law {
+        FitLaw::Hollomon => 0.0,
+        FitLaw::Swift => p("k_mpa") * p("eps0").powf(p("n")),
+        FitLaw::Ludwik => p("sigma0_mpa"),
+        FitLaw::Voce => p("sigma0_mpa"),
+        other => panic!("best law {other:?}"),
+    };
+    assert!(at_zero < 0.9 * lower_mpa, "{at_zero} vs ReL {lower_mpa}");
+    let w = r
+        .warnings
+        .iter()
+        .find_map(|w| match w {
+            FitWarning::BelowPlateau {
+                law,
+                stress_at_zero_mpa,
+                lower_yield_mpa,
+                lueders_strain: l,
+            } => Some((*law, *stress_at_zero_mpa, *lower_yield_mpa, *l)),
+            _ => None,
+        })
+        .expect("the plateau warning");
+    assert_eq!(w.0, best.law);
+    assert!(
+        (w.1 - at_zero).abs() <= 1e-9 * lower_mpa,
+        "{} vs {at_zero}",
+        w.1
+    );
+    assert_eq!((w.2, w.3), (lower_mpa, lueders_strain));
+
+    let (e, s) = record(swift, E_MPA, (200, 2000, 200), 0.5, 7);
+    let r = fit(&e, &s);
+    assert!(
+        !r.warnings
+            .iter()
+            .any(|w| matches!(w, FitWarning::BelowPlateau { .. })),
+        "{:?}",
+        r.warnings
+    );
+}
