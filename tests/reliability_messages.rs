@@ -443,15 +443,22 @@ fn a_machine_file_missing_or_wrong_key_says_what_is_allowed() {
     for (i, (text, words)) in cases.iter().enumerate() {
         let m = dir.path().join(format!("m{i}.yaml"));
         std::fs::write(&m, text).unwrap();
-        let out = coldpass(&[
-            "check",
-            "schedules-demo/steel-multiblock.yaml",
-            "--machine",
-            m.to_str().unwrap(),
-        ]);
-        assert_eq!(out.status.code(), Some(1));
-        assert!(stderr(&out).contains(words), "{}", stderr(&out));
+        let e = refused_on_machine(&m);
+        assert!(e.contains(words), "{e}");
     }
+}
+
+/// `check` of the steel demo on the machine file `m`: refused as bad input
+/// (exit 1), its message returned.
+fn refused_on_machine(m: &std::path::Path) -> String {
+    let out = coldpass(&[
+        "check",
+        "schedules-demo/steel-multiblock.yaml",
+        "--machine",
+        m.to_str().unwrap(),
+    ]);
+    assert_eq!(out.status.code(), Some(1), "{}", stderr(&out));
+    stderr(&out)
 }
 
 /// A range for a quantity with a unit shows the unit after the range, and
@@ -534,14 +541,8 @@ fn a_range_message_shows_its_unit() {
         ),
     ] {
         std::fs::write(&path, text.replacen(from, to, 1)).unwrap();
-        let o = coldpass(&[
-            "check",
-            "schedules-demo/steel-multiblock.yaml",
-            "--machine",
-            path.to_str().unwrap(),
-        ]);
-        assert_eq!(o.status.code(), Some(1));
-        assert!(stderr(&o).contains(says), "{to}: {}", stderr(&o));
+        let e = refused_on_machine(&path);
+        assert!(e.contains(says), "{to}: {e}");
     }
 }
 
